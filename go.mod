@@ -1,0 +1,3 @@
+module morsel
+
+go 1.26.8
