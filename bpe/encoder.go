@@ -1,0 +1,336 @@
+package bpe
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"runtime"
+	"unicode/utf8"
+)
+
+// SpecialMode says what the encoder does with special-token strings such as
+// "<|endoftext|>" found in a text.
+type SpecialMode int
+
+const (
+	// SpecialsAsText treats them as ordinary text (the default): a
+	// document's text is never taken for a control token.
+	SpecialsAsText SpecialMode = iota
+	// SpecialsHonor maps each such string to its special token's id.
+	SpecialsHonor
+)
+
+// ParseSpecialMode reads "text" or "honor".
+func ParseSpecialMode(s string) (SpecialMode, error) {
+	switch s {
+	case "text", "":
+		return SpecialsAsText, nil
+	case "honor":
+		return SpecialsHonor, nil
+	}
+	return 0, fmt.Errorf("special-token mode %q: want text or honor", s)
+}
+
+// Options set up an Encoder. The zero value encodes with the GPT-2 split
+// rule, special strings as text, and the default cache size.
+type Options struct {
+	Specials     SpecialMode
+	SplitPattern string // a regular expression for pre-tokenization; "" is the GPT-2 rule
+	CacheWords   int    // words each worker's cache holds before it starts afresh; 0 is 1<<16
+}
+
+// Stats is what encoding a text found.
+type Stats struct {
+	Tokens   int // tokens the text encodes to
+	Specials int // special-token strings the text holds (honoured or not)
+}
+
+// Encoder turns text into token ids under one vocabulary. It is safe for
+// concurrent use: each call borrows a worker state with its own word cache.
+type Encoder struct {
+	v        *Vocab
+	mode     SpecialMode
+	re       *regexSplitter
+	specials [][]byte
+	specIDs  []uint32
+	maxWords int
+	free     chan *state
+}
+
+// NewEncoder returns an encoder for v. It fails on a split pattern that does
+// not compile.
+func NewEncoder(v *Vocab, opt Options) (*Encoder, error) {
+	e := &Encoder{v: v, mode: opt.Specials, maxWords: opt.CacheWords}
+	if e.maxWords <= 0 {
+		e.maxWords = 1 << 16
+	}
+	if opt.SplitPattern != "" {
+		re, err := newRegexSplitter(opt.SplitPattern)
+		if err != nil {
+			return nil, err
+		}
+		e.re = re
+	}
+	for _, s := range v.specials {
+		e.specials = append(e.specials, []byte(s.Text))
+		e.specIDs = append(e.specIDs, uint32(s.ID))
+	}
+	e.free = make(chan *state, 2*runtime.GOMAXPROCS(0)+2)
+	return e, nil
+}
+
+// Vocab returns the encoder's vocabulary.
+func (e *Encoder) Vocab() *Vocab { return e.v }
+
+func (e *Encoder) get() *state {
+	select {
+	case s := <-e.free:
+		return s
+	default:
+		return &state{v: e.v, cache: make(map[string]uint64, 1024), max: e.maxWords}
+	}
+}
+
+func (e *Encoder) put(s *state) {
+	select {
+	case e.free <- s:
+	default:
+	}
+}
+
+// Encode returns the token ids of text.
+func (e *Encoder) Encode(text []byte) []int {
+	ids, _ := e.EncodeStats(nil, text)
+	return ids
+}
+
+// EncodeStats appends the token ids of text to dst and returns them with
+// what the text held.
+func (e *Encoder) EncodeStats(dst []int, text []byte) ([]int, Stats) {
+	s := e.get()
+	defer e.put(s)
+	var st Stats
+	e.segments(text, &st, func(seg []byte, special int) {
+		if special >= 0 {
+			dst = append(dst, int(e.specIDs[special]))
+			return
+		}
+		e.pieces(seg, func(p []byte) {
+			for _, id := range s.piece(p) {
+				dst = append(dst, int(id))
+			}
+		})
+	})
+	st.Tokens = len(dst)
+	return dst, st
+}
+
+// Count returns the number of tokens text encodes to, without building the
+// ids.
+func (e *Encoder) Count(text []byte) int { return e.CountStats(text).Tokens }
+
+// CountStats returns the token count of text and the special-token strings
+// it holds.
+func (e *Encoder) CountStats(text []byte) Stats {
+	s := e.get()
+	defer e.put(s)
+	var st Stats
+	e.segments(text, &st, func(seg []byte, special int) {
+		if special >= 0 {
+			st.Tokens++
+			return
+		}
+		if e.re != nil {
+			e.re.spans(seg, func(a, b int) { st.Tokens += len(s.piece(seg[a:b])) })
+			return
+		}
+		for i := 0; i < len(seg); {
+			j := nextGPT2(seg, i)
+			st.Tokens += s.count(seg[i:j])
+			i = j
+		}
+	})
+	return st
+}
+
+// Split calls fn with the span of every pre-token of text, in order, and
+// with special true for a special token that SpecialsHonor maps to its id.
+// The spans cover text without gaps; BPE never merges across them.
+func (e *Encoder) Split(text []byte, fn func(start, end int, special bool)) {
+	var st Stats
+	base := 0
+	e.segments(text, &st, func(seg []byte, special int) {
+		if special >= 0 {
+			fn(base, base+len(seg), true)
+		} else {
+			e.spans(seg, func(a, b int) { fn(base+a, base+b, false) })
+		}
+		base += len(seg)
+	})
+}
+
+// EncodePiece returns the ids of one pre-token, as Split gives them. The
+// slice is only valid until the next call on the encoder and must not be
+// modified; copy it to keep it.
+func (e *Encoder) EncodePiece(piece []byte) []int {
+	s := e.get()
+	defer e.put(s)
+	ids := s.piece(piece)
+	out := make([]int, len(ids))
+	for i, id := range ids {
+		out[i] = int(id)
+	}
+	return out
+}
+
+// segments cuts text at the special-token strings: in SpecialsHonor mode fn
+// gets each one with its index in e.specials, and the text between with -1;
+// otherwise fn gets the whole text and the strings are only counted.
+func (e *Encoder) segments(text []byte, st *Stats, fn func(seg []byte, special int)) {
+	if len(e.specials) == 0 {
+		fn(text, -1)
+		return
+	}
+	if e.mode != SpecialsHonor {
+		for _, sp := range e.specials {
+			st.Specials += bytes.Count(text, sp)
+		}
+		fn(text, -1)
+		return
+	}
+	for len(text) > 0 {
+		at, which := -1, -1
+		for k, sp := range e.specials {
+			if i := bytes.Index(text, sp); i >= 0 && (at < 0 || i < at || (i == at && len(sp) > len(e.specials[which]))) {
+				at, which = i, k
+			}
+		}
+		if at < 0 {
+			fn(text, -1)
+			return
+		}
+		if at > 0 {
+			fn(text[:at], -1)
+		}
+		st.Specials++
+		fn(text[at:at+len(e.specials[which])], which)
+		text = text[at+len(e.specials[which]):]
+	}
+}
+
+func (e *Encoder) spans(seg []byte, fn func(a, b int)) {
+	if e.re != nil {
+		e.re.spans(seg, fn)
+		return
+	}
+	for i := 0; i < len(seg); {
+		j := nextGPT2(seg, i)
+		fn(i, j)
+		i = j
+	}
+}
+
+func (e *Encoder) pieces(seg []byte, fn func(p []byte)) {
+	e.spans(seg, func(a, b int) { fn(seg[a:b]) })
+}
+
+// Decode returns the bytes that ids stand for. Ids outside the vocabulary
+// are left out; use Vocab.Token to check ids one by one.
+func (e *Encoder) Decode(ids []int) []byte {
+	n := 0
+	for _, id := range ids {
+		if t, ok := e.v.Token(id); ok {
+			n += len(t)
+		}
+	}
+	out := make([]byte, 0, n)
+	for _, id := range ids {
+		if t, ok := e.v.Token(id); ok {
+			out = append(out, t...)
+		}
+	}
+	return out
+}
+
+// streamChunk is how much CountReader reads at a time.
+const streamChunk = 1 << 20
+
+// CountReader counts the tokens of everything r yields, holding about one
+// megabyte at a time, and returns the count with the number of bytes read.
+// With the GPT-2 rule it cuts the stream only where a pre-token must end (a
+// non-space character followed by white space), so the count equals that
+// of the whole text; with another split pattern, or special strings that
+// hold white space, it reads the whole text first.
+func (e *Encoder) CountReader(r io.Reader) (Stats, int64, error) {
+	if e.re != nil || e.specialsHoldSpace() {
+		all, err := io.ReadAll(r)
+		return e.CountStats(all), int64(len(all)), err
+	}
+	var total Stats
+	var n int64
+	buf := make([]byte, 0, 2*streamChunk)
+	for {
+		if cap(buf)-len(buf) < streamChunk/2 {
+			nb := make([]byte, len(buf), 2*cap(buf))
+			copy(nb, buf)
+			buf = nb
+		}
+		m, err := r.Read(buf[len(buf):cap(buf)])
+		buf = buf[:len(buf)+m]
+		n += int64(m)
+		eof := err == io.EOF
+		if err != nil && !eof {
+			st := e.CountStats(buf)
+			total.Tokens += st.Tokens
+			total.Specials += st.Specials
+			return total, n, err
+		}
+		cut := len(buf)
+		if !eof {
+			if len(buf) < streamChunk {
+				continue
+			}
+			cut = safeCut(buf)
+			if cut == 0 { // one long pre-token so far; read on
+				continue
+			}
+		}
+		st := e.CountStats(buf[:cut])
+		total.Tokens += st.Tokens
+		total.Specials += st.Specials
+		if eof {
+			return total, n, nil
+		}
+		rest := copy(buf, buf[cut:])
+		buf = buf[:rest]
+	}
+}
+
+// safeCut returns the last offset in t where a non-space character is
+// followed by an ASCII white-space byte, or 0. Every GPT-2 pre-token ends
+// there or earlier, so counting the two sides apart gives the count of the
+// whole. An ASCII byte is always a character boundary, however invalid the
+// bytes before it.
+func safeCut(t []byte) int {
+	for i := len(t) - 1; i > 0; i-- {
+		if b := t[i]; b >= utf8.RuneSelf || asciiClass[b] != clsSpace {
+			continue
+		}
+		r, _ := utf8.DecodeLastRune(t[:i])
+		if r == utf8.RuneError || runeClass(r) != clsSpace {
+			return i
+		}
+	}
+	return 0
+}
+
+func (e *Encoder) specialsHoldSpace() bool {
+	for _, sp := range e.specials {
+		for i := range sp {
+			if c, _ := classAt(sp, i); c == clsSpace {
+				return true
+			}
+		}
+	}
+	return false
+}

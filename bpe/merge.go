@@ -1,0 +1,242 @@
+package bpe
+
+import "math"
+
+// state is one worker's scratch space: a word cache and the buffers of the
+// merge loop. It is never shared between goroutines.
+type state struct {
+	v     *Vocab
+	cache map[string]uint64 // pre-token bytes -> offset<<32 | length in arena
+	arena []uint32
+	max   int
+
+	syms  []uint32
+	ranks []uint32
+	mids  []uint32
+	out   []uint32
+	// for long pre-tokens
+	next, prev []int32
+	heap       []uint64
+}
+
+const (
+	noRank = math.MaxUint32
+	// cacheLongest is the longest pre-token, in bytes, that the cache keeps.
+	cacheLongest = 64
+	// shortest is the longest pre-token, in bytes, that the plain scan
+	// merges; longer ones go through the heap.
+	shortest = 48
+)
+
+// piece returns the ids of one pre-token. The slice is valid until the next
+// call.
+func (s *state) piece(p []byte) []uint32 {
+	if len(p) == 1 {
+		s.out = append(s.out[:0], s.v.byteID[p[0]])
+		return s.out
+	}
+	if len(p) <= cacheLongest {
+		if loc, ok := s.cache[string(p)]; ok {
+			return s.arena[loc>>32 : loc>>32+loc&0xffffffff]
+		}
+	}
+	var ids []uint32
+	if len(p) <= shortest {
+		ids = s.mergeShort(p)
+	} else {
+		ids = s.mergeLong(p)
+	}
+	if len(p) <= cacheLongest {
+		if len(s.cache) >= s.max {
+			clear(s.cache)
+			s.arena = s.arena[:0]
+		}
+		off := len(s.arena)
+		s.arena = append(s.arena, ids...)
+		s.cache[string(p)] = uint64(off)<<32 | uint64(len(ids))
+	}
+	return ids
+}
+
+// count returns the number of tokens of one pre-token.
+func (s *state) count(p []byte) int {
+	if len(p) == 1 {
+		return 1
+	}
+	if len(p) <= cacheLongest {
+		if loc, ok := s.cache[string(p)]; ok {
+			return int(loc & 0xffffffff)
+		}
+	}
+	return len(s.piece(p))
+}
+
+func (s *state) rankOf(a, b uint32) (rank, merged uint32) {
+	if rm, ok := s.v.merges[pairKey(a, b)]; ok {
+		return uint32(rm >> 32), uint32(rm)
+	}
+	return noRank, 0
+}
+
+// mergeShort applies the merges to a short pre-token: repeatedly merge the
+// adjacent pair of lowest rank, the leftmost on ties.
+func (s *state) mergeShort(p []byte) []uint32 {
+	syms := s.syms[:0]
+	for _, b := range p {
+		syms = append(syms, s.v.byteID[b])
+	}
+	ranks, mids := s.ranks[:0], s.mids[:0]
+	for i := 0; i+1 < len(syms); i++ {
+		r, m := s.rankOf(syms[i], syms[i+1])
+		ranks = append(ranks, r)
+		mids = append(mids, m)
+	}
+	for len(ranks) > 0 {
+		best, at := uint32(noRank), -1
+		for i, r := range ranks {
+			if r < best {
+				best, at = r, i
+			}
+		}
+		if at < 0 {
+			break
+		}
+		syms[at] = mids[at]
+		syms = append(syms[:at+1], syms[at+2:]...)
+		ranks = append(ranks[:at], ranks[at+1:]...)
+		mids = append(mids[:at], mids[at+1:]...)
+		if at > 0 {
+			ranks[at-1], mids[at-1] = s.rankOf(syms[at-1], syms[at])
+		}
+		if at < len(ranks) {
+			ranks[at], mids[at] = s.rankOf(syms[at], syms[at+1])
+		}
+	}
+	s.syms, s.ranks, s.mids = syms, ranks, mids
+	s.out = append(s.out[:0], syms...)
+	return s.out
+}
+
+// mergeLong applies the merges to a long pre-token in O(n log n): the
+// symbols form a linked list, and a min-heap holds every mergeable pair
+// keyed by rank<<32 | position, so the lowest rank pops first and the
+// leftmost among equals. Entries made stale by an earlier merge are checked
+// and dropped when they surface.
+func (s *state) mergeLong(p []byte) []uint32 {
+	n := len(p)
+	syms := s.syms[:0]
+	for _, b := range p {
+		syms = append(syms, s.v.byteID[b])
+	}
+	next, prev := grow32(s.next, n), grow32(s.prev, n)
+	for i := 0; i < n; i++ {
+		next[i], prev[i] = int32(i+1), int32(i-1)
+	}
+	next[n-1] = -1
+	h := s.heap[:0]
+	for i := 0; i+1 < n; i++ {
+		if r, _ := s.rankOf(syms[i], syms[i+1]); r != noRank {
+			h = append(h, uint64(r)<<32|uint64(i))
+		}
+	}
+	heapify(h)
+	const dead = math.MaxUint32
+	for len(h) > 0 {
+		top := h[0]
+		h = heapPop(h)
+		pos := int32(uint32(top))
+		r := uint32(top >> 32)
+		if syms[pos] == dead {
+			continue
+		}
+		nx := next[pos]
+		if nx < 0 {
+			continue
+		}
+		cr, merged := s.rankOf(syms[pos], syms[nx])
+		if cr != r {
+			continue // stale
+		}
+		syms[pos] = merged
+		syms[nx] = dead
+		nn := next[nx]
+		next[pos] = nn
+		if nn >= 0 {
+			prev[nn] = pos
+			if r2, _ := s.rankOf(merged, syms[nn]); r2 != noRank {
+				h = heapPush(h, uint64(r2)<<32|uint64(pos))
+			}
+		}
+		if pv := prev[pos]; pv >= 0 {
+			if r2, _ := s.rankOf(syms[pv], merged); r2 != noRank {
+				h = heapPush(h, uint64(r2)<<32|uint64(pv))
+			}
+		}
+	}
+	out := s.out[:0]
+	for i := int32(0); i >= 0; i = next[i] {
+		out = append(out, syms[i])
+	}
+	s.syms, s.next, s.prev, s.heap, s.out = syms, next, prev, h, out
+	return out
+}
+
+func grow32(b []int32, n int) []int32 {
+	if cap(b) < n {
+		return make([]int32, n)
+	}
+	return b[:n]
+}
+
+// A binary min-heap of uint64 keys.
+
+func heapify(h []uint64) {
+	for i := len(h)/2 - 1; i >= 0; i-- {
+		siftDown(h, i)
+	}
+}
+
+func siftDown(h []uint64, i int) {
+	n := len(h)
+	x := h[i]
+	for {
+		c := 2*i + 1
+		if c >= n {
+			break
+		}
+		if c+1 < n && h[c+1] < h[c] {
+			c++
+		}
+		if h[c] >= x {
+			break
+		}
+		h[i] = h[c]
+		i = c
+	}
+	h[i] = x
+}
+
+func heapPop(h []uint64) []uint64 {
+	last := len(h) - 1
+	h[0] = h[last]
+	h = h[:last]
+	if last > 0 {
+		siftDown(h, 0)
+	}
+	return h
+}
+
+func heapPush(h []uint64, x uint64) []uint64 {
+	h = append(h, x)
+	i := len(h) - 1
+	for i > 0 {
+		parent := (i - 1) / 2
+		if h[parent] <= x {
+			break
+		}
+		h[i] = h[parent]
+		i = parent
+	}
+	h[i] = x
+	return h
+}

@@ -1,0 +1,185 @@
+package bpe
+
+import (
+	"fmt"
+	"unicode"
+	"unicode/utf8"
+
+	"github.com/dlclark/regexp2"
+)
+
+// GPT2Pattern is the pre-tokenization rule of GPT-2, as a regular
+// expression. The encoder runs a hand scanner that gives exactly the same
+// pieces (a fuzz test holds the two together); the pattern itself is used
+// only when a caller asks for it, or for another pattern, by name.
+const GPT2Pattern = `'s|'t|'re|'ve|'m|'ll|'d| ?\p{L}+| ?\p{N}+| ?[^\s\p{L}\p{N}]+|\s+(?!\S)|\s+`
+
+// Character classes of the GPT-2 rule.
+const (
+	clsOther  uint8 = iota // neither letter, number nor white space (also any invalid byte)
+	clsLetter              // Unicode L*
+	clsNumber              // Unicode N*
+	clsSpace               // Unicode White_Space
+)
+
+var asciiClass [utf8.RuneSelf]uint8
+
+func init() {
+	for b := 0; b < utf8.RuneSelf; b++ {
+		asciiClass[b] = runeClass(rune(b))
+	}
+}
+
+func runeClass(r rune) uint8 {
+	switch {
+	case unicode.IsLetter(r):
+		return clsLetter
+	case unicode.IsNumber(r):
+		return clsNumber
+	case unicode.IsSpace(r):
+		return clsSpace
+	}
+	return clsOther
+}
+
+// classAt returns the class of the character at t[i] and its length in
+// bytes. An invalid UTF-8 byte is one character of class other, as the
+// replacement character U+FFFD (a symbol) would be.
+func classAt(t []byte, i int) (uint8, int) {
+	if b := t[i]; b < utf8.RuneSelf {
+		return asciiClass[b], 1
+	}
+	r, n := utf8.DecodeRune(t[i:])
+	if r == utf8.RuneError && n <= 1 {
+		return clsOther, 1
+	}
+	return runeClass(r), n
+}
+
+// runOf returns the end of the run of class c that continues at t[i].
+func runOf(t []byte, i int, c uint8) int {
+	for i < len(t) {
+		if b := t[i]; b < utf8.RuneSelf {
+			if asciiClass[b] != c {
+				return i
+			}
+			i++
+			continue
+		}
+		cc, n := classAt(t, i)
+		if cc != c {
+			return i
+		}
+		i += n
+	}
+	return i
+}
+
+// contraction returns the length of the contraction ('s 't 're 've 'm 'll
+// 'd, lower case only) that starts at t[i], which holds an apostrophe, or 0.
+func contraction(t []byte, i int) int {
+	if i+1 >= len(t) {
+		return 0
+	}
+	switch t[i+1] {
+	case 's', 't', 'm', 'd':
+		return 2
+	case 'r', 'v':
+		if i+2 < len(t) && t[i+2] == 'e' {
+			return 3
+		}
+	case 'l':
+		if i+2 < len(t) && t[i+2] == 'l' {
+			return 3
+		}
+	}
+	return 0
+}
+
+// nextGPT2 returns the end of the GPT-2 pre-token that starts at t[i],
+// i < len(t). The alternatives are tried in the order the pattern lists them.
+func nextGPT2(t []byte, i int) int {
+	c, n := classAt(t, i)
+	switch c {
+	case clsLetter, clsNumber:
+		return runOf(t, i+n, c)
+	case clsOther:
+		if t[i] == '\'' {
+			if m := contraction(t, i); m > 0 {
+				return i + m
+			}
+		}
+		return runOf(t, i+n, clsOther)
+	}
+	// White space. A plain space directly before a non-space character
+	// starts that character's piece (" ?\p{L}+" and its two siblings).
+	if t[i] == ' ' && i+1 < len(t) {
+		if c2, n2 := classAt(t, i+1); c2 != clsSpace {
+			return runOf(t, i+1+n2, c2)
+		}
+	}
+	// A run of white space: "\s+(?!\S)" leaves its last character to the
+	// piece that follows, unless the run ends the text; a run of one
+	// character before a non-space falls to "\s+".
+	j, last := i+n, i
+	for j < len(t) {
+		cc, m := classAt(t, j)
+		if cc != clsSpace {
+			break
+		}
+		last = j
+		j += m
+	}
+	if j == len(t) || last == i {
+		return j
+	}
+	return last
+}
+
+// regexSplitter pre-tokenizes with a user's regular expression. Text that
+// no match covers becomes pieces of its own, so no byte is lost.
+type regexSplitter struct {
+	re *regexp2.Regexp
+}
+
+func newRegexSplitter(pattern string) (*regexSplitter, error) {
+	re, err := regexp2.Compile(pattern, regexp2.None)
+	if err != nil {
+		return nil, fmt.Errorf("split pattern %q: %w", pattern, err)
+	}
+	return &regexSplitter{re: re}, nil
+}
+
+// spans calls fn with the byte span of every piece of t, in order.
+func (s *regexSplitter) spans(t []byte, fn func(start, end int)) {
+	if len(t) == 0 {
+		return
+	}
+	// regexp2 matches over runes; map rune indexes back to byte offsets.
+	// Every invalid byte is one rune (U+FFFD), as utf8.DecodeRune steps.
+	runes := make([]rune, 0, len(t))
+	offs := make([]int, 0, len(t)+1)
+	for i := 0; i < len(t); {
+		r, n := utf8.DecodeRune(t[i:])
+		runes = append(runes, r)
+		offs = append(offs, i)
+		i += n
+	}
+	offs = append(offs, len(t))
+	pos := 0
+	m, err := s.re.FindRunesMatch(runes)
+	for err == nil && m != nil {
+		a, b := m.Index, m.Index+m.Length
+		if a > pos {
+			fn(offs[pos], offs[a])
+		}
+		if b > a {
+			fn(offs[a], offs[b])
+			pos = b
+		}
+		m, err = s.re.FindNextMatch(m)
+	}
+	if pos < len(runes) {
+		fn(offs[pos], len(t))
+	}
+}
