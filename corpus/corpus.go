@@ -1,0 +1,241 @@
+// Package corpus walks inputs and turns them into documents.
+//
+// List resolves paths (files, directories walked recursively in sorted
+// order, glob patterns) into Inputs. Read opens one Input, picks its format
+// and emits its Documents and Skips in input order. Walk does both.
+//
+// # Formats
+//
+// The format is chosen by extension; a file with no extension or an unknown
+// one, and standard input ("-"), is sniffed from its first 8 KiB. A ".gz" or
+// ".zst"/".zstd" suffix is decompressed first and the inner extension decides
+// (notes.jsonl.gz is JSON Lines); gzip and zstd magic numbers are also
+// recognised on sniffed inputs. Document.Format names the inner format.
+//
+//   - "text", "markdown", "code": one document per file, bytes kept as they
+//     are (invalid UTF-8 included). Files larger than Options.StreamAbove are
+//     handed over as Document.Stream instead of Document.Text.
+//   - "html": one document per file holding the visible text. The contents of
+//     script, style, template, noscript and title are dropped, entities are
+//     decoded, runs of white space collapse to one space (except inside pre),
+//     block elements (p, div, li, h1-h6, tr, br, ...) end a line and table
+//     cells are separated by a space.
+//   - "jsonl": one document per non-blank line; Record is the 1-based line.
+//   - "json": a top-level array gives one document per element (Record is the
+//     1-based element index); any other top-level value is one document with
+//     Record 0. The array is decoded one element at a time.
+//   - "csv", "tsv": one document per data row, taken from the column whose
+//     header is Options.Column (exact match, else case-insensitive). Record is
+//     the 1-based physical line where the row starts, the header being line
+//     1. Quoting follows RFC 4180; as encoding/csv does, a CRLF inside a
+//     quoted field becomes LF. TSV uses the same rules with a tab separator
+//     and lenient quotes.
+//
+// A leading UTF-8 byte order mark is ignored by the json, jsonl, csv and tsv
+// readers and kept in text documents.
+//
+// # Picking the text of a JSON record
+//
+// Options.Field is a dotted path ("text", "meta.body", "turns.0.text"): each
+// part names an object member, or a 0-based index when the value there is an
+// array. A record that is itself a JSON string is its own text, whatever the
+// path. The value found must be:
+//
+//   - a string: that is the text;
+//   - an array of messages: each element is either a string (taken as is) or
+//     an object whose "content" is a string; an object with a string "role"
+//     becomes "role: content", one without becomes "content"; an object whose
+//     content is null or missing is left out. The messages are joined with a
+//     single "\n". Any other element makes the record "not-text".
+//   - null or missing: Skip "no-field";
+//   - a number, boolean or object: Skip "not-text".
+//
+// An empty text gives Skip "empty".
+//
+// # Memory
+//
+// JSON Lines is read line by line and CSV row by row; a JSON array element by
+// element. Plain text up to Options.StreamAbove is held whole, larger files
+// are streamed. A JSON Lines line or an HTML text run longer than
+// Options.MaxRecord is skipped as "too-large". A single CSV row or JSON
+// element is held whole while it is read.
+package corpus
+
+import (
+	"io"
+	"os"
+	"strconv"
+)
+
+// Reasons a Skip gives. Failed tells whether the input or record could not
+// be read (an error the caller should report) or was left out on purpose.
+const (
+	// ReasonBinary: NUL bytes, or more than 30% of bytes in invalid UTF-8
+	// sequences, in the first 8 KiB (after decompression), or a well-known
+	// binary extension such as .png or .pdf. Not failed.
+	ReasonBinary = "binary"
+	// ReasonEmpty: a file with no bytes, a JSON Lines, JSON or CSV file with
+	// no records, an HTML file with no visible text, or a record whose text
+	// is empty. Not failed.
+	ReasonEmpty = "empty"
+	// ReasonUnreadable: the path is missing, cannot be opened or read, a
+	// symbolic link dangles, or a glob matches nothing. Failed; Detail holds
+	// the OS error.
+	ReasonUnreadable = "unreadable"
+	// ReasonMalformed: a JSON Lines line, JSON document or CSV row that does
+	// not parse. Failed; the rest of a JSON Lines or CSV file is still read.
+	ReasonMalformed = "malformed"
+	// ReasonNoField: a JSON record without Options.Field (or with null
+	// there), or a CSV header without Options.Column. Failed.
+	ReasonNoField = "no-field"
+	// ReasonNotText: a JSON field holding a number, boolean, object or an
+	// array that is not a list of messages. Failed.
+	ReasonNotText = "not-text"
+	// ReasonSymlinkLoop: a symbolic link to a directory that is already being
+	// walked above it (not failed: its files are counted once), or a link
+	// chain that loops and so cannot be opened at all (failed).
+	ReasonSymlinkLoop = "symlink-loop"
+	// ReasonDuplicate: a file or directory reached a second time through a
+	// symbolic link or a repeated argument; counted once. Not failed.
+	ReasonDuplicate = "duplicate"
+	// ReasonSpecial: a device, socket or named pipe met inside a directory
+	// walk. Named pipes given by path are read. Not failed.
+	ReasonSpecial = "special"
+	// ReasonTruncated: a compressed stream or JSON document that ends early.
+	// Records read before the cut are still emitted. Failed.
+	ReasonTruncated = "truncated"
+	// ReasonCorrupt: a compressed stream with a bad header or checksum.
+	// Failed.
+	ReasonCorrupt = "corrupt"
+	// ReasonRagged: a CSV/TSV row whose field count differs from the
+	// header's. Failed; the rest of the file is still read.
+	ReasonRagged = "ragged"
+	// ReasonTooLarge: a JSON Lines line or HTML text run longer than
+	// Options.MaxRecord. Failed.
+	ReasonTooLarge = "too-large"
+)
+
+// Format names reported in Document.Format.
+const (
+	FormatText     = "text"
+	FormatMarkdown = "markdown"
+	FormatCode     = "code"
+	FormatHTML     = "html"
+	FormatJSONL    = "jsonl"
+	FormatJSON     = "json"
+	FormatCSV      = "csv"
+	FormatTSV      = "tsv"
+)
+
+// Document is one unit of text to weigh.
+type Document struct {
+	// Source is the path as walked, "-" for standard input.
+	Source string
+	// Record is 0 for a whole file, the 1-based line for JSON Lines, the
+	// 1-based physical line where the row starts for CSV/TSV (the header is
+	// line 1), or the 1-based element index for a JSON array.
+	Record int
+	// Format is one of the Format constants; compression is not named.
+	Format string
+	// Text is the text; nil when Stream is set.
+	Text []byte
+	// Stream is set instead of Text for plain text larger than
+	// Options.StreamAbove. The consumer owns it: it must read it to the end
+	// and close it. Read errors from it name the Source.
+	Stream io.ReadCloser
+	// Size is the number of bytes of text when known (the file size for
+	// plain files), -1 if not known.
+	Size int64
+}
+
+// Skip is an input or record that was not counted, and why.
+type Skip struct {
+	Source string
+	// Record is 0 for a whole input, else as in Document.Record.
+	Record int
+	// Reason is one of the Reason constants.
+	Reason string
+	// Detail is human text, e.g. "line 12: invalid character '}' ...".
+	Detail string
+	// Failed is true when the input or record could not be read, false for
+	// deliberate skips such as binary or empty.
+	Failed bool
+}
+
+// String returns the skip as "source: reason: detail".
+func (s Skip) String() string {
+	if s.Detail == "" {
+		return s.Source + ": " + s.Reason
+	}
+	return s.Source + ": " + s.Reason + ": " + s.Detail
+}
+
+// Item is one result of Read or Walk: exactly one of Doc and Skip is set.
+type Item struct {
+	Doc  *Document
+	Skip *Skip
+}
+
+// Options controls List, Read and Walk. The zero value is ready to use.
+type Options struct {
+	// Field is the JSON/JSON Lines field holding the text, a dotted path
+	// for nesting; default "text".
+	Field string
+	// Column is the CSV/TSV column holding the text; default "text".
+	Column string
+	// Include keeps only files matching one of these globs; Exclude drops
+	// files and prunes directories matching one of them. A pattern matches
+	// the base name, the path as walked, or the path below the walked
+	// directory; "**" matches any number of path parts.
+	Include []string
+	Exclude []string
+	// Hidden walks files and directories whose name starts with "." too.
+	// Hidden paths named directly are always read.
+	Hidden bool
+	// StreamAbove is the plain-text size above which a Document carries a
+	// Stream instead of Text; default 32 MiB, negative means never.
+	StreamAbove int64
+	// MaxRecord bounds a JSON Lines line or an HTML text run; default
+	// 256 MiB.
+	MaxRecord int64
+	// Format forces one format (a Format constant) instead of choosing by
+	// extension or content.
+	Format string
+	// Stdin is read for the path "-"; default os.Stdin.
+	Stdin io.Reader
+}
+
+// DefaultStreamAbove is the default Options.StreamAbove.
+const DefaultStreamAbove = 32 << 20
+
+// DefaultMaxRecord is the default Options.MaxRecord.
+const DefaultMaxRecord = 256 << 20
+
+func (o Options) withDefaults() Options {
+	if o.Field == "" {
+		o.Field = "text"
+	}
+	if o.Column == "" {
+		o.Column = "text"
+	}
+	if o.StreamAbove == 0 {
+		o.StreamAbove = DefaultStreamAbove
+	}
+	if o.MaxRecord <= 0 {
+		o.MaxRecord = DefaultMaxRecord
+	}
+	if o.Stdin == nil {
+		o.Stdin = os.Stdin
+	}
+	return o
+}
+
+// Input is one file found by List. Size is -1 when not known.
+type Input struct {
+	Path string
+	Size int64
+}
+
+func lineDetail(line int, msg string) string {
+	return "line " + strconv.Itoa(line) + ": " + msg
+}

@@ -1,0 +1,394 @@
+package corpus
+
+import (
+	"bufio"
+	"bytes"
+	"compress/gzip"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+	"syscall"
+	"unicode/utf8"
+
+	"github.com/klauspost/compress/zstd"
+)
+
+// sniffSize is how much of an input is looked at to tell binary from text
+// and to guess a format.
+const sniffSize = 8 << 10
+
+// Walk lists paths as List does and reads each input as Read does, calling
+// fn for every document and skip in order. It stops at the first error fn
+// returns and returns it; unreadable inputs are reported as Skips, not as
+// errors.
+func Walk(paths []string, opt Options, fn func(Item) error) error {
+	for _, e := range list(paths, opt) {
+		if e.skip != nil {
+			if err := fn(Item{Skip: e.skip}); err != nil {
+				return err
+			}
+			continue
+		}
+		if err := Read(*e.in, opt, fn); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// Read reads one input and calls fn for each of its documents and skips, in
+// input order. Problems with the input become Skips; Read returns only the
+// first error fn returns, which stops it.
+func Read(in Input, opt Options, fn func(Item) error) error {
+	opt = opt.withDefaults()
+	r := &reader{in: in, opt: opt, fn: fn}
+	return r.run()
+}
+
+type reader struct {
+	in  Input
+	opt Options
+	fn  func(Item) error
+	// src records errors from below the decompressor and parser, so that a
+	// cut stream is told apart from bad syntax.
+	src *errReader
+}
+
+func (r *reader) doc(d *Document) error {
+	d.Source = r.in.Path
+	return r.fn(Item{Doc: d})
+}
+
+func (r *reader) skip(record int, reason, detail string, failed bool) error {
+	return r.fn(Item{Skip: &Skip{Source: r.in.Path, Record: record, Reason: reason, Detail: detail, Failed: failed}})
+}
+
+// readFailed reports an error from reading the input itself.
+func (r *reader) readFailed(record int, where string, err error) error {
+	reason := ReasonUnreadable
+	switch {
+	case errors.Is(err, io.ErrUnexpectedEOF):
+		reason = ReasonTruncated
+	case errors.Is(err, gzip.ErrHeader), errors.Is(err, gzip.ErrChecksum), isZstdErr(err):
+		reason = ReasonCorrupt
+	case errors.Is(err, syscall.ELOOP):
+		reason = ReasonSymlinkLoop
+	}
+	msg := err.Error()
+	if where != "" {
+		msg = where + ": " + msg
+	}
+	return r.skip(record, reason, msg, true)
+}
+
+func isZstdErr(err error) bool {
+	return strings.HasPrefix(err.Error(), "zstd") || errors.Is(err, zstd.ErrMagicMismatch) ||
+		errors.Is(err, zstd.ErrCRCMismatch) || errors.Is(err, zstd.ErrReservedBlockType) ||
+		errors.Is(err, zstd.ErrBlockTooSmall) || errors.Is(err, zstd.ErrUnknownDictionary)
+}
+
+// errReader remembers the first error other than io.EOF that its reader
+// returns.
+type errReader struct {
+	r   io.Reader
+	err error
+}
+
+func (e *errReader) Read(p []byte) (int, error) {
+	n, err := e.r.Read(p)
+	if err != nil && err != io.EOF && e.err == nil {
+		e.err = err
+	}
+	return n, err
+}
+
+type compression int
+
+const (
+	compNone compression = iota
+	compGzip
+	compZstd
+)
+
+func (r *reader) run() error {
+	var f io.ReadCloser
+	if r.in.Path == "-" {
+		f = io.NopCloser(r.opt.Stdin)
+	} else {
+		file, err := os.Open(r.in.Path)
+		if err != nil {
+			return r.readFailed(0, "", err)
+		}
+		f = file
+	}
+	owned := false // set when a Stream took over f
+	defer func() {
+		if !owned {
+			f.Close()
+		}
+	}()
+
+	name := strings.ToLower(filepath.Base(r.in.Path))
+	comp := compNone
+	switch {
+	case strings.HasSuffix(name, ".gz"):
+		comp, name = compGzip, strings.TrimSuffix(name, ".gz")
+	case strings.HasSuffix(name, ".zst"):
+		comp, name = compZstd, strings.TrimSuffix(name, ".zst")
+	case strings.HasSuffix(name, ".zstd"):
+		comp, name = compZstd, strings.TrimSuffix(name, ".zstd")
+	}
+	format := r.opt.Format
+	if format == "" && r.in.Path != "-" {
+		format = formatByExt(filepath.Ext(name))
+	}
+	if format == "binary" {
+		return r.skip(0, ReasonBinary, "binary file type "+filepath.Ext(name), false)
+	}
+
+	raw := &errReader{r: f}
+	br := bufio.NewReaderSize(raw, 64<<10)
+	if comp == compNone && format == "" {
+		magic, _ := br.Peek(4)
+		switch {
+		case bytes.HasPrefix(magic, []byte{0x1f, 0x8b}):
+			comp = compGzip
+		case bytes.HasPrefix(magic, []byte{0x28, 0xb5, 0x2f, 0xfd}):
+			comp = compZstd
+		}
+	}
+	var body io.Reader = br
+	switch comp {
+	case compGzip:
+		if _, err := br.Peek(1); err == io.EOF {
+			return r.skip(0, ReasonEmpty, "no bytes", false)
+		}
+		zr, err := gzip.NewReader(br)
+		if err != nil {
+			return r.readFailed(0, "gzip", err)
+		}
+		defer zr.Close()
+		body = zr
+	case compZstd:
+		if _, err := br.Peek(1); err == io.EOF {
+			return r.skip(0, ReasonEmpty, "no bytes", false)
+		}
+		zr, err := zstd.NewReader(br, zstd.WithDecoderConcurrency(1), zstd.WithDecoderLowmem(true),
+			zstd.WithDecoderMaxMemory(1<<30))
+		if err != nil {
+			return r.readFailed(0, "zstd", err)
+		}
+		defer zr.Close()
+		body = zr
+	}
+	if comp != compNone {
+		r.src = &errReader{r: body}
+		body = bufio.NewReaderSize(r.src, 64<<10)
+	} else {
+		r.src = raw
+	}
+	in := body.(*bufio.Reader)
+
+	head, err := in.Peek(sniffSize)
+	if len(head) == 0 {
+		if err == io.EOF || err == nil {
+			return r.skip(0, ReasonEmpty, "no bytes", false)
+		}
+		return r.readFailed(0, "", err)
+	}
+	if why := binaryReason(head); why != "" {
+		return r.skip(0, ReasonBinary, why, false)
+	}
+	if format == "" {
+		format = sniff(head, r.opt.Column)
+	}
+
+	switch format {
+	case FormatJSONL:
+		return r.jsonl(in)
+	case FormatJSON:
+		return r.json(in)
+	case FormatCSV:
+		return r.csv(in, ',')
+	case FormatTSV:
+		return r.csv(in, '\t')
+	case FormatHTML:
+		return r.html(in)
+	case FormatText, FormatMarkdown, FormatCode:
+	default:
+		return r.skip(0, ReasonUnreadable, fmt.Sprintf("unknown format %q", format), true)
+	}
+
+	size := int64(-1)
+	if comp == compNone && r.in.Size >= 0 {
+		size = r.in.Size
+	}
+	limit := r.opt.StreamAbove
+	if limit < 0 || (size >= 0 && size <= limit) {
+		text, err := io.ReadAll(in)
+		if err == nil {
+			err = r.src.err
+		}
+		if err != nil {
+			return r.readFailed(0, "", err)
+		}
+		if size < 0 {
+			size = int64(len(text))
+		}
+		return r.doc(&Document{Record: 0, Format: format, Text: text, Size: size})
+	}
+	var text []byte
+	if size < 0 {
+		// Unknown size: hold up to the limit, stream only what is larger.
+		text, err = io.ReadAll(io.LimitReader(in, limit+1))
+		if err == nil && int64(len(text)) <= limit {
+			err = r.src.err
+		}
+		if err != nil {
+			return r.readFailed(0, "", err)
+		}
+		if int64(len(text)) <= limit {
+			return r.doc(&Document{Record: 0, Format: format, Text: text, Size: int64(len(text))})
+		}
+	}
+	owned = true
+	s := &stream{r: io.MultiReader(bytes.NewReader(text), in), c: f, src: r.in.Path}
+	return r.doc(&Document{Record: 0, Format: format, Stream: s, Size: size})
+}
+
+// stream is a Document.Stream: it reads the rest of an input and closes
+// the file, naming the source in any read error.
+type stream struct {
+	r   io.Reader
+	c   io.Closer
+	src string
+}
+
+func (s *stream) Read(p []byte) (int, error) {
+	n, err := s.r.Read(p)
+	if err != nil && err != io.EOF {
+		err = fmt.Errorf("%s: %w", s.src, err)
+	}
+	return n, err
+}
+
+func (s *stream) Close() error { return s.c.Close() }
+
+// binaryReason returns why head looks binary, or "" when it looks like
+// text: a NUL byte, or more than 30% of its bytes in invalid UTF-8
+// sequences. An incomplete sequence at the very end is not counted, since
+// the window may cut a character.
+func binaryReason(head []byte) string {
+	if i := bytes.IndexByte(head, 0); i >= 0 {
+		return fmt.Sprintf("NUL byte at offset %d", i)
+	}
+	bad := 0
+	for i := 0; i < len(head); {
+		c := head[i]
+		if c < utf8.RuneSelf {
+			i++
+			continue
+		}
+		rn, n := utf8.DecodeRune(head[i:])
+		if rn == utf8.RuneError && n == 1 {
+			if !utf8.FullRune(head[i:]) {
+				break
+			}
+			bad++
+		}
+		i += n
+	}
+	if bad*10 > len(head)*3 {
+		return fmt.Sprintf("%d of the first %d bytes are not UTF-8", bad, len(head))
+	}
+	return ""
+}
+
+var extFormats = map[string]string{}
+
+func init() {
+	for format, exts := range map[string]string{
+		FormatText:     ".txt .text .rst .tex .adoc .asciidoc .org .log .srt .vtt .wiki",
+		FormatMarkdown: ".md .markdown .mdx .mkd",
+		FormatHTML:     ".html .htm .xhtml",
+		FormatJSONL:    ".jsonl .ndjson .jsonlines",
+		FormatJSON:     ".json",
+		FormatCSV:      ".csv",
+		FormatTSV:      ".tsv .tab",
+		FormatCode: ".go .py .js .mjs .cjs .ts .tsx .jsx .c .h .cc .cpp .cxx .hpp .hh .java .kt .kts " +
+			".scala .rs .rb .php .cs .fs .swift .m .mm .sh .bash .zsh .fish .ps1 .pl .pm .lua .r .jl " +
+			".dart .ex .exs .erl .hrl .hs .ml .mli .clj .lisp .el .scm .sql .css .scss .sass .less " +
+			".vue .svelte .proto .graphql .yaml .yml .toml .ini .cfg .conf .xml .xsd .svg .mk .cmake " +
+			".gradle .tf .nix .zig .nim .v .sv .vhd .asm .s .bat",
+		"binary": ".png .jpg .jpeg .gif .webp .bmp .ico .tif .tiff .pdf .zip .tar .tgz .7z .rar .xz " +
+			".bz2 .exe .dll .so .dylib .o .a .class .jar .pyc .wasm .woff .woff2 .ttf .otf .mp3 " +
+			".mp4 .wav .ogg .flac .mov .avi .mkv .sqlite .db .bin .parquet",
+	} {
+		for _, e := range strings.Fields(exts) {
+			extFormats[e] = format
+		}
+	}
+}
+
+// formatByExt returns the format for a lower-case extension, "binary" for a
+// known binary type, or "" when the content must decide.
+func formatByExt(ext string) string {
+	return extFormats[ext]
+}
+
+var bom = []byte("\xef\xbb\xbf")
+
+// sniff guesses the format of text from its first bytes: JSON Lines when
+// the first non-blank line is a whole JSON object, JSON when it starts with
+// '{' or '[' and the window tokenizes as JSON, HTML for a document that
+// opens with a doctype or a common HTML tag, CSV or TSV when the first line
+// is a header naming column and the following complete lines have as many
+// fields, text otherwise.
+func sniff(head []byte, column string) string {
+	h := bytes.TrimPrefix(head, bom)
+	t := bytes.TrimLeft(h, " \t\r\n")
+	if len(t) == 0 {
+		return FormatText
+	}
+	switch t[0] {
+	case '{', '[':
+		first := t
+		if i := bytes.IndexByte(t, '\n'); i >= 0 {
+			first = t[:i]
+		}
+		first = bytes.TrimRight(first, " \t\r")
+		if t[0] == '{' && json.Valid(first) {
+			return FormatJSONL
+		}
+		if jsonPrefixOK(t) {
+			return FormatJSON
+		}
+	case '<':
+		if looksHTML(t) {
+			return FormatHTML
+		}
+		return FormatText
+	}
+	if f := sniffDelimited(h, column); f != "" {
+		return f
+	}
+	return FormatText
+}
+
+func looksHTML(t []byte) bool {
+	n := t
+	if len(n) > 512 {
+		n = n[:512]
+	}
+	l := bytes.ToLower(n)
+	for _, p := range []string{"<!doctype html", "<html", "<head", "<body", "<p>", "<p ", "<div", "<h1", "<h2", "<table", "<ul", "<article", "<section", "<title", "<meta"} {
+		if bytes.HasPrefix(l, []byte(p)) {
+			return true
+		}
+	}
+	return false
+}
