@@ -343,7 +343,8 @@ func formatByExt(ext string) string {
 var bom = []byte("\xef\xbb\xbf")
 
 // sniff guesses the format of text from its first bytes: JSON Lines when
-// the first non-blank line is a whole JSON object, JSON when it starts with
+// the first non-blank line is a whole JSON object (or an object that runs
+// past the window on its first line), JSON when it starts with
 // '{' or '[' and the window tokenizes as JSON, HTML for a document that
 // opens with a doctype or a common HTML tag, CSV or TSV when the first line
 // is a header naming column and the following complete lines have as many
@@ -357,11 +358,17 @@ func sniff(head []byte, column string) string {
 	switch t[0] {
 	case '{', '[':
 		first := t
-		if i := bytes.IndexByte(t, '\n'); i >= 0 {
+		i := bytes.IndexByte(t, '\n')
+		if i >= 0 {
 			first = t[:i]
 		}
 		first = bytes.TrimRight(first, " \t\r")
 		if t[0] == '{' && json.Valid(first) {
+			return FormatJSONL
+		}
+		if t[0] == '{' && i < 0 && len(head) >= sniffSize && jsonPrefixOK(t) {
+			// The first line does not end inside the window: a long
+			// record, read line by line.
 			return FormatJSONL
 		}
 		if jsonPrefixOK(t) {

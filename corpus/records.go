@@ -91,6 +91,9 @@ func (r *reader) record(n int, format string, rec []byte, path []string, where f
 // package comment. It returns the text, or a reason and a message.
 func fieldText(rec []byte, path []string) ([]byte, string, string) {
 	v := json.RawMessage(rec)
+	if rec[0] != '"' && rec[0] != '{' && rec[0] != '[' {
+		return nil, ReasonNotText, fmt.Sprintf("the record is %s, not text", kind(rec))
+	}
 	if rec[0] != '"' {
 		for i, part := range path {
 			name := strings.Join(path[:i+1], ".")
