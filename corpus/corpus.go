@@ -11,6 +11,12 @@
 // ".zst"/".zstd" suffix is decompressed first and the inner extension decides
 // (notes.jsonl.gz is JSON Lines); gzip and zstd magic numbers are also
 // recognised on sniffed inputs. Document.Format names the inner format.
+// Sniffing picks JSON Lines for text that starts with '{' and has a line
+// that is a whole JSON object, JSON for text starting with '{' or '[' that
+// tokenizes as JSON, HTML for text opening with a doctype or a common HTML
+// tag, CSV or TSV when the first line is a header of two or more fields that
+// names Options.Column and the next lines have as many fields, and text
+// otherwise. Options.Format overrides both extension and sniffing.
 //
 //   - "text", "markdown", "code": one document per file, bytes kept as they
 //     are (invalid UTF-8 included). Files larger than Options.StreamAbove are

@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"reflect"
 	"strings"
+	"syscall"
 	"testing"
 
 	"github.com/klauspost/compress/zstd"
@@ -332,6 +333,7 @@ func TestSniff(t *testing.T) {
 	tests := []struct{ in, want string }{
 		{`{"text": "a"}` + "\n" + `{"text": "b"}`, FormatJSONL},
 		{`{"text": "one object"}`, FormatJSONL},
+		{`{"text": }` + "\n" + `{"text": "b"}` + "\n", FormatJSONL},
 		{"{\n  \"text\": \"pretty\"\n}\n", FormatJSON},
 		{"[\n  {\"text\": \"a\"}\n]", FormatJSON},
 		{"[link](http://example.com) is markdown", FormatText},
@@ -597,6 +599,21 @@ func TestStream(t *testing.T) {
 	}
 	check(t, show(t, dir, items), []string{
 		fmt.Sprintf(`big.txt:0 text %q`, body), fmt.Sprintf(`big.txt.gz:0 text %q`, body), `small.txt:0 text "tiny"`})
+}
+
+func TestSpecialAndStdin(t *testing.T) {
+	dir := t.TempDir()
+	writeFiles(t, dir, map[string]string{"a.txt": "alpha", ".hidden/h.txt": "named directly"})
+	if err := syscall.Mkfifo(filepath.Join(dir, "pipe"), 0o644); err != nil {
+		t.Skip("no named pipes here:", err)
+	}
+	opt := Options{Stdin: strings.NewReader(`{"text": "from stdin"}`)}
+	check(t, show(t, dir, walk(t, []string{dir, "-", filepath.Join(dir, ".hidden")}, opt)), []string{
+		`a.txt:0 text "alpha"`,
+		`pipe:0 ~special`,
+		`-:1 jsonl "from stdin"`,
+		`.hidden/h.txt:0 text "named directly"`,
+	})
 }
 
 func TestHugeLine(t *testing.T) {

@@ -223,35 +223,27 @@ func (r *reader) run() error {
 		return r.skip(0, ReasonUnreadable, fmt.Sprintf("unknown format %q", format), true)
 	}
 
+	// size is the file size when the bytes on disk are the text.
 	size := int64(-1)
-	if comp == compNone && r.in.Size >= 0 {
+	if comp == compNone && r.in.Size > 0 {
 		size = r.in.Size
 	}
 	limit := r.opt.StreamAbove
-	if limit < 0 || (size >= 0 && size <= limit) {
-		text, err := io.ReadAll(in)
-		if err == nil {
-			err = r.src.err
-		}
-		if err != nil {
-			return r.readFailed(0, "", err)
-		}
-		if size < 0 {
-			size = int64(len(text))
-		}
-		return r.doc(&Document{Record: 0, Format: format, Text: text, Size: size})
-	}
 	var text []byte
-	if size < 0 {
-		// Unknown size: hold up to the limit, stream only what is larger.
-		text, err = io.ReadAll(io.LimitReader(in, limit+1))
-		if err == nil && int64(len(text)) <= limit {
+	if limit < 0 || size < 0 || size <= limit {
+		// Hold up to the limit; stream only what turns out larger.
+		src := io.Reader(in)
+		if limit >= 0 {
+			src = io.LimitReader(in, limit+1)
+		}
+		text, err = io.ReadAll(src)
+		if err == nil && (limit < 0 || int64(len(text)) <= limit) {
 			err = r.src.err
 		}
 		if err != nil {
 			return r.readFailed(0, "", err)
 		}
-		if int64(len(text)) <= limit {
+		if limit < 0 || int64(len(text)) <= limit {
 			return r.doc(&Document{Record: 0, Format: format, Text: text, Size: int64(len(text))})
 		}
 	}
@@ -343,8 +335,8 @@ func formatByExt(ext string) string {
 var bom = []byte("\xef\xbb\xbf")
 
 // sniff guesses the format of text from its first bytes: JSON Lines when
-// the first non-blank line is a whole JSON object (or an object that runs
-// past the window on its first line), JSON when it starts with
+// it starts with '{' and its first non-blank line, or a later complete line,
+// is a whole JSON object (or the first line runs past the window), JSON when it starts with
 // '{' or '[' and the window tokenizes as JSON, HTML for a document that
 // opens with a doctype or a common HTML tag, CSV or TSV when the first line
 // is a header naming column and the following complete lines have as many
@@ -363,7 +355,7 @@ func sniff(head []byte, column string) string {
 			first = t[:i]
 		}
 		first = bytes.TrimRight(first, " \t\r")
-		if t[0] == '{' && json.Valid(first) {
+		if t[0] == '{' && (json.Valid(first) || objectLine(t)) {
 			return FormatJSONL
 		}
 		if t[0] == '{' && i < 0 && len(head) >= sniffSize && jsonPrefixOK(t) {
@@ -384,6 +376,22 @@ func sniff(head []byte, column string) string {
 		return f
 	}
 	return FormatText
+}
+
+// objectLine reports whether some complete line of t is a JSON object on
+// its own.
+func objectLine(t []byte) bool {
+	for {
+		i := bytes.IndexByte(t, '\n')
+		if i < 0 {
+			return false
+		}
+		line := bytes.TrimSpace(t[:i])
+		if len(line) > 0 && line[0] == '{' && json.Valid(line) {
+			return true
+		}
+		t = t[i+1:]
+	}
 }
 
 func looksHTML(t []byte) bool {
