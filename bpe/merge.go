@@ -1,6 +1,9 @@
 package bpe
 
-import "math"
+import (
+	"math"
+	"slices"
+)
 
 // state is one worker's scratch space: a word cache and the buffers of the
 // merge loop. It is never shared between goroutines.
@@ -17,6 +20,7 @@ type state struct {
 	// for long pre-tokens
 	next, prev []int32
 	heap       []uint64
+	buckets    map[uint32][]int32
 }
 
 const (
@@ -117,11 +121,16 @@ func (s *state) mergeShort(p []byte) []uint32 {
 	return s.out
 }
 
-// mergeLong applies the merges to a long pre-token in O(n log n): the
-// symbols form a linked list, and a min-heap holds every mergeable pair
-// keyed by rank<<32 | position, so the lowest rank pops first and the
-// leftmost among equals. Entries made stale by an earlier merge are checked
-// and dropped when they surface.
+// mergeLong applies the merges to a long pre-token in O(n log n). The
+// symbols form a linked list; the mergeable pairs wait in one bucket per
+// rank, and a min-heap holds the ranks that have a bucket. The lowest rank's
+// bucket is worked through leftmost first, as a heap of single pairs would
+// order it, but a long run of one pair costs a sort instead of a heap
+// operation per pair. No merge can make a pair of its own rank (the merged
+// token differs from both parts); if one makes a pair of a lower rank,
+// which a learned merge list never does, the bucket is put back and the
+// lower rank goes first. Entries made stale by a merge are dropped when
+// reached.
 func (s *state) mergeLong(p []byte) []uint32 {
 	n := len(p)
 	syms := s.syms[:0]
@@ -133,51 +142,79 @@ func (s *state) mergeLong(p []byte) []uint32 {
 		next[i], prev[i] = int32(i+1), int32(i-1)
 	}
 	next[n-1] = -1
-	h := s.heap[:0]
+	if s.buckets == nil {
+		s.buckets = map[uint32][]int32{}
+	}
+	buckets := s.buckets
+	ranks := s.heap[:0]
+	add := func(r uint32, pos int32) {
+		b, ok := buckets[r]
+		if !ok || len(b) == 0 {
+			ranks = heapPush(ranks, uint64(r))
+		}
+		buckets[r] = append(b, pos)
+	}
 	for i := 0; i+1 < n; i++ {
 		if r, _ := s.rankOf(syms[i], syms[i+1]); r != noRank {
-			h = append(h, uint64(r)<<32|uint64(i))
+			add(r, int32(i))
 		}
 	}
-	heapify(h)
 	const dead = math.MaxUint32
-	for len(h) > 0 {
-		top := h[0]
-		h = heapPop(h)
-		pos := int32(uint32(top))
-		r := uint32(top >> 32)
-		if syms[pos] == dead {
-			continue
-		}
-		nx := next[pos]
-		if nx < 0 {
-			continue
-		}
-		cr, merged := s.rankOf(syms[pos], syms[nx])
-		if cr != r {
-			continue // stale
-		}
-		syms[pos] = merged
-		syms[nx] = dead
-		nn := next[nx]
-		next[pos] = nn
-		if nn >= 0 {
-			prev[nn] = pos
-			if r2, _ := s.rankOf(merged, syms[nn]); r2 != noRank {
-				h = heapPush(h, uint64(r2)<<32|uint64(pos))
+	for len(ranks) > 0 {
+		r := uint32(ranks[0])
+		ranks = heapPop(ranks)
+		bucket := buckets[r]
+		slices.Sort(bucket)
+		k := 0
+		for k < len(bucket) {
+			pos := bucket[k]
+			k++
+			if syms[pos] == dead {
+				continue
+			}
+			nx := next[pos]
+			if nx < 0 {
+				continue
+			}
+			cr, merged := s.rankOf(syms[pos], syms[nx])
+			if cr != r {
+				continue // stale
+			}
+			syms[pos] = merged
+			syms[nx] = dead
+			nn := next[nx]
+			next[pos] = nn
+			lower := false
+			if nn >= 0 {
+				prev[nn] = pos
+				if r2, _ := s.rankOf(merged, syms[nn]); r2 != noRank {
+					add(r2, pos)
+					lower = lower || r2 < r
+				}
+			}
+			if pv := prev[pos]; pv >= 0 {
+				if r2, _ := s.rankOf(syms[pv], merged); r2 != noRank {
+					add(r2, pv)
+					lower = lower || r2 < r
+				}
+			}
+			if lower {
+				break
 			}
 		}
-		if pv := prev[pos]; pv >= 0 {
-			if r2, _ := s.rankOf(syms[pv], merged); r2 != noRank {
-				h = heapPush(h, uint64(r2)<<32|uint64(pv))
-			}
+		rest := append(bucket[:0], bucket[k:]...)
+		if len(rest) > 0 {
+			buckets[r] = rest
+			ranks = heapPush(ranks, uint64(r))
+		} else {
+			delete(buckets, r)
 		}
 	}
 	out := s.out[:0]
 	for i := int32(0); i >= 0; i = next[i] {
 		out = append(out, syms[i])
 	}
-	s.syms, s.next, s.prev, s.heap, s.out = syms, next, prev, h, out
+	s.syms, s.next, s.prev, s.heap, s.out = syms, next, prev, ranks, out
 	return out
 }
 
@@ -189,12 +226,6 @@ func grow32(b []int32, n int) []int32 {
 }
 
 // A binary min-heap of uint64 keys.
-
-func heapify(h []uint64) {
-	for i := len(h)/2 - 1; i >= 0; i-- {
-		siftDown(h, i)
-	}
-}
 
 func siftDown(h []uint64, i int) {
 	n := len(h)

@@ -195,6 +195,39 @@ func lineOf(data []byte, off int64) int {
 	return bytes.Count(data[:off], []byte{'\n'}) + 1
 }
 
+// lineCounter gives the line of offsets that only grow, counting each
+// newline once.
+type lineCounter struct {
+	data []byte
+	off  int64
+	line int
+}
+
+func (c *lineCounter) at(off int64) int {
+	if off > int64(len(c.data)) {
+		off = int64(len(c.data))
+	}
+	if off > c.off {
+		c.line += bytes.Count(c.data[c.off:off], []byte{'\n'})
+		c.off = off
+	}
+	return c.line + 1
+}
+
+// skipSeparators returns the offset of the first byte at or after off that
+// is not white space, a comma or a colon: where the next JSON token starts.
+func skipSeparators(data []byte, off int64) int64 {
+	for off < int64(len(data)) {
+		switch data[off] {
+		case ' ', '\t', '\r', '\n', ',', ':':
+			off++
+			continue
+		}
+		break
+	}
+	return off
+}
+
 func parseVocabJSON(name string, data []byte) ([][]byte, error) {
 	if len(bytes.TrimSpace(data)) == 0 {
 		return nil, &posError{name, 0, "empty file"}
@@ -226,8 +259,9 @@ func parseVocabJSON(name string, data []byte) ([][]byte, error) {
 	}
 	var entries []entry
 	seen := map[string]int{} // token as written -> line
+	lines := lineCounter{data: data}
 	for dec.More() {
-		line := lineOf(data, dec.InputOffset())
+		line := lines.at(skipSeparators(data, dec.InputOffset()))
 		kt, err := dec.Token()
 		if err != nil {
 			return nil, syntax(err)
@@ -265,22 +299,22 @@ func parseVocabJSON(name string, data []byte) ([][]byte, error) {
 		return nil, &posError{name, 1, "the vocabulary object has no tokens"}
 	}
 	tokens := make([][]byte, len(entries))
-	lines := make([]int, len(entries))
+	lineOfID := make([]int, len(entries))
 	for _, e := range entries {
 		if e.id >= len(entries) {
 			return nil, &posError{name, e.line, fmt.Sprintf("token %q has id %d, beyond the vocabulary of %d tokens (ids run from 0 to %d)", SpellBytes(e.raw), e.id, len(entries), len(entries)-1)}
 		}
 		if tokens[e.id] != nil {
-			return nil, &posError{name, e.line, fmt.Sprintf("id %d is given twice (first on line %d)", e.id, lines[e.id])}
+			return nil, &posError{name, e.line, fmt.Sprintf("id %d is given twice (first on line %d)", e.id, lineOfID[e.id])}
 		}
 		tokens[e.id] = e.raw
-		lines[e.id] = e.line
+		lineOfID[e.id] = e.line
 	}
 	// Two spellings that unspell to the same bytes would make the same token twice.
 	byRaw := make(map[string]int, len(tokens))
 	for id, t := range tokens {
 		if other, dup := byRaw[string(t)]; dup {
-			return nil, &posError{name, lines[id], fmt.Sprintf("ids %d and %d spell the same bytes %q", other, id, t)}
+			return nil, &posError{name, lineOfID[id], fmt.Sprintf("ids %d and %d spell the same bytes %q", other, id, t)}
 		}
 		byRaw[string(t)] = id
 	}
