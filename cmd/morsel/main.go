@@ -1,0 +1,82 @@
+// Command morsel weighs document collections in a model's own BPE tokens
+// before a batch job: exact counts, what overflows the context window, how
+// to split it, what it costs, and which words the vocabulary shatters.
+package main
+
+import (
+	"errors"
+	"fmt"
+	"os"
+)
+
+// Exit statuses, as DESIGN.md fixes them.
+const (
+	exitOK       = 0
+	exitInput    = 1 // an input or vocabulary could not be read
+	exitUsage    = 2 // bad usage
+	exitCheck    = 3 // the check the command exists for failed
+	exitInternal = 1
+)
+
+func main() {
+	err := newRoot().Execute()
+	os.Exit(exitStatus(err))
+}
+
+// exitStatus maps a command's error to the process exit status, printing
+// the error on standard error.
+func exitStatus(err error) int {
+	if err == nil {
+		return exitOK
+	}
+	var ue *usageError
+	var ce *checkFailed
+	var ie *inputError
+	switch {
+	case errors.As(err, &ce):
+		// The report already said what failed; say it once more briefly.
+		fmt.Fprintf(os.Stderr, "morsel: %s\n", ce.msg)
+		return exitCheck
+	case errors.As(err, &ie):
+		if ie.err != nil {
+			fmt.Fprintf(os.Stderr, "morsel: %v\n", ie.err)
+		}
+		return exitInput
+	case errors.As(err, &ue):
+		fmt.Fprintf(os.Stderr, "morsel: %v\n(see morsel %s --help)\n", ue.err, ue.cmd)
+		return exitUsage
+	}
+	fmt.Fprintf(os.Stderr, "morsel: %v\n", err)
+	return exitInternal
+}
+
+// usageError is a mistake in the command line: exit status 2.
+type usageError struct {
+	cmd string
+	err error
+}
+
+func (e *usageError) Error() string { return e.err.Error() }
+func (e *usageError) Unwrap() error { return e.err }
+
+func usagef(cmd, format string, args ...any) error {
+	return &usageError{cmd: cmd, err: fmt.Errorf(format, args...)}
+}
+
+// inputError is an input or vocabulary that could not be read: exit status
+// 1. err is nil when the report has already named what was skipped.
+type inputError struct{ err error }
+
+func (e *inputError) Error() string {
+	if e.err == nil {
+		return "some inputs could not be read"
+	}
+	return e.err.Error()
+}
+func (e *inputError) Unwrap() error { return e.err }
+
+// checkFailed is the command's own check failing (an overflow in fit):
+// exit status 3.
+type checkFailed struct{ msg string }
+
+func (e *checkFailed) Error() string { return e.msg }

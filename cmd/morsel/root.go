@@ -1,0 +1,199 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+	"runtime"
+	"strings"
+
+	"github.com/schollz/progressbar/v3"
+	"github.com/spf13/cobra"
+	"golang.org/x/term"
+
+	"morsel/bpe"
+	"morsel/corpus"
+	"morsel/report"
+)
+
+// shared holds the flags every command takes.
+type shared struct {
+	vocab, merges string
+	format        string
+	workers       int
+	quiet         bool
+	specials      string
+	splitPattern  string
+	window        int // set by --window where a command has it; 0 keeps the vocabulary's
+
+	stdout, stderr io.Writer
+}
+
+func newRoot() *cobra.Command {
+	sh := &shared{stdout: os.Stdout, stderr: os.Stderr}
+	root := &cobra.Command{
+		Use:   "morsel",
+		Short: "Weigh a document set in a model's own BPE tokens before a batch job",
+		Long: `morsel weighs a document set in the tokens of a model's own byte-pair vocabulary:
+exact counts per document and in total, which documents overflow the context window once
+the prompt frame and the reserved answer are added, how to split them, what the run costs
+at your rates, and which words the vocabulary breaks into many pieces.
+
+With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-token window).`,
+		Example: `  morsel survey testdata/demo
+  morsel pieces "Bathyphorus quillandri"
+  morsel fit testdata/demo --frame testdata/demo/frame.txt --reserve 200
+  morsel survey exports/ --vocab models/mine/ --format json > weights.json`,
+		SilenceUsage:  true,
+		SilenceErrors: true,
+	}
+	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
+		return &usageError{cmd: c.Name(), err: err}
+	})
+	pf := root.PersistentFlags()
+	pf.StringVar(&sh.vocab, "vocab", "", "vocabulary JSON file (token -> id), or a folder holding vocab.json+merges.txt or encoder.json+vocab.bpe (default: embedded GPT-2)")
+	pf.StringVar(&sh.merges, "merges", "", "merges file, one ranked pair a line (with --vocab FILE)")
+	pf.StringVar(&sh.format, "format", "table", "output: table, json, csv or md")
+	pf.IntVar(&sh.workers, "workers", runtime.NumCPU(), "documents encoded at once")
+	pf.BoolVarP(&sh.quiet, "quiet", "q", false, "no progress or notes on standard error")
+	pf.StringVar(&sh.specials, "specials", "text", "special-token strings such as <|endoftext|> in a text: text (ordinary text) or honor (their ids)")
+	pf.StringVar(&sh.splitPattern, "split-pattern", "", "pre-tokenization regular expression instead of the GPT-2 rule (look-ahead allowed)")
+	root.AddCommand(newPieces(sh), newSurvey(sh))
+	for _, add := range extraCommands {
+		root.AddCommand(add(sh))
+	}
+	return root
+}
+
+// extraCommands lets each command file register itself.
+var extraCommands []func(*shared) *cobra.Command
+
+// encoder loads the vocabulary the flags name and builds an encoder.
+func (sh *shared) encoder() (*bpe.Encoder, error) {
+	v, err := sh.loadVocab()
+	if err != nil {
+		return nil, err
+	}
+	return sh.encoderFor(v)
+}
+
+func (sh *shared) loadVocab() (*bpe.Vocab, error) {
+	if sh.vocab == "" && sh.merges != "" {
+		return nil, usagef("morsel", "--merges needs --vocab")
+	}
+	if sh.vocab == "" {
+		return bpe.Default(), nil
+	}
+	v, err := bpe.LoadFiles(sh.vocab, sh.merges)
+	if err != nil {
+		return nil, &inputError{err}
+	}
+	return v, nil
+}
+
+func (sh *shared) encoderFor(v *bpe.Vocab) (*bpe.Encoder, error) {
+	mode, err := bpe.ParseSpecialMode(sh.specials)
+	if err != nil {
+		return nil, usagef("morsel", "--specials: %v", err)
+	}
+	enc, err := bpe.NewEncoder(v, bpe.Options{Specials: mode, SplitPattern: sh.splitPattern})
+	if err != nil {
+		return nil, usagef("morsel", "--split-pattern: %v", err)
+	}
+	return enc, nil
+}
+
+// outFormat checks --format against the formats a command offers.
+func (sh *shared) outFormat(cmd string, allowed ...report.Format) (report.Format, error) {
+	f, err := report.ParseFormat(sh.format, allowed...)
+	if err != nil {
+		return "", usagef(cmd, "--format: %v", err)
+	}
+	return f, nil
+}
+
+// note prints a line on standard error unless --quiet.
+func (sh *shared) note(format string, args ...any) {
+	if !sh.quiet {
+		fmt.Fprintf(sh.stderr, "morsel: "+format+"\n", args...)
+	}
+}
+
+// corpusFlags are the flags of every command that walks documents.
+type corpusFlags struct {
+	field, column    string
+	include, exclude []string
+	hidden           bool
+	as               string
+}
+
+func addCorpusFlags(c *cobra.Command, cf *corpusFlags) {
+	f := c.Flags()
+	f.StringVar(&cf.field, "field", "text", "JSON / JSON Lines field holding the text (dotted path for nesting)")
+	f.StringVar(&cf.column, "column", "text", "CSV / TSV column holding the text")
+	f.StringSliceVar(&cf.include, "include", nil, "only files matching these globs (repeatable; ** spans folders)")
+	f.StringSliceVar(&cf.exclude, "exclude", nil, "leave out files and folders matching these globs")
+	f.BoolVar(&cf.hidden, "hidden", false, "walk hidden files and folders (such as .git) too")
+	f.StringVar(&cf.as, "as", "", "read every input as this format: text, markdown, code, html, jsonl, json, csv, tsv")
+}
+
+func (cf *corpusFlags) options() corpus.Options {
+	return corpus.Options{Field: cf.field, Column: cf.column, Include: cf.include, Exclude: cf.exclude, Hidden: cf.hidden, Format: cf.as}
+}
+
+// progress returns a progress bar on standard error when it is a terminal
+// and --quiet is not given, else nil.
+func (sh *shared) progress() report.Progress {
+	if sh.quiet {
+		return nil
+	}
+	f, ok := sh.stderr.(*os.File)
+	if !ok || !term.IsTerminal(int(f.Fd())) {
+		return nil
+	}
+	return &bar{w: f}
+}
+
+// bar shows files and bytes read, tokens counted, the rate and the time
+// left.
+type bar struct {
+	w      io.Writer
+	pb     *progressbar.ProgressBar
+	files  int
+	done   int
+	tokens int64
+}
+
+func (b *bar) Plan(files int, bytes int64) {
+	b.files = files
+	b.pb = progressbar.NewOptions64(bytes,
+		progressbar.OptionSetWriter(b.w),
+		progressbar.OptionShowBytes(true),
+		progressbar.OptionSetWidth(28),
+		progressbar.OptionThrottle(100_000_000),
+		progressbar.OptionShowElapsedTimeOnFinish(),
+		progressbar.OptionSetPredictTime(true),
+		progressbar.OptionClearOnFinish(),
+		progressbar.OptionSetTheme(progressbar.Theme{Saucer: "=", SaucerHead: ">", SaucerPadding: " ", BarStart: "[", BarEnd: "]"}),
+	)
+	b.describe()
+}
+
+func (b *bar) describe() {
+	b.pb.Describe(fmt.Sprintf("weighing %d/%d files, %s tokens", b.done, b.files, report.Num(b.tokens)))
+}
+
+func (b *bar) FileDone(n int64) {
+	b.done++
+	if n > 0 {
+		b.pb.Add64(n)
+	}
+	b.describe()
+}
+
+func (b *bar) Tokens(n int) { b.tokens += int64(n) }
+
+func (b *bar) Finish() {
+	b.pb.Finish()
+	fmt.Fprint(b.w, strings.Repeat(" ", 0))
+}
