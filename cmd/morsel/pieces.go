@@ -46,7 +46,7 @@ standard input when neither is given.`,
 			case len(args) > 0:
 				text = []byte(strings.Join(args, " "))
 			default:
-				text, err = io.ReadAll(os.Stdin)
+				text, err = io.ReadAll(sh.stdin)
 				if err != nil {
 					return &inputError{fmt.Errorf("reading standard input: %w", err)}
 				}

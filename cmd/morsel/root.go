@@ -26,11 +26,16 @@ type shared struct {
 	splitPattern  string
 	window        int // set by --window where a command has it; 0 keeps the vocabulary's
 
+	stdin          io.Reader
 	stdout, stderr io.Writer
 }
 
-func newRoot() *cobra.Command {
-	sh := &shared{stdout: os.Stdout, stderr: os.Stderr}
+func newRoot() *cobra.Command { return newRootIO(os.Stdin, os.Stdout, os.Stderr) }
+
+// newRootIO builds the command tree with its own standard streams, so that
+// tests can run commands in-process.
+func newRootIO(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
+	sh := &shared{stdin: stdin, stdout: stdout, stderr: stderr}
 	root := &cobra.Command{
 		Use:   "morsel",
 		Short: "Weigh a document set in a model's own BPE tokens before a batch job",
@@ -125,8 +130,11 @@ type corpusFlags struct {
 	include, exclude []string
 	hidden           bool
 	as               string
+	stdin            io.Reader
 }
 
+// addCorpusFlags adds the document-walking flags to c. Standard input
+// ("-") is read from os.Stdin; set cf.stdin to read another reader.
 func addCorpusFlags(c *cobra.Command, cf *corpusFlags) {
 	f := c.Flags()
 	f.StringVar(&cf.field, "field", "text", "JSON / JSON Lines field holding the text (dotted path for nesting)")
@@ -138,7 +146,7 @@ func addCorpusFlags(c *cobra.Command, cf *corpusFlags) {
 }
 
 func (cf *corpusFlags) options() corpus.Options {
-	return corpus.Options{Field: cf.field, Column: cf.column, Include: cf.include, Exclude: cf.exclude, Hidden: cf.hidden, Format: cf.as}
+	return corpus.Options{Stdin: cf.stdin, Field: cf.field, Column: cf.column, Include: cf.include, Exclude: cf.exclude, Hidden: cf.hidden, Format: cf.as}
 }
 
 // progress returns a progress bar on standard error when it is a terminal

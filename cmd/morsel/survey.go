@@ -57,6 +57,7 @@ be read; the report still covers all the rest.`,
 		},
 	}
 	addCorpusFlags(c, &cf)
+	cf.stdin = sh.stdin
 	c.Flags().IntVar(&rows, "rows", 50, "per-document rows in the table view (0: all)")
 	return c
 }
