@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"strings"
 )
 
 // Exit statuses, as DESIGN.md fixes them.
@@ -44,6 +45,10 @@ func exitStatus(err error) int {
 		return exitInput
 	case errors.As(err, &ue):
 		fmt.Fprintf(os.Stderr, "morsel: %v\n(see morsel %s --help)\n", ue.err, ue.cmd)
+		return exitUsage
+	}
+	if strings.HasPrefix(err.Error(), "unknown command") {
+		fmt.Fprintf(os.Stderr, "morsel: %v\n(see morsel --help)\n", err)
 		return exitUsage
 	}
 	fmt.Fprintf(os.Stderr, "morsel: %v\n", err)

@@ -67,6 +67,17 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
 	for _, add := range extraCommands {
 		root.AddCommand(add(sh))
 	}
+	for _, c := range root.Commands() {
+		if c.Args != nil {
+			args, name := c.Args, c.Name()
+			c.Args = func(c *cobra.Command, a []string) error {
+				if err := args(c, a); err != nil {
+					return &usageError{cmd: name, err: err}
+				}
+				return nil
+			}
+		}
+	}
 	return root
 }
 
