@@ -1,0 +1,100 @@
+package main
+
+import (
+	"fmt"
+	"os"
+
+	"github.com/spf13/cobra"
+
+	"morsel/corpus"
+	"morsel/report"
+)
+
+func init() { extraCommands = append(extraCommands, newFragments) }
+
+func newFragments(sh *shared) *cobra.Command {
+	var cf corpusFlags
+	var minPieces float64
+	var minCount int64
+	var top, docRows int
+	var termsFile string
+	c := &cobra.Command{
+		Use:   "fragments PATH...",
+		Short: "Rank the words and glossary terms the vocabulary breaks into many pieces",
+		Long: `fragments finds the words (by the Unicode word-boundary rules) that the vocabulary breaks
+into many pieces, and ranks them by the tokens they waste: excess = occurrences x (pieces - 1).
+A word's pieces are the tokens that spell it where it stands in the text, its leading space
+included; a token shared by two words counts for both.
+
+Beside the ranking it gives tokens per word over the corpus, by script (Latin, Cyrillic,
+Greek, Arabic, Hebrew, Devanagari, Han, Hiragana and Katakana, Hangul, digits, other) and by
+document, with the share of words that are one token; and the saving: the listed words'
+excess as a share of all tokens, the most that adding them to the vocabulary could save (an
+upper bound, never a promise).
+
+--terms checks a glossary, one term a line (several words allowed; lines starting with # are
+comments): each term's pieces alone and after a space, its occurrences in the corpus, and a
+flag when it reaches --min-pieces.`,
+		Example: `  morsel fragments testdata/demo
+  morsel fragments testdata/demo --terms testdata/demo/terms.txt
+  morsel fragments exports/tickets.jsonl --min-pieces 4 --min-count 5 --top 20 --format json`,
+		Args: cobra.MinimumNArgs(1),
+		RunE: func(c *cobra.Command, args []string) error {
+			f, err := sh.outFormat("fragments", report.Table, report.JSON, report.CSV, report.Markdown)
+			if err != nil {
+				return err
+			}
+			if minPieces < 1 {
+				return usagef("fragments", "--min-pieces %g: want 1 or more", minPieces)
+			}
+			if minCount < 1 {
+				return usagef("fragments", "--min-count %d: want 1 or more", minCount)
+			}
+			if top < 0 || docRows < 0 {
+				return usagef("fragments", "--top and --doc-rows take 0 (all) or more")
+			}
+			var terms []report.Term
+			if termsFile != "" {
+				fh, err := os.Open(termsFile)
+				if err != nil {
+					return &inputError{fmt.Errorf("glossary: %w", err)}
+				}
+				terms, err = report.ParseGlossary(termsFile, fh)
+				fh.Close()
+				if err != nil {
+					return &inputError{fmt.Errorf("glossary: %w", err)}
+				}
+			}
+			enc, err := sh.encoder()
+			if err != nil {
+				return err
+			}
+			fr := report.NewFragmenter(enc, terms)
+			prog := sh.progress()
+			err = report.Walk(args, cf.options(), sh.workers, prog, fr.Scan,
+				func(it corpus.Item, dw *report.DocWords, err error) error {
+					if prog != nil && dw != nil {
+						prog.Tokens(dw.Tokens)
+					}
+					fr.Add(it, dw, err)
+					return nil
+				})
+			if err != nil {
+				return err
+			}
+			r := fr.Finish(report.FragmentOptions{MinPieces: minPieces, MinCount: minCount, Top: top})
+			if err := report.WriteFragments(sh.stdout, f, r, docRows); err != nil {
+				return err
+			}
+			return sh.skipStatus(r.Skipped)
+		},
+	}
+	addCorpusFlags(c, &cf)
+	fl := c.Flags()
+	fl.Float64Var(&minPieces, "min-pieces", 3, "list words of at least this many pieces per occurrence (on average)")
+	fl.Int64Var(&minCount, "min-count", 1, "list words that occur at least this many times")
+	fl.IntVar(&top, "top", 50, "list at most this many words (0: all)")
+	fl.StringVar(&termsFile, "terms", "", "glossary file to check, one term a line")
+	fl.IntVar(&docRows, "doc-rows", 10, "documents in the table of tokens per word (0: all)")
+	return c
+}
