@@ -48,9 +48,7 @@ func (v *Vocab) AppendCompact(dst []byte) []byte {
 		dst = append(dst, t...)
 	}
 	ranked := make([][3]uint32, v.nMerges)
-	for k, rm := range v.merges {
-		ranked[rm>>32] = [3]uint32{uint32(k >> 32), uint32(k), uint32(rm)}
-	}
+	v.merges.each(func(k, rm uint64) { ranked[rm>>32] = [3]uint32{uint32(k >> 32), uint32(k), uint32(rm)} })
 	dst = binary.AppendUvarint(dst, uint64(len(ranked)))
 	for _, m := range ranked {
 		for _, x := range m {
@@ -108,14 +106,14 @@ func DecodeCompact(data []byte) (*Vocab, error) {
 	if bad || nm > uint64(len(p)) {
 		return nil, fmt.Errorf("%w: merge count", errCompact)
 	}
-	v.merges = make(map[uint64]uint64, nm)
+	v.merges = newU64Table(int(nm))
 	for r := uint64(0); r < nm; r++ {
 		a, b, m := uv(), uv(), uv()
 		if a >= nt || b >= nt || m >= nt {
 			bad = true
 			break
 		}
-		v.merges[pairKey(uint32(a), uint32(b))] = r<<32 | m
+		v.merges.put(pairKey(uint32(a), uint32(b)), r<<32|m)
 	}
 	if bad {
 		return nil, fmt.Errorf("%w: truncated", errCompact)

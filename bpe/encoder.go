@@ -87,7 +87,7 @@ func (e *Encoder) get() *state {
 	case s := <-e.free:
 		return s
 	default:
-		return &state{v: e.v, cache: make(map[string]uint64, 1024), max: e.maxWords}
+		return newState(e.v, e.maxWords)
 	}
 }
 

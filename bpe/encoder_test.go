@@ -93,7 +93,7 @@ func TestSpecialModes(t *testing.T) {
 // mergeLong (heap) and mergeShort (scan) must agree on every input.
 func TestLongAndShortMergeAgree(t *testing.T) {
 	v := Default()
-	s := &state{v: v, cache: map[string]uint64{}, max: 100}
+	s := newState(v, 100)
 	rng := rand.New(rand.NewSource(1))
 	alphabets := []string{"a", "ab", "abc ", "the quick brown", "0123456789", "日本語", "ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/"}
 	for trial := 0; trial < 400; trial++ {
@@ -217,8 +217,8 @@ func TestCacheBoundedAndConsistent(t *testing.T) {
 		}
 	}
 	s := e.get()
-	if len(s.cache) > 50 {
-		t.Fatalf("cache holds %d words, bound 50", len(s.cache))
+	if len(s.cache) > 50 || s.short.n > 50 {
+		t.Fatalf("cache holds %d + %d words, bound 50 each", len(s.cache), s.short.n)
 	}
 }
 

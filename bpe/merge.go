@@ -9,7 +9,8 @@ import (
 // merge loop. It is never shared between goroutines.
 type state struct {
 	v     *Vocab
-	cache map[string]uint64 // pre-token bytes -> offset<<32 | length in arena
+	short u64table          // pre-tokens of 2-7 bytes, packed into the key -> offset<<32 | length in arena
+	cache map[string]uint64 // longer pre-tokens, up to cacheLongest bytes -> the same
 	arena []uint32
 	max   int
 
@@ -32,6 +33,32 @@ const (
 	shortest = 48
 )
 
+func newState(v *Vocab, maxWords int) *state {
+	return &state{v: v, short: newU64Table(maxWords), cache: make(map[string]uint64, 1024), max: maxWords}
+}
+
+// packShort packs a pre-token of 2 to 7 bytes, and its length, into one
+// key: no hashing of strings for the commonest words.
+func packShort(p []byte) uint64 {
+	k := uint64(len(p)) << 56
+	for i, b := range p {
+		k |= uint64(b) << (8 * i)
+	}
+	return k
+}
+
+// cached returns the cached location of p's ids.
+func (s *state) cached(p []byte) (uint64, bool) {
+	if len(p) < 8 {
+		return s.short.get(packShort(p))
+	}
+	if len(p) <= cacheLongest {
+		loc, ok := s.cache[string(p)]
+		return loc, ok
+	}
+	return 0, false
+}
+
 // piece returns the ids of one pre-token. The slice is valid until the next
 // call.
 func (s *state) piece(p []byte) []uint32 {
@@ -39,10 +66,8 @@ func (s *state) piece(p []byte) []uint32 {
 		s.out = append(s.out[:0], s.v.byteID[p[0]])
 		return s.out
 	}
-	if len(p) <= cacheLongest {
-		if loc, ok := s.cache[string(p)]; ok {
-			return s.arena[loc>>32 : loc>>32+loc&0xffffffff]
-		}
+	if loc, ok := s.cached(p); ok {
+		return s.arena[loc>>32 : loc>>32+loc&0xffffffff]
 	}
 	var ids []uint32
 	if len(p) <= shortest {
@@ -51,13 +76,18 @@ func (s *state) piece(p []byte) []uint32 {
 		ids = s.mergeLong(p)
 	}
 	if len(p) <= cacheLongest {
-		if len(s.cache) >= s.max {
+		if s.short.full() || len(s.cache) >= s.max {
+			s.short.reset()
 			clear(s.cache)
 			s.arena = s.arena[:0]
 		}
-		off := len(s.arena)
+		loc := uint64(len(s.arena))<<32 | uint64(len(ids))
 		s.arena = append(s.arena, ids...)
-		s.cache[string(p)] = uint64(off)<<32 | uint64(len(ids))
+		if len(p) < 8 {
+			s.short.put(packShort(p), loc)
+		} else {
+			s.cache[string(p)] = loc
+		}
 	}
 	return ids
 }
@@ -67,16 +97,14 @@ func (s *state) count(p []byte) int {
 	if len(p) == 1 {
 		return 1
 	}
-	if len(p) <= cacheLongest {
-		if loc, ok := s.cache[string(p)]; ok {
-			return int(loc & 0xffffffff)
-		}
+	if loc, ok := s.cached(p); ok {
+		return int(loc & 0xffffffff)
 	}
 	return len(s.piece(p))
 }
 
 func (s *state) rankOf(a, b uint32) (rank, merged uint32) {
-	if rm, ok := s.v.merges[pairKey(a, b)]; ok {
+	if rm, ok := s.v.merges.get(pairKey(a, b)); ok {
 		return uint32(rm >> 32), uint32(rm)
 	}
 	return noRank, 0
@@ -133,6 +161,10 @@ func (s *state) mergeShort(p []byte) []uint32 {
 // reached.
 func (s *state) mergeLong(p []byte) []uint32 {
 	n := len(p)
+	if cap(s.syms) < n {
+		s.syms = make([]uint32, 0, n)
+		s.out = make([]uint32, 0, n)
+	}
 	syms := s.syms[:0]
 	for _, b := range p {
 		syms = append(syms, s.v.byteID[b])
@@ -203,12 +235,13 @@ func (s *state) mergeLong(p []byte) []uint32 {
 			}
 		}
 		rest := append(bucket[:0], bucket[k:]...)
+		buckets[r] = rest // an empty bucket keeps its room for the next word
 		if len(rest) > 0 {
-			buckets[r] = rest
 			ranks = heapPush(ranks, uint64(r))
-		} else {
-			delete(buckets, r)
 		}
+	}
+	if len(buckets) > 4096 {
+		clear(buckets)
 	}
 	out := s.out[:0]
 	for i := int32(0); i >= 0; i = next[i] {

@@ -182,4 +182,3 @@ func toyPieces(e *Encoder, word string) string {
 	}
 	return strings.Join(parts, " ")
 }
-

@@ -20,7 +20,7 @@ type Vocab struct {
 	name     string
 	tokens   [][]byte          // id -> raw bytes
 	byteID   [256]uint32       // byte value -> id of its one-byte token
-	merges   map[uint64]uint64 // left<<32|right -> rank<<32|merged id
+	merges   u64table          // left<<32|right -> rank<<32|merged id
 	nMerges  int
 	specials []Special
 	window   int
@@ -327,7 +327,7 @@ func (v *Vocab) parseMerges(name string, data []byte) error {
 	if len(bytes.TrimSpace(data)) == 0 {
 		return &posError{name, 0, "empty file"}
 	}
-	v.merges = make(map[uint64]uint64, bytes.Count(data, []byte{'\n'})+1)
+	v.merges = newU64Table(bytes.Count(data, []byte{'\n'}) + 1)
 	firstLine := map[uint64]int{}
 	rank := 0
 	lineNo := 0
@@ -367,7 +367,7 @@ func (v *Vocab) parseMerges(name string, data []byte) error {
 			return &posError{name, lineNo, fmt.Sprintf("merge %q appears twice (first on line %d)", line, first)}
 		}
 		firstLine[key] = lineNo
-		v.merges[key] = uint64(rank)<<32 | uint64(merged)
+		v.merges.put(key, uint64(rank)<<32|uint64(merged))
 		rank++
 	}
 	if rank == 0 {
@@ -389,9 +389,7 @@ func (v *Vocab) findSpecials() {
 	for _, id := range v.byteID {
 		made[id] = true
 	}
-	for _, rm := range v.merges {
-		made[uint32(rm)] = true
-	}
+	v.merges.each(func(_, rm uint64) { made[uint32(rm)] = true })
 	v.specials = v.specials[:0]
 	for id, ok := range made {
 		if !ok && len(v.tokens[id]) > 0 {

@@ -24,14 +24,14 @@ func TestDefaultVocabFacts(t *testing.T) {
 	// ids 0-255 are the byte symbols and id 256+k is merge line k (SOURCE.md).
 	for k := 0; k < 50000; k += 997 {
 		found := false
-		for key, rm := range v.merges {
+		v.merges.each(func(key, rm uint64) {
 			if int(rm>>32) == k {
 				found = true
 				if int(uint32(rm)) != 256+k {
 					t.Fatalf("merge %d (%d,%d) makes id %d, want %d", k, key>>32, uint32(key), uint32(rm), 256+k)
 				}
 			}
-		}
+		})
 		if !found {
 			t.Fatalf("no merge of rank %d", k)
 		}
@@ -53,14 +53,14 @@ func TestCompactMatchesReadableFiles(t *testing.T) {
 			t.Fatalf("token %d differs: %q vs %q", id, files.tokens[id], emb.tokens[id])
 		}
 	}
-	if len(files.merges) != len(emb.merges) {
+	if files.merges.n != emb.merges.n {
 		t.Fatalf("merge counts differ")
 	}
-	for k, rm := range files.merges {
-		if emb.merges[k] != rm {
+	files.merges.each(func(k, rm uint64) {
+		if got, _ := emb.merges.get(k); got != rm {
 			t.Fatalf("merge %x differs", k)
 		}
-	}
+	})
 	if files.byteID != emb.byteID {
 		t.Fatal("byte ids differ")
 	}

@@ -5,6 +5,7 @@ import (
 	"io"
 	"os"
 	"runtime"
+	"runtime/pprof"
 	"strings"
 
 	"github.com/schollz/progressbar/v3"
@@ -63,6 +64,27 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
 	pf.BoolVarP(&sh.quiet, "quiet", "q", false, "no progress or notes on standard error")
 	pf.StringVar(&sh.specials, "specials", "text", "special-token strings such as <|endoftext|> in a text: text (ordinary text) or honor (their ids)")
 	pf.StringVar(&sh.splitPattern, "split-pattern", "", "pre-tokenization regular expression instead of the GPT-2 rule (look-ahead allowed)")
+	var cpuprofile string
+	pf.StringVar(&cpuprofile, "cpuprofile", "", "write a CPU profile to this file (for development)")
+	pf.MarkHidden("cpuprofile")
+	var profFile *os.File
+	root.PersistentPreRunE = func(c *cobra.Command, args []string) error {
+		if cpuprofile == "" {
+			return nil
+		}
+		f, err := os.Create(cpuprofile)
+		if err != nil {
+			return err
+		}
+		profFile = f
+		return pprof.StartCPUProfile(f)
+	}
+	root.PersistentPostRun = func(c *cobra.Command, args []string) {
+		if profFile != nil {
+			pprof.StopCPUProfile()
+			profFile.Close()
+		}
+	}
 	root.AddCommand(newPieces(sh), newSurvey(sh))
 	for _, add := range extraCommands {
 		root.AddCommand(add(sh))

@@ -10,6 +10,7 @@ import (
 func newSurvey(sh *shared) *cobra.Command {
 	var cf corpusFlags
 	var rows int
+	var sampleOf string
 	c := &cobra.Command{
 		Use:   "survey PATH...",
 		Short: "Weigh a document set: tokens per document and in total, and their spread",
@@ -27,7 +28,7 @@ be read; the report still covers all the rest.`,
   morsel survey docs/ --include '*.md' --exclude 'drafts/**' --format csv > weights.csv`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
-			f, err := sh.outFormat("survey", report.Table, report.JSON, report.CSV, report.Markdown)
+			f, err := sh.outFormat("survey", report.Table, report.JSON, report.CSV, report.Markdown, report.HTML)
 			if err != nil {
 				return err
 			}
@@ -37,8 +38,13 @@ be read; the report still covers all the rest.`,
 			}
 			sv := report.NewSurveyor(enc.Vocab().Info())
 			prog := sh.progress()
-			err = report.Walk(args, cf.options(), sh.workers, prog,
-				func(d *corpus.Document) (report.Weight, error) { return report.Weigh(enc, d) },
+			work := func(d *corpus.Document) (report.Weight, error) { return report.Weigh(enc, d) }
+			var sampler *report.Sampler
+			if f == report.HTML {
+				sampler = report.NewSampler(enc, sampleOf)
+				work = sampler.Weigh
+			}
+			err = report.Walk(args, cf.options(), sh.workers, prog, work,
 				func(it corpus.Item, w report.Weight, err error) error {
 					if prog != nil {
 						prog.Tokens(w.Tokens)
@@ -50,7 +56,12 @@ be read; the report still covers all the rest.`,
 				return err
 			}
 			s := sv.Finish()
-			if err := report.WriteSurvey(sh.stdout, f, s, rows); err != nil {
+			if f == report.HTML {
+				err = writeSurveyHTML(sh, s, sampler, sampleOf, rows)
+			} else {
+				err = report.WriteSurvey(sh.stdout, f, s, rows)
+			}
+			if err != nil {
 				return err
 			}
 			return sh.skipStatus(s.Skipped)
@@ -58,8 +69,21 @@ be read; the report still covers all the rest.`,
 	}
 	addCorpusFlags(c, &cf)
 	cf.stdin = sh.stdin
-	c.Flags().IntVar(&rows, "rows", 50, "per-document rows in the table view (0: all)")
+	c.Flags().IntVar(&rows, "rows", 50, "per-document rows in the table and html views (0: all)")
+	c.Flags().StringVar(&sampleOf, "sample", "", "with --format html: the document (SOURCE or SOURCE:RECORD) shown split into tokens (default: the one with the most tokens per word)")
 	return c
+}
+
+// writeSurveyHTML renders the survey page with its sample document.
+func writeSurveyHTML(sh *shared, s *report.Survey, sampler *report.Sampler, want string, rows int) error {
+	sample, err := sampler.Sample()
+	if err != nil {
+		sh.note("%v; the page is written without it", err)
+	}
+	if sample == nil && want != "" {
+		sh.note("--sample %s: no such document was counted; the page is written without a sample", want)
+	}
+	return report.WriteSurveyHTML(sh.stdout, s, sample, rows)
 }
 
 // skipStatus returns the exit error for a report's skips: exit status 1
