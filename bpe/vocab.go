@@ -18,9 +18,9 @@ import (
 // merge produces. A Vocab is read-only once loaded and safe to share.
 type Vocab struct {
 	name     string
-	tokens   [][]byte          // id -> raw bytes
-	byteID   [256]uint32       // byte value -> id of its one-byte token
-	merges   u64table          // left<<32|right -> rank<<32|merged id
+	tokens   [][]byte    // id -> raw bytes
+	byteID   [256]uint32 // byte value -> id of its one-byte token
+	merges   u64table    // left<<32|right -> rank<<32|merged id
 	nMerges  int
 	specials []Special
 	window   int
