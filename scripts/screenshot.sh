@@ -21,8 +21,9 @@ profile=$(mktemp -d)
 trap 'rm -rf "$page" "$profile"' EXIT
 go run ./cmd/morsel survey testdata/demo --format html --quiet > "$page"
 mkdir -p "$(dirname "$out")"
+case $out in /*) abs=$out ;; *) abs=$PWD/$out ;; esac
 "$browser" --headless --no-sandbox --disable-gpu --disable-quic --no-first-run \
 	--disable-background-networking --disable-component-update --disable-sync \
 	--hide-scrollbars --user-data-dir="$profile" \
-	--screenshot="$PWD/$out" --window-size="$size" "file://$page" 2>/dev/null
+	--screenshot="$abs" --window-size="$size" "file://$page" 2>/dev/null
 echo "wrote $out ($(wc -c < "$out") bytes)"

@@ -1,0 +1,187 @@
+package report
+
+import (
+	"fmt"
+	"html/template"
+	"io"
+	"math"
+)
+
+// WriteSurveyHTML writes the survey as a self-contained HTML page: key
+// figures, a histogram of tokens per document with the window drawn in, the
+// largest documents, the sample document split into its tokens (when
+// sample is not nil), the breakdown by file type, the documents (at most
+// rows of them; 0 lists all) and what was not counted.
+func WriteSurveyHTML(w io.Writer, s *Survey, sample *Sample, rows int) error {
+	p := &page{
+		Command: "survey",
+		Title:   "what the document set weighs",
+		Lead:    fmt.Sprintf("%s documents, %s tokens in all.", Num(s.Totals.Documents), Num(s.Totals.Tokens)),
+		Facts:   vocabFacts(s.Vocabulary.Name, s.Vocabulary.Size, s.Vocabulary.Window),
+		Notes:   s.Warnings,
+	}
+	t := s.Totals
+	p.Sections = append(p.Sections, section{
+		ID: "glance", Heading: "At a glance",
+		Cards: []fact{
+			{Label: "documents", Value: Num(t.Documents)},
+			{Label: "tokens", Value: Num(t.Tokens)},
+			{Label: "bytes", Value: Num(t.Bytes)},
+			{Label: "words", Value: Num(t.Words)},
+			{Label: "tokens per word", Value: Ratio(float64(t.Tokens), float64(t.Words))},
+			{Label: "bytes per token", Value: Ratio(float64(t.Bytes), float64(t.Tokens))},
+			{Label: windowLabel(s.Vocabulary.Window), Value: overWindowValue(s), Warn: t.OverWindow > 0},
+			{Label: fmt.Sprintf("not counted (%s failed)", Num(t.Failed)), Value: Num(t.Skipped), Warn: t.Failed > 0},
+		},
+	})
+
+	sp := s.Spread
+	spread := section{
+		ID: "spread", Heading: "Tokens per document",
+		Cards: []fact{
+			{Label: "smallest", Value: Num(sp.Min)},
+			{Label: "median", Value: Num(sp.Median)},
+			{Label: "90th percentile", Value: Num(sp.P90)},
+			{Label: "99th percentile", Value: Num(sp.P99)},
+			{Label: "largest", Value: Num(sp.Max)},
+		},
+	}
+	if len(s.Histogram) == 0 {
+		spread.Intro = "No document was counted, so there is nothing to chart."
+	} else {
+		spread.Intro = "Each column counts the documents whose token count falls in its range; the ranges double in width, so a window of a power of two falls on an edge. Percentiles by the nearest-rank method."
+		spread.Charts = append(spread.Charts, histogramChart(s).SVG())
+	}
+	p.Sections = append(p.Sections, spread)
+
+	if len(s.Largest) > 0 {
+		p.Sections = append(p.Sections, section{
+			ID: "largest", Heading: "Largest documents",
+			Intro:  largestIntro(s),
+			Charts: []template.HTML{largestChart(s).SVG()},
+		})
+	}
+	if v := sampleViewOf(sample); v != nil {
+		p.Sections = append(p.Sections, section{ID: "sample", Heading: "Where the text breaks", Sample: v})
+	}
+	if len(s.Formats) > 0 {
+		p.Sections = append(p.Sections, section{ID: "formats", Heading: "By file type", Tables: []tableView{tableOf(formatGrid(s), -1)}})
+	}
+	docs := surveyDocGrid(s, rows, Table)
+	docs.Notes = nil
+	if rows > 0 && len(s.Documents) > rows {
+		docs.Notes = []string{fmt.Sprintf("%s more documents are not listed here; --rows 0 lists all of them, and --format csv or json gives every row.", Num(len(s.Documents)-rows))}
+	}
+	p.Sections = append(p.Sections, section{ID: "documents", Heading: "Documents", Tables: []tableView{tableOf(docs, 0)}})
+	if len(s.Skipped) > 0 {
+		p.Sections = append(p.Sections, skipSection(s.Skipped))
+	}
+	return writePage(w, p)
+}
+
+// vocabFacts describes the vocabulary in a page heading.
+func vocabFacts(name string, size, window int) []fact {
+	win := "not known"
+	if window > 0 {
+		win = Num(window) + " tokens"
+	}
+	return []fact{{Label: "vocabulary", Value: name}, {Label: "size", Value: Num(size) + " tokens"}, {Label: "window", Value: win}}
+}
+
+func windowLabel(win int) string {
+	if win <= 0 {
+		return "over the window (window not known)"
+	}
+	return fmt.Sprintf("over the %s-token window on their own", Num(win))
+}
+
+func overWindowValue(s *Survey) string {
+	if s.Vocabulary.Window <= 0 {
+		return "-"
+	}
+	return Num(s.Totals.OverWindow)
+}
+
+// skipSection lists the inputs and records a report did not count.
+func skipSection(skips []Skipped) section {
+	return section{ID: "skipped", Heading: "Not counted",
+		Intro:  "Inputs and records left out of the figures above, with the reason. A failed one could not be read; the others were left out on purpose.",
+		Tables: []tableView{tableOf(SkipGrid(skips), 0)}}
+}
+
+// histogramChart draws the survey's histogram, widened with empty columns
+// until the window falls inside it, and the window as a line.
+func histogramChart(s *Survey) *columnChart {
+	bins := append([]Bin(nil), s.Histogram...)
+	win := s.Vocabulary.Window
+	for win > 0 && bins[len(bins)-1].To <= win && len(bins) < 40 {
+		last := bins[len(bins)-1].To
+		bins = append(bins, Bin{From: last, To: 2 * last})
+	}
+	c := &columnChart{
+		ID:     "hist",
+		Title:  "Documents by size in tokens",
+		XLabel: "tokens per document (each range twice as wide as the one before)",
+		YLabel: "documents",
+	}
+	for _, b := range bins {
+		col := column{Value: float64(b.Documents), Tip: fmt.Sprintf("%s to %s tokens: %s document(s)", Num(b.From), Num(b.To-1), Num(b.Documents))}
+		if win > 0 && b.From >= win {
+			col.Class = "over"
+		}
+		c.Cols = append(c.Cols, col)
+		c.Edges = append(c.Edges, tickLabel(float64(b.From)))
+	}
+	c.Edges = append(c.Edges, tickLabel(float64(bins[len(bins)-1].To)))
+	c.Desc = fmt.Sprintf("Histogram of %s documents by token count, from %s to %s tokens.", Num(s.Totals.Documents), Num(s.Spread.Min), Num(s.Spread.Max))
+	if at, ok := binPosition(bins, win); ok {
+		c.Marks = append(c.Marks, chartMark{At: at, Label: fmt.Sprintf("window: %s tokens", Num(win)), Class: "window"})
+		c.Desc += fmt.Sprintf(" A line marks the %s-token window; %s document(s) lie past it, in the red columns.", Num(win), Num(s.Totals.OverWindow))
+	}
+	return c
+}
+
+// binPosition places n on the column axis of bins: the bin's index plus how
+// far into it n lies, linearly in the first bin and by doubling in the
+// others.
+func binPosition(bins []Bin, n int) (float64, bool) {
+	if n <= 0 {
+		return 0, false
+	}
+	for i, b := range bins {
+		if n >= b.From && n < b.To {
+			if b.From == 0 {
+				return float64(i) + float64(n)/float64(b.To), true
+			}
+			return float64(i) + math.Log2(float64(n)/float64(b.From))/math.Log2(float64(b.To)/float64(b.From)), true
+		}
+	}
+	return 0, false
+}
+
+func largestIntro(s *Survey) string {
+	intro := fmt.Sprintf("The %s documents with the most tokens.", Num(len(s.Largest)))
+	if s.Vocabulary.Window > 0 {
+		intro += " Red bars run past the window on their own, before any prompt frame or reserved answer is added."
+	}
+	return intro
+}
+
+func largestChart(s *Survey) *barList {
+	c := &barList{ID: "largest-chart", Title: "Largest documents", XLabel: "tokens"}
+	win := s.Vocabulary.Window
+	for _, d := range s.Largest {
+		r := barRow{Label: Where(d.Source, d.Record), Value: float64(d.Tokens), Text: Num(d.Tokens),
+			Tip: fmt.Sprintf("%s: %s tokens, %s bytes, %s tokens per word", Where(d.Source, d.Record), Num(d.Tokens), Num(d.Bytes), Ratio(float64(d.Tokens), float64(d.Words)))}
+		if win > 0 && d.Tokens > win {
+			r.Class = "over"
+		}
+		c.Rows = append(c.Rows, r)
+	}
+	c.Desc = fmt.Sprintf("Bar chart of the %s largest documents by token count.", Num(len(s.Largest)))
+	if win > 0 {
+		c.Marks = []chartMark{{At: float64(win), Label: "window " + Num(win), Class: "window"}}
+		c.Desc += fmt.Sprintf(" A line marks the %s-token window.", Num(win))
+	}
+	return c
+}
