@@ -9,6 +9,7 @@ import (
 // merge loop. It is never shared between goroutines.
 type state struct {
 	v     *Vocab
+	near  [nearSize]slot    // a direct-mapped copy of recently used short entries, small enough to stay in the core's cache
 	short u64table          // pre-tokens of 2-7 bytes, packed into the key -> offset<<32 | length in arena
 	cache map[string]uint64 // longer pre-tokens, up to cacheLongest bytes -> the same
 	arena []uint32
@@ -47,10 +48,26 @@ func packShort(p []byte) uint64 {
 	return k
 }
 
+// nearSize is the number of slots in the direct-mapped front of the short
+// cache: 4096 slots of 16 bytes, 64 KB.
+const (
+	nearBits = 12
+	nearSize = 1 << nearBits
+)
+
 // cached returns the cached location of p's ids.
 func (s *state) cached(p []byte) (uint64, bool) {
 	if len(p) < 8 {
-		return s.short.get(packShort(p))
+		k := packShort(p)
+		n := &s.near[(k*0x9E3779B97F4A7C15)>>(64-nearBits)]
+		if n.k == k|occupied {
+			return n.v, true
+		}
+		v, ok := s.short.get(k)
+		if ok {
+			n.k, n.v = k|occupied, v
+		}
+		return v, ok
 	}
 	if len(p) <= cacheLongest {
 		loc, ok := s.cache[string(p)]
@@ -78,6 +95,7 @@ func (s *state) piece(p []byte) []uint32 {
 	if len(p) <= cacheLongest {
 		if s.short.full() || len(s.cache) >= s.max {
 			s.short.reset()
+			s.near = [nearSize]slot{}
 			clear(s.cache)
 			s.arena = s.arena[:0]
 		}

@@ -10,6 +10,7 @@ type u64table struct {
 	slots []slot
 	shift uint
 	n     int
+	limit int // the capacity asked for
 }
 
 type slot struct{ k, v uint64 }
@@ -23,7 +24,7 @@ func newU64Table(capacity int) u64table {
 	for size < 2*capacity {
 		size *= 2
 	}
-	return u64table{slots: make([]slot, size), shift: uint(64 - bits.TrailingZeros(uint(size)))}
+	return u64table{slots: make([]slot, size), shift: uint(64 - bits.TrailingZeros(uint(size))), limit: capacity}
 }
 
 func (t *u64table) home(k uint64) uint64 { return (k * 0x9E3779B97F4A7C15) >> t.shift }
@@ -43,8 +44,8 @@ func (t *u64table) get(k uint64) (uint64, bool) {
 	}
 }
 
-// put sets the value of key k. The caller keeps the table at most half
-// full (full reports when it is).
+// put sets the value of key k. The caller puts no more keys than the
+// capacity the table was made for (full reports when it holds that many).
 func (t *u64table) put(k, v uint64) {
 	k |= occupied
 	mask := uint64(len(t.slots) - 1)
@@ -63,7 +64,7 @@ func (t *u64table) put(k, v uint64) {
 }
 
 // full reports whether the table holds as many keys as it was sized for.
-func (t *u64table) full() bool { return 2*t.n >= len(t.slots) }
+func (t *u64table) full() bool { return t.n >= t.limit }
 
 // reset empties the table.
 func (t *u64table) reset() {
