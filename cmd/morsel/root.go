@@ -6,7 +6,6 @@ import (
 	"os"
 	"runtime"
 	"runtime/pprof"
-	"strings"
 
 	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/cobra"
@@ -210,6 +209,7 @@ func (b *bar) Plan(files int, bytes int64) {
 	b.pb = progressbar.NewOptions64(bytes,
 		progressbar.OptionSetWriter(b.w),
 		progressbar.OptionShowBytes(true),
+		progressbar.OptionShowCount(),
 		progressbar.OptionSetWidth(28),
 		progressbar.OptionThrottle(100_000_000),
 		progressbar.OptionShowElapsedTimeOnFinish(),
@@ -234,7 +234,4 @@ func (b *bar) FileDone(n int64) {
 
 func (b *bar) Tokens(n int) { b.tokens += int64(n) }
 
-func (b *bar) Finish() {
-	b.pb.Finish()
-	fmt.Fprint(b.w, strings.Repeat(" ", 0))
-}
+func (b *bar) Finish() { b.pb.Finish() }
