@@ -32,8 +32,8 @@ type Vocab struct {
 // Special is a token that stands for a control string such as
 // "<|endoftext|>" and that no merge produces.
 type Special struct {
-	ID   int
-	Text string
+	ID   int    `json:"id"`
+	Text string `json:"text"`
 }
 
 // Info describes a vocabulary for reports.
