@@ -2,9 +2,9 @@ package report
 
 import (
 	"bufio"
-	"encoding/binary"
 	"fmt"
 	"io"
+	"slices"
 	"sort"
 	"strings"
 	"sync"
@@ -106,23 +106,15 @@ func (t *ScriptTally) add(u ScriptTally) {
 	t.OneToken += u.OneToken
 }
 
-// DocWords is what scanning one document found: its tallies and its
-// distinct (word, split) pairs. Scan returns it; Fragmenter.Add folds it.
+// DocWords is what scanning one document found: its tokens and the
+// fertility of its words. Its words themselves go into the fragmenter's
+// tallies as the scan finds them.
 type DocWords struct {
 	Tokens   int
 	Bytes    int
 	All      ScriptTally
 	ByScript [numScripts]ScriptTally
-	entries  []docEntry
 	terms    []termTally // one per glossary term, or nil
-}
-
-// docEntry is one word with one split in one document. key is the word's
-// bytes followed by the split's ids, 4 bytes each.
-type docEntry struct {
-	key     string
-	wordLen int
-	count   int
 }
 
 type termTally struct {
@@ -131,36 +123,55 @@ type termTally struct {
 
 // Fragmenter scans documents for words that split into many pieces and
 // folds the results into a Fragments report. Scan is safe for concurrent
-// use; Add and Finish are called from one goroutine.
+// use; Add and Finish are called from one goroutine, Finish after every
+// Scan has returned.
 type Fragmenter struct {
 	enc     *bpe.Encoder
 	terms   []Term
 	byFirst map[string][]int // a term's first segment -> terms starting with it
-	pool    sync.Pool
 
-	words    map[string]*wordAgg
+	mu     sync.Mutex
+	shards []*shard    // every shard made, for Finish
+	free   chan *shard // shards not in use
+
 	docs     []DocFertility
 	skipped  []Skipped
 	totals   FragmentTotals
 	all      ScriptTally
 	byScript [numScripts]ScriptTally
 	termAgg  []termAgg
-	seq      int
 }
 
-type wordAgg struct {
+// shard holds the word tallies of the documents one worker scanned, and
+// that worker's reusable memory. A document is scanned by one shard, so
+// the documents a word occurs in add up exactly over the shards.
+type shard struct {
+	index   wordIndex // word -> its tally in words
+	words   []wordTally
+	arena   []byte   // the words' bytes; blocks are never reused
+	idArena []uint32 // the splits' ids
+	doc     int32    // documents begun by this shard
+	ids     []int
+	ends    []int
+	pending []pendingTerm
+}
+
+// wordTally is one word's occurrences in one shard. The first split seen
+// is kept inline; up to maxSplits-1 more go to more.
+type wordTally struct {
+	word          string
 	count, pieces int64
-	docs          int
-	lastDoc       int
-	splits        [maxSplits]splitAgg
+	docs, lastDoc int32
+	split         splitTally
+	more          []splitTally
 }
 
-// maxSplits is how many distinct splits of one word are told apart; the
-// occurrences of any further split only count in the sums.
+// maxSplits is how many distinct splits of one word a shard tells apart;
+// the occurrences of any further split count in the word's totals only.
 const maxSplits = 4
 
-type splitAgg struct {
-	ids   string // 4 bytes an id
+type splitTally struct {
+	ids   []uint32
 	count int64
 }
 
@@ -169,22 +180,12 @@ type termAgg struct {
 	docs          int
 }
 
-// scratch is one worker's reusable memory.
-type scratch struct {
-	ids     []int
-	ends    []int
-	key     []byte
-	index   map[string]int
-	pending []pendingTerm
-}
-
 type pendingTerm struct{ term, start, end int }
 
 // NewFragmenter returns a fragmenter that encodes with enc and looks for
 // the glossary terms (none when terms is nil).
 func NewFragmenter(enc *bpe.Encoder, terms []Term) *Fragmenter {
-	f := &Fragmenter{enc: enc, terms: terms, words: map[string]*wordAgg{}, docs: []DocFertility{}, skipped: []Skipped{}}
-	f.pool.New = func() any { return &scratch{index: map[string]int{}} }
+	f := &Fragmenter{enc: enc, terms: terms, docs: []DocFertility{}, skipped: []Skipped{}, free: make(chan *shard, 256)}
 	if len(terms) > 0 {
 		f.byFirst = map[string][]int{}
 		for i, t := range terms {
@@ -194,6 +195,26 @@ func NewFragmenter(enc *bpe.Encoder, terms []Term) *Fragmenter {
 		f.termAgg = make([]termAgg, len(terms))
 	}
 	return f
+}
+
+func (f *Fragmenter) getShard() *shard {
+	select {
+	case sh := <-f.free:
+		return sh
+	default:
+	}
+	sh := &shard{}
+	f.mu.Lock()
+	f.shards = append(f.shards, sh)
+	f.mu.Unlock()
+	return sh
+}
+
+func (f *Fragmenter) putShard(sh *shard) {
+	select {
+	case f.free <- sh:
+	default: // kept in f.shards all the same
+	}
 }
 
 // Scan reads a document's text (closing its Stream when it has one) and
@@ -207,15 +228,17 @@ func (f *Fragmenter) Scan(d *corpus.Document) (*DocWords, error) {
 	return f.ScanText(text)
 }
 
-// ScanText returns the words of one text.
+// ScanText scans one text: it tallies its words and returns its fertility.
+// It fails, having tallied nothing, when the encoder's tokens do not spell
+// the text back.
 func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
-	sc := f.pool.Get().(*scratch)
-	defer f.pool.Put(sc)
+	sh := f.getShard()
+	defer f.putShard(sh)
 	dw := &DocWords{Bytes: len(text)}
 	v := f.enc.Vocab()
-	ids, _ := f.enc.EncodeStats(sc.ids[:0], text)
-	sc.ids = ids
-	ends := sc.ends[:0]
+	ids, _ := f.enc.EncodeStats(sh.ids[:0], text)
+	sh.ids = ids
+	ends := sh.ends[:0]
 	pos := 0
 	for _, id := range ids {
 		tok, ok := v.Token(id)
@@ -225,75 +248,228 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 		pos += len(tok)
 		ends = append(ends, pos)
 	}
-	sc.ends = ends
+	sh.ends = ends
 	if pos != len(text) {
 		return nil, fmt.Errorf("the tokens spell %d bytes of a %d-byte text", pos, len(text))
 	}
 	dw.Tokens = len(ids)
 	if f.terms != nil {
 		dw.terms = make([]termTally, len(f.terms))
-		sc.pending = sc.pending[:0]
+		sh.pending = sh.pending[:0]
 	}
+	sh.doc++
 
-	clear(sc.index)
-	var arena []byte
+	var words, pieces, one [numScripts]int64
 	k := 0 // the first token that ends after the current segment starts
-	rest, state, at := text, -1, 0
-	for len(rest) > 0 {
-		var seg []byte
-		seg, rest, state = uniseg.FirstWord(rest, state)
-		s, e := at, at+len(seg)
-		at = e
-		if f.terms != nil {
-			f.termsAt(sc, dw, text, ends, s, seg)
-		}
-		if !hasWordChar(seg) {
-			continue
+	for s := 0; s < len(text); {
+		var e int
+		var h uint64
+		var sc Script
+		if c := text[s]; c < utf8.RuneSelf && asciiWB[c] == wbAlnum {
+			// The common case, a word of ASCII letters and digits, hashed
+			// as it is scanned.
+			h = fnvOffset
+			letter := false
+			e = s
+			for ; e < len(text); e++ {
+				d := text[e]
+				if d >= utf8.RuneSelf || asciiWB[d] != wbAlnum {
+					break
+				}
+				h = (h ^ uint64(d)) * fnvPrime
+				letter = letter || d > '9'
+			}
+			if !alnumRunEnds(text, e) {
+				e = nextSegment(text, s)
+				h = hashWord(text[s:e])
+				sc = WordScript(text[s:e])
+			} else if letter {
+				sc = Latin
+			} else {
+				sc = Digits
+			}
+			if f.terms != nil {
+				f.termsAt(sh, dw, text, s, text[s:e])
+			}
+		} else {
+			e = nextSegment(text, s)
+			seg := text[s:e]
+			if f.terms != nil {
+				f.termsAt(sh, dw, text, s, seg)
+			}
+			if !hasWordChar(seg) {
+				s = e
+				continue
+			}
+			h = hashWord(seg)
+			sc = WordScript(seg)
 		}
 		for ends[k] <= s {
 			k++
 		}
-		m := k
-		for m+1 < len(ends) && ends[m] < e {
+		m := k + 1
+		for m < len(ends) && ends[m-1] < e {
 			m++
 		}
-		pieces := m - k + 1
-		key := append(sc.key[:0], seg...)
-		for _, id := range ids[k : m+1] {
-			key = binary.LittleEndian.AppendUint32(key, uint32(id))
+		sh.tally(text[s:e], h, ids[k:m])
+		n := m - k
+		words[sc]++
+		pieces[sc] += int64(n)
+		if n == 1 {
+			one[sc]++
 		}
-		sc.key = key
-		if i, ok := sc.index[string(key)]; ok {
-			dw.entries[i].count++
-		} else {
-			start := len(arena)
-			if cap(arena)-len(arena) < len(key) {
-				// A fresh block: the strings already made keep the old one.
-				arena = make([]byte, 0, max(4096, 2*len(key)))
-				start = 0
-			}
-			arena = append(arena, key...)
-			ks := unsafe.String(&arena[start], len(key))
-			sc.index[ks] = len(dw.entries)
-			dw.entries = append(dw.entries, docEntry{key: ks, wordLen: len(seg), count: 1})
-		}
-		tally := ScriptTally{Words: 1, Tokens: int64(pieces)}
-		if pieces == 1 {
-			tally.OneToken = 1
-		}
-		dw.All.add(tally)
-		dw.ByScript[WordScript(seg)].add(tally)
+		s = e
 	}
 	if f.terms != nil {
-		f.termsAt(sc, dw, text, ends, len(text), nil)
+		f.termsAt(sh, dw, text, len(text), nil)
 	}
-	clear(sc.index)
+	for i := range dw.ByScript {
+		t := ScriptTally{Words: words[i], Tokens: pieces[i], OneToken: one[i]}
+		dw.ByScript[i] = t
+		dw.All.add(t)
+	}
 	return dw, nil
+}
+
+// FNV-1a, 64 bits: the hash of words (hashWord), computed inline where
+// ScanText scans ASCII words.
+const (
+	fnvOffset = 14695981039346656037
+	fnvPrime  = 1099511628211
+)
+
+func hashWord(w []byte) uint64 {
+	h := uint64(fnvOffset)
+	for _, c := range w {
+		h = (h ^ uint64(c)) * fnvPrime
+	}
+	return h
+}
+
+// tally counts one occurrence of word, whose hashWord is h, split into the
+// tokens ids.
+func (sh *shard) tally(word []byte, h uint64, ids []int) {
+	h ^= h >> 29 // FNV leaves the high bits, which the index uses, weak
+	h *= 0xbf58476d1ce4e5b9
+	h ^= h >> 32
+	i, slot := sh.index.find(h, word, sh.words)
+	if i < 0 {
+		if cap(sh.arena)-len(sh.arena) < len(word) {
+			// A fresh block: the words already made keep the old one.
+			sh.arena = make([]byte, 0, max(1<<16, len(word)))
+		}
+		start := len(sh.arena)
+		sh.arena = append(sh.arena, word...)
+		key := unsafe.String(&sh.arena[start], len(word))
+		i = int32(len(sh.words))
+		sh.index.insert(slot, h, i)
+		sh.words = append(sh.words, wordTally{word: key})
+	}
+	w := &sh.words[i]
+	w.count++
+	w.pieces += int64(len(ids))
+	if w.lastDoc != sh.doc {
+		w.lastDoc = sh.doc
+		w.docs++
+	}
+	if w.split.count == 0 {
+		w.split = splitTally{ids: sh.keepIDs(ids), count: 1}
+		return
+	}
+	if sameIDs(w.split.ids, ids) {
+		w.split.count++
+		return
+	}
+	for j := range w.more {
+		if sameIDs(w.more[j].ids, ids) {
+			w.more[j].count++
+			return
+		}
+	}
+	if len(w.more) < maxSplits-1 {
+		w.more = append(w.more, splitTally{ids: sh.keepIDs(ids), count: 1})
+	}
+}
+
+// wordIndex is an open-addressing hash table from a word to its tally:
+// cheaper than a map here, since the hash comes from the scan and the
+// stored hash is compared before the bytes.
+type wordIndex struct {
+	slots []uint64 // hash<<32 | tally index+1; 0 is empty
+	used  int
+}
+
+// find returns the tally index of word, or -1 and the slot to insert it at.
+func (x *wordIndex) find(h uint64, word []byte, words []wordTally) (int32, int) {
+	if len(x.slots) == 0 {
+		x.slots = make([]uint64, 1<<10)
+	}
+	mask := len(x.slots) - 1
+	hi := h >> 32
+	for p := int(hi) & mask; ; p = (p + 1) & mask {
+		s := x.slots[p]
+		if s == 0 {
+			return -1, p
+		}
+		if s>>32 == hi {
+			if i := int32(s&0xffffffff) - 1; words[i].word == string(word) {
+				return i, p
+			}
+		}
+	}
+}
+
+// insert puts tally index i for hash h at slot, growing the table when it
+// is half full.
+func (x *wordIndex) insert(slot int, h uint64, i int32) {
+	x.slots[slot] = h>>32<<32 | uint64(i+1)
+	x.used++
+	if 2*x.used <= len(x.slots) {
+		return
+	}
+	old := x.slots
+	x.slots = make([]uint64, 2*len(old))
+	mask := len(x.slots) - 1
+	for _, s := range old {
+		if s == 0 {
+			continue
+		}
+		// Slots are placed by the hash's high 32 bits, the ones kept.
+		p := int(s>>32) & mask
+		for x.slots[p] != 0 {
+			p = (p + 1) & mask
+		}
+		x.slots[p] = s
+	}
+}
+
+func (sh *shard) keepIDs(ids []int) []uint32 {
+	if cap(sh.idArena)-len(sh.idArena) < len(ids) {
+		sh.idArena = make([]uint32, 0, max(1<<14, len(ids)))
+	}
+	start := len(sh.idArena)
+	for _, id := range ids {
+		sh.idArena = append(sh.idArena, uint32(id))
+	}
+	return sh.idArena[start:len(sh.idArena):len(sh.idArena)]
+}
+
+func sameIDs(a []uint32, b []int) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i, id := range b {
+		if a[i] != uint32(id) {
+			return false
+		}
+	}
+	return true
 }
 
 // termsAt settles the glossary matches waiting for a word boundary at b,
 // then starts those that begin with seg at b.
-func (f *Fragmenter) termsAt(sc *scratch, dw *DocWords, text []byte, ends []int, b int, seg []byte) {
+func (f *Fragmenter) termsAt(sc *shard, dw *DocWords, text []byte, b int, seg []byte) {
+	ends := sc.ends
 	keep := sc.pending[:0]
 	for _, p := range sc.pending {
 		switch {
@@ -353,7 +529,6 @@ func (f *Fragmenter) Add(it corpus.Item, dw *DocWords, err error) {
 
 // AddWords folds the scan of the document at source and record.
 func (f *Fragmenter) AddWords(source string, record int, dw *DocWords) {
-	f.seq++
 	f.totals.Documents++
 	f.totals.Tokens += int64(dw.Tokens)
 	f.totals.Bytes += int64(dw.Bytes)
@@ -364,33 +539,6 @@ func (f *Fragmenter) AddWords(source string, record int, dw *DocWords) {
 	f.docs = append(f.docs, DocFertility{Source: source, Record: record, Tokens: dw.Tokens, Words: dw.All.Words,
 		WordTokens: dw.All.Tokens, Fertility: round2(ratio(float64(dw.All.Tokens), float64(dw.All.Words))),
 		OneTokenShare: round4(ratio(float64(dw.All.OneToken), float64(dw.All.Words)))})
-	for _, en := range dw.entries {
-		word := en.key[:en.wordLen]
-		w := f.words[word]
-		if w == nil {
-			w = &wordAgg{}
-			f.words[strings.Clone(word)] = w
-		}
-		if w.lastDoc != f.seq {
-			w.lastDoc = f.seq
-			w.docs++
-		}
-		n := int64(en.count)
-		pieces := int64((len(en.key) - en.wordLen) / 4)
-		w.count += n
-		w.pieces += n * pieces
-		ids := en.key[en.wordLen:]
-		for i := range w.splits {
-			sp := &w.splits[i]
-			if sp.count == 0 {
-				sp.ids = strings.Clone(ids)
-			}
-			if sp.ids == ids {
-				sp.count += n
-				break
-			}
-		}
-	}
 	for i, t := range dw.terms {
 		if t.count > 0 {
 			a := &f.termAgg[i]
@@ -399,6 +547,62 @@ func (f *Fragmenter) AddWords(source string, record int, dw *DocWords) {
 			a.docs++
 		}
 	}
+}
+
+// wordSum is one word's tallies over all shards.
+type wordSum struct {
+	count, pieces int64
+	docs          int
+	splits        []splitTally
+}
+
+// mergeShards adds up the shards' tallies by word. The result does not
+// depend on which shard scanned which document, so neither does the report
+// (but for words with more than maxSplits splits).
+func (f *Fragmenter) mergeShards() map[string]*wordSum {
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	out := map[string]*wordSum{}
+	for _, sh := range f.shards {
+		for i := range sh.words {
+			w := &sh.words[i]
+			m := out[w.word]
+			if m == nil {
+				m = &wordSum{}
+				out[w.word] = m
+			}
+			m.count += w.count
+			m.pieces += w.pieces
+			m.docs += int(w.docs)
+			m.addSplit(w.split)
+			for _, sp := range w.more {
+				m.addSplit(sp)
+			}
+		}
+	}
+	return out
+}
+
+func (m *wordSum) addSplit(sp splitTally) {
+	for i := range m.splits {
+		if slices.Equal(m.splits[i].ids, sp.ids) {
+			m.splits[i].count += sp.count
+			return
+		}
+	}
+	m.splits = append(m.splits, sp)
+}
+
+// betterSplit reports whether a is the more common split, the one of fewer
+// pieces on a tie, or the one with the smaller ids on a tie again.
+func betterSplit(a, b splitTally) bool {
+	if a.count != b.count {
+		return a.count > b.count
+	}
+	if len(a.ids) != len(b.ids) {
+		return len(a.ids) < len(b.ids)
+	}
+	return slices.Compare(a.ids, b.ids) < 0
 }
 
 func round4(x float64) float64 { return float64(int64(x*10000+0.5)) / 10000 }
@@ -501,30 +705,30 @@ func (f *Fragmenter) Finish(opt FragmentOptions) *Fragments {
 	r := &Fragments{vocab: v, Vocabulary: v.Info(), Options: opt, Words: []Fragment{}, Terms: []TermReport{}, Skipped: f.skipped}
 	t := f.totals
 	t.Words = f.all.Words
-	t.DistinctWords = len(f.words)
 	for _, k := range f.skipped {
 		t.Skipped++
 		if k.Failed {
 			t.Failed++
 		}
 	}
-	for word, w := range f.words {
+	merged := f.mergeShards()
+	t.DistinctWords = len(merged)
+	for word, w := range merged {
 		pieces := ratio(float64(w.pieces), float64(w.count))
 		if pieces < opt.MinPieces || w.count < opt.MinCount {
 			continue
 		}
-		best := 0
-		for i := range w.splits {
-			if w.splits[i].count > w.splits[best].count {
-				best = i
+		best := w.splits[0]
+		for _, sp := range w.splits[1:] {
+			if betterSplit(sp, best) {
+				best = sp
 			}
 		}
 		fr := Fragment{Word: word, Script: WordScript([]byte(word)).String(), Count: w.count, Documents: w.docs,
 			Pieces: round2(pieces), Excess: w.pieces - w.count,
-			SplitShare: round4(ratio(float64(w.splits[best].count), float64(w.count)))}
-		ids := w.splits[best].ids
-		for i := 0; i+4 <= len(ids); i += 4 {
-			tok, _ := v.Token(int(binary.LittleEndian.Uint32([]byte(ids[i : i+4]))))
+			SplitShare: round4(ratio(float64(best.count), float64(w.count)))}
+		for _, id := range best.ids {
+			tok, _ := v.Token(int(id))
 			fr.raw = append(fr.raw, tok)
 			fr.Split = append(fr.Split, pieceText(tok))
 		}
@@ -724,4 +928,101 @@ func termGrid(r *Fragments) *Grid {
 			Num(t.Occurrences), Num(t.Documents), Num(t.Excess), flag)
 	}
 	return g
+}
+
+// Word boundaries.
+
+// Word-break classes of the ASCII characters (UAX #29, Table 3 of Unicode
+// 15.0.0, and WordBreakProperty.txt): the ones nextSegment decides alone.
+const (
+	wbOther   = iota // no property that joins it to a neighbour here, such as '-', '(', '"'
+	wbAlnum          // ALetter A-Z a-z, Numeric 0-9
+	wbMid            // MidLetter ':', MidNum ',' ';', MidNumLet '.', Single_Quote '\''
+	wbSpace          // WSegSpace ' '
+	wbCR             // CR
+	wbNewline        // LF, and Newline VT and FF
+	wbSlow           // ExtendNumLet '_': left to uniseg
+)
+
+var asciiWB = func() (t [utf8.RuneSelf]uint8) {
+	for c := 'a'; c <= 'z'; c++ {
+		t[c], t[c-'a'+'A'] = wbAlnum, wbAlnum
+	}
+	for c := '0'; c <= '9'; c++ {
+		t[c] = wbAlnum
+	}
+	for _, c := range ":,;.'" {
+		t[c] = wbMid
+	}
+	t[' '], t['\r'], t['\n'], t['\v'], t['\f'], t['_'] = wbSpace, wbCR, wbNewline, wbNewline, wbNewline, wbSlow
+	return t
+}()
+
+// nextSegment returns the end of the word-boundary segment that starts at
+// i, a boundary. ASCII text is decided here, by the rules of UAX #29 that
+// can apply to it, whenever the characters that follow are ASCII too;
+// everything else is left to uniseg, started afresh at i. Starting afresh
+// at a boundary gives the same boundaries, since no rule joins across one
+// (the tests check this against uniseg run over the whole text).
+func nextSegment(t []byte, i int) int {
+	if c := t[i]; c < utf8.RuneSelf {
+		switch asciiWB[c] {
+		case wbAlnum:
+			// WB5, WB8, WB9, WB10 join letters and digits; what ends the run
+			// is a boundary (WB3a, WB999) unless WB6, WB7, WB11 or WB12 could
+			// join a MidX to a letter or digit after it.
+			j := i + 1
+			for j < len(t) && t[j] < utf8.RuneSelf && asciiWB[t[j]] == wbAlnum {
+				j++
+			}
+			if alnumRunEnds(t, j) {
+				return j
+			}
+		case wbSpace:
+			// WB3d joins spaces; WB4 would join an Extend or Format after.
+			j := i + 1
+			for j < len(t) && t[j] == ' ' {
+				j++
+			}
+			if j == len(t) || t[j] < utf8.RuneSelf {
+				return j
+			}
+		case wbNewline:
+			return i + 1 // WB3a, WB3b
+		case wbCR:
+			if i+1 < len(t) && t[i+1] == '\n' {
+				return i + 2 // WB3
+			}
+			return i + 1
+		case wbOther, wbMid:
+			// A MidX that starts a segment joins nothing after it (WB6 and
+			// WB11 need a letter or digit before it); WB999 otherwise.
+			if i+1 == len(t) || t[i+1] < utf8.RuneSelf {
+				return i + 1
+			}
+		}
+	}
+	seg, _, _ := uniseg.FirstWord(t[i:], -1)
+	return i + len(seg)
+}
+
+// alnumRunEnds reports whether a run of ASCII letters and digits that
+// reaches j ends there for sure: at the end of the text, before an ASCII
+// character that joins no word (WB3a, WB999), or before a MidX not followed
+// by an ASCII letter or digit (so WB6, WB7, WB11 and WB12 cannot apply).
+func alnumRunEnds(t []byte, j int) bool {
+	if j == len(t) {
+		return true
+	}
+	d := t[j]
+	if d >= utf8.RuneSelf {
+		return false
+	}
+	switch asciiWB[d] {
+	case wbOther, wbSpace, wbCR, wbNewline:
+		return true
+	case wbMid:
+		return j+1 == len(t) || t[j+1] < utf8.RuneSelf && asciiWB[t[j+1]] != wbAlnum
+	}
+	return false
 }
