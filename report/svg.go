@@ -191,6 +191,9 @@ type barList struct {
 	Rows        []barRow
 	Marks       []chartMark
 	Decimals    bool // the axis may have fractional ticks (money)
+	// Paths says the labels are file names: a folder they all share is
+	// named once in the title instead of on every row.
+	Paths bool
 }
 
 // SVG renders the chart.
@@ -207,11 +210,21 @@ func (c *barList) SVG() template.HTML {
 		max = math.Max(max, m.At)
 	}
 	xmax, step := axisTop(max, 5, !c.Decimals)
+	title, dir := c.Title, ""
+	if c.Paths {
+		labels := make([]string, len(c.Rows))
+		for i, r := range c.Rows {
+			labels[i] = r.Label
+		}
+		if dir = commonDir(labels); dir != "" {
+			title += " (in " + dir + ")"
+		}
+	}
 	x := func(v float64) float64 { return left + v/xmax*pw }
 	base := top + rowH*float64(len(c.Rows))
 	var b strings.Builder
 	svgOpen(&b, c.ID, c.Title, c.Desc, w, h)
-	fmt.Fprintf(&b, `<text class="ctitle" x="8" y="18">%s</text>`, esc(c.Title))
+	fmt.Fprintf(&b, `<text class="ctitle" x="8" y="18">%s</text>`, esc(title))
 	for v := 0.0; v <= xmax+step/2; v += step {
 		fmt.Fprintf(&b, `<line class="grid" x1="%s" x2="%s" y1="%s" y2="%s"/>`, num(x(v)), num(x(v)), num(top-4), num(base))
 		fmt.Fprintf(&b, `<text class="tick" x="%s" y="%s" text-anchor="middle">%s</text>`, num(x(v)), num(base+16), esc(tickLabel(v)))
@@ -223,7 +236,7 @@ func (c *barList) SVG() template.HTML {
 			cls += " " + r.Class
 		}
 		fmt.Fprintf(&b, `<g><title>%s</title>`, esc(r.Tip))
-		fmt.Fprintf(&b, `<text class="rowlabel" x="%s" y="%s" text-anchor="end">%s</text>`, num(left-8), num(y+rowH/2+4), esc(clip(r.Label, 34)))
+		fmt.Fprintf(&b, `<text class="rowlabel" x="%s" y="%s" text-anchor="end">%s</text>`, num(left-8), num(y+rowH/2+4), esc(clip(strings.TrimPrefix(r.Label, dir), 34)))
 		fmt.Fprintf(&b, `<rect class="%s" x="%s" y="%s" width="%s" height="%s"/>`, esc(cls), num(left), num(y+4), num(math.Max(x(r.Value)-left, 0)), num(rowH-8))
 		fmt.Fprintf(&b, `<text class="val" x="%s" y="%s">%s</text>`, num(x(r.Value)+5), num(y+rowH/2+4), esc(r.Text))
 		b.WriteString(`</g>`)
@@ -254,4 +267,22 @@ func longest(ss []string) int {
 		m = max(m, utf8.RuneCountInString(s))
 	}
 	return m
+}
+
+// commonDir returns the longest folder prefix, ending in a slash, that all
+// names share, or "" when they share none.
+func commonDir(names []string) string {
+	if len(names) == 0 {
+		return ""
+	}
+	p := names[0]
+	for _, n := range names[1:] {
+		for !strings.HasPrefix(n, p) {
+			p = p[:len(p)-1]
+		}
+	}
+	if i := strings.LastIndexByte(p, '/'); i >= 0 {
+		return p[:i+1]
+	}
+	return ""
 }

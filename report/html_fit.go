@@ -1,0 +1,104 @@
+package report
+
+import (
+	"fmt"
+	"html/template"
+	"io"
+	"sort"
+)
+
+// WriteFitHTML writes a fit report as a self-contained HTML page: the
+// counts, the overflowing documents with their overflow as bars, the
+// tightest fits with the room they leave, and every document's verdict (at
+// most rows of them; 0 lists all).
+func WriteFitHTML(w io.Writer, r *FitReport, rows int) error {
+	t := r.Totals
+	p := &page{
+		Command: "fit",
+		Title:   "what fits the window",
+		Lead: fmt.Sprintf("%s of %s documents fit a %s-token window once the frame and the reserved answer are added; %s overflow.",
+			Num(t.Fit), Num(t.Documents), Num(r.Window), Num(t.Overflow)),
+		Facts: append(vocabFacts(r.Vocabulary.Name, r.Vocabulary.Size, r.Window),
+			fact{Label: "frame", Value: fmt.Sprintf("%s (%s tokens with overhead)", r.Frame, Num(r.FrameTok))}),
+	}
+	if r.Target != "" {
+		p.Facts = append([]fact{{Label: "target", Value: r.Target}}, p.Facts...)
+	}
+	p.Sections = append(p.Sections, section{
+		ID: "glance", Heading: "At a glance",
+		Cards: []fact{
+			{Label: "documents", Value: Num(t.Documents)},
+			{Label: "fit", Value: Num(t.Fit)},
+			{Label: "overflow", Value: Num(t.Overflow), Warn: t.Overflow > 0},
+			{Label: "smallest margin, tokens", Value: Num(t.WorstMargin), Warn: t.WorstMargin < 0},
+			{Label: "window, tokens", Value: Num(r.Window)},
+			{Label: fmt.Sprintf("not counted (%s failed)", Num(t.Failed)), Value: Num(t.Skipped), Warn: t.Failed > 0},
+		},
+		Notes: []string{"Margin = window − framed input − reserved answer. A negative margin is an overflow: morsel ration splits such documents into chunks that fit."},
+	})
+	if t.Overflow > 0 {
+		p.Sections = append(p.Sections, section{ID: "overflow", Heading: "Overflowing documents",
+			Intro:  fmt.Sprintf("How far each overflowing document runs past the window, worst first (at most %d drawn; the table lists them all).", ChartRows),
+			Charts: []template.HTML{overflowChart(r).SVG()}})
+	}
+	if t.Fit > 0 {
+		p.Sections = append(p.Sections, section{ID: "tightest", Heading: "Tightest fits",
+			Intro:  "The documents that fit with the least room to spare: a longer frame or a larger reserved answer would tip these over first.",
+			Charts: []template.HTML{tightestChart(r).SVG()}})
+	}
+	g := &Grid{Title: fmt.Sprintf("Every document against the %s-token window", Num(r.Window)),
+		Header: []string{"document", "tokens", "input", "reserve", "margin", "verdict"}, Right: []int{1, 2, 3, 4}}
+	for i, d := range r.Documents {
+		if rows > 0 && i == rows {
+			g.Notes = append(g.Notes, fmt.Sprintf("%s more documents are not listed here; --format csv or json gives every row.", Num(len(r.Documents)-rows)))
+			break
+		}
+		verdict := "fits"
+		if !d.Fits {
+			verdict = fmt.Sprintf("over by %s", Num(-d.Margin))
+		}
+		g.AddRow(Where(d.Source, d.Record), Num(d.Tokens), Num(d.InputTokens), Num(d.Reserve), Num(d.Margin), verdict)
+	}
+	p.Sections = append(p.Sections, section{ID: "documents", Heading: "Documents", Tables: []tableView{tableOf(g, 0)}})
+	if len(r.Skipped) > 0 {
+		p.Sections = append(p.Sections, skipSection(r.Skipped))
+	}
+	return writePage(w, p)
+}
+
+func fitTip(d FitDoc) string {
+	return fmt.Sprintf("%s: %s document tokens, %s framed input + %s reserved = %s against a %s window, margin %s",
+		Where(d.Source, d.Record), Num(d.Tokens), Num(d.InputTokens), Num(d.Reserve), Num(d.InputTokens+d.Reserve), Num(d.Window), Num(d.Margin))
+}
+
+func overflowChart(r *FitReport) *barList {
+	c := &barList{Paths: true, ID: "overflow-chart", Title: "Tokens past the window", XLabel: "tokens over (framed input + reserved answer − window)"}
+	for _, d := range r.Documents {
+		if d.Fits || len(c.Rows) == ChartRows {
+			break // overflowing documents come first, worst first
+		}
+		c.Rows = append(c.Rows, barRow{Label: Where(d.Source, d.Record), Value: float64(-d.Margin), Text: "+" + Num(-d.Margin), Tip: fitTip(d), Class: "over"})
+	}
+	c.Desc = fmt.Sprintf("Bar chart of the %d documents that overflow the %s-token window most, by the tokens they run over.", len(c.Rows), Num(r.Window))
+	return c
+}
+
+func tightestChart(r *FitReport) *barList {
+	var fits []FitDoc
+	for _, d := range r.Documents {
+		if d.Fits {
+			fits = append(fits, d)
+		}
+	}
+	// The fitting documents are in input order; take the smallest margins.
+	sort.SliceStable(fits, func(i, j int) bool { return fits[i].Margin < fits[j].Margin })
+	c := &barList{Paths: true, ID: "tightest-chart", Title: "Room left in the window", XLabel: "tokens to spare (window − framed input − reserved answer)"}
+	for i, d := range fits {
+		if i == ChartRows/2 {
+			break
+		}
+		c.Rows = append(c.Rows, barRow{Label: Where(d.Source, d.Record), Value: float64(d.Margin), Text: Num(d.Margin), Tip: fitTip(d)})
+	}
+	c.Desc = fmt.Sprintf("Bar chart of the %d documents that fit with the smallest margins.", len(c.Rows))
+	return c
+}
