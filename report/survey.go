@@ -1,6 +1,8 @@
 package report
 
 import (
+	"bufio"
+	"encoding/json"
 	"fmt"
 	"io"
 	"sort"
@@ -233,7 +235,7 @@ func Histogram(tokens []int) []Bin {
 // table, complete.
 func WriteSurvey(w io.Writer, f Format, s *Survey, rows int) error {
 	if f == JSON {
-		return WriteJSON(w, s)
+		return writeSurveyJSON(w, s)
 	}
 	docs := surveyDocGrid(s, rows, f)
 	if f == CSV {
@@ -353,4 +355,54 @@ func Percent(a, b float64) string {
 		return "-"
 	}
 	return fmt.Sprintf("%.1f%%", 100*a/b)
+}
+
+// writeSurveyJSON writes s as WriteJSON would, but one document at a time,
+// so that a survey of a million documents is never held as one buffer.
+func writeSurveyJSON(w io.Writer, s *Survey) error {
+	bw := bufio.NewWriterSize(w, 64<<10)
+	field := func(name string, v any, last bool) error {
+		b, err := json.MarshalIndent(v, "  ", "  ")
+		if err != nil {
+			return err
+		}
+		fmt.Fprintf(bw, "  %q: %s", name, b)
+		if !last {
+			bw.WriteString(",")
+		}
+		bw.WriteString("\n")
+		return nil
+	}
+	bw.WriteString("{\n")
+	if err := field("vocabulary", s.Vocabulary, false); err != nil {
+		return err
+	}
+	bw.WriteString("  \"documents\": [")
+	for i, d := range s.Documents {
+		b, err := json.MarshalIndent(d, "    ", "  ")
+		if err != nil {
+			return err
+		}
+		if i > 0 {
+			bw.WriteString(",")
+		}
+		bw.WriteString("\n    ")
+		bw.Write(b)
+	}
+	if len(s.Documents) > 0 {
+		bw.WriteString("\n  ")
+	}
+	bw.WriteString("],\n")
+	rest := []struct {
+		name string
+		v    any
+	}{{"skipped", s.Skipped}, {"totals", s.Totals}, {"spread", s.Spread}, {"histogram", s.Histogram},
+		{"formats", s.Formats}, {"largest", s.Largest}, {"warnings", s.Warnings}}
+	for i, r := range rest {
+		if err := field(r.name, r.v, i == len(rest)-1); err != nil {
+			return err
+		}
+	}
+	bw.WriteString("}\n")
+	return bw.Flush()
 }

@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"runtime/debug"
 	"strings"
 )
 
@@ -19,7 +20,16 @@ const (
 	exitInternal = 1
 )
 
+// memoryLimit is the soft heap limit morsel runs under unless GOMEMLIMIT
+// says otherwise: the garbage collector works harder as the heap nears it,
+// which keeps a long walk's peak memory flat. It is soft: a report that
+// truly needs more still gets it.
+const memoryLimit = 100 << 20
+
 func main() {
+	if os.Getenv("GOMEMLIMIT") == "" {
+		debug.SetMemoryLimit(memoryLimit)
+	}
 	err := newRoot().Execute()
 	os.Exit(exitStatus(err))
 }
