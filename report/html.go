@@ -31,7 +31,7 @@ var palette = struct {
 	Over:  "#b3402a",
 	Mark:  "#a3301c",
 	Mean:  "#5c4a8a",
-	Shade: [3]string{"#d9e7f3", "#f8e1c4", "#dcecd3"},
+	Shade: [3]string{"#c9def0", "#f5d3a8", "#cde6c0"},
 	Split: "#6b3590",
 }
 
@@ -59,7 +59,7 @@ dl.facts div { display: flex; gap: 6px; }
 dl.facts dt { color: $muted; }
 dl.facts dd { margin: 0; font-weight: 600; }
 section { background: $card; border: 1px solid $rule; border-radius: 6px; padding: 14px 16px; margin: 14px 0; }
-.cards { display: grid; grid-template-columns: repeat(auto-fill, minmax(150px, 1fr)); gap: 8px; margin: 6px 0 12px; }
+.cards { display: grid; grid-template-columns: repeat(auto-fill, minmax(110px, 1fr)); gap: 8px; margin: 6px 0 12px; }
 .card { border: 1px solid $rule; border-left: 4px solid $bar; border-radius: 4px; padding: 6px 10px; background: $card; }
 .card.warn { border-left-color: $over; }
 .card .v { display: block; font-size: 1.35em; font-weight: 700; font-variant-numeric: tabular-nums; }
@@ -89,9 +89,9 @@ td.src { overflow-wrap: anywhere; }
 ul.notes { padding-left: 20px; }
 ul.notes li { margin: 4px 0; }
 .pieces { white-space: pre-wrap; overflow-wrap: anywhere; font: 14px/1.9 ui-monospace, "Cascadia Mono", "DejaVu Sans Mono", monospace; border: 1px solid $rule; border-radius: 4px; padding: 10px; max-height: 34em; overflow-y: auto; background: $card; }
-.p { border-radius: 2px; -webkit-print-color-adjust: exact; print-color-adjust: exact; }
+.p { border-radius: 2px; box-shadow: inset -1px 0 0 $card; -webkit-print-color-adjust: exact; print-color-adjust: exact; }
 .p0 { background: $shade0; } .p1 { background: $shade1; } .p2 { background: $shade2; }
-.p.multi { text-decoration: underline dotted $split 2px; text-underline-offset: 3px; }
+.p.multi { text-decoration: underline dotted $split 1px; text-underline-offset: 4px; }
 .nl { color: $muted; font-size: 0.8em; }
 .legend { font-size: 0.9em; color: $muted; }
 .legend .p { padding: 0 4px; color: $ink; }

@@ -31,7 +31,7 @@ func WriteSurveyHTML(w io.Writer, s *Survey, sample *Sample, rows int) error {
 			{Label: "tokens per word", Value: Ratio(float64(t.Tokens), float64(t.Words))},
 			{Label: "bytes per token", Value: Ratio(float64(t.Bytes), float64(t.Tokens))},
 			{Label: windowLabel(s.Vocabulary.Window), Value: overWindowValue(s), Warn: t.OverWindow > 0},
-			{Label: fmt.Sprintf("not counted (%s failed)", Num(t.Failed)), Value: Num(t.Skipped), Warn: t.Failed > 0},
+			{Label: fmt.Sprintf("not counted, %s failed", Num(t.Failed)), Value: Num(t.Skipped), Warn: t.Failed > 0},
 		},
 	})
 
@@ -54,15 +54,15 @@ func WriteSurveyHTML(w io.Writer, s *Survey, sample *Sample, rows int) error {
 	}
 	p.Sections = append(p.Sections, spread)
 
+	if v := sampleViewOf(sample); v != nil {
+		p.Sections = append(p.Sections, section{ID: "sample", Heading: "Where the text breaks", Sample: v})
+	}
 	if len(s.Largest) > 0 {
 		p.Sections = append(p.Sections, section{
 			ID: "largest", Heading: "Largest documents",
 			Intro:  largestIntro(s),
 			Charts: []template.HTML{largestChart(s).SVG()},
 		})
-	}
-	if v := sampleViewOf(sample); v != nil {
-		p.Sections = append(p.Sections, section{ID: "sample", Heading: "Where the text breaks", Sample: v})
 	}
 	if len(s.Formats) > 0 {
 		p.Sections = append(p.Sections, section{ID: "formats", Heading: "By file type", Tables: []tableView{tableOf(formatGrid(s), -1)}})
@@ -90,9 +90,9 @@ func vocabFacts(name string, size, window int) []fact {
 
 func windowLabel(win int) string {
 	if win <= 0 {
-		return "over the window (window not known)"
+		return "over the window (not known)"
 	}
-	return fmt.Sprintf("over the %s-token window on their own", Num(win))
+	return "over the window on their own"
 }
 
 func overWindowValue(s *Survey) string {

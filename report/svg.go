@@ -199,7 +199,7 @@ type barList struct {
 // SVG renders the chart.
 func (c *barList) SVG() template.HTML {
 	const w = 720.0
-	const left, right, top, bottom, rowH = 250.0, 96.0, 40.0, 50.0, 24.0
+	const left, right, top, bottom, rowH = 250.0, 96.0, 52.0, 50.0, 24.0
 	pw := w - left - right
 	h := top + bottom + rowH*float64(len(c.Rows))
 	max := 0.0
