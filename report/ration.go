@@ -1,13 +1,16 @@
 package report
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
+	"io"
 	"sort"
 	"unicode"
 	"unicode/utf8"
 
 	"morsel/bpe"
+	"morsel/corpus"
 )
 
 // The kinds of cut a chunk ends at, from the most to the least wanted.
@@ -58,8 +61,8 @@ type Rationer struct {
 	Generic  bool // the encoder's split rule is not the GPT-2 rule
 }
 
-// encodeWindow is how much of a document is encoded at once.
-const encodeWindow = 1 << 20
+// blockMin is the fewest bytes between two marks of the document's count.
+const blockMin = 128
 
 // Cut splits text, the document named source (record, for reports), and
 // returns its chunks in order with the document's own token count. With
@@ -77,7 +80,7 @@ func (r *Rationer) Cut(source string, record int, text []byte, keepText bool) ([
 	for {
 		e, cut, tok, err := c.next(s, prevEnd+1)
 		if err != nil {
-			return out, len(c.ends), err
+			return out, c.total, err
 		}
 		ch := Chunk{Source: source, Record: record, Chunk: len(out), Start: s, End: e, Tokens: tok, Cut: cut}
 		if keepText {
@@ -85,7 +88,7 @@ func (r *Rationer) Cut(source string, record int, text []byte, keepText bool) ([
 		}
 		out = append(out, ch)
 		if e == len(text) {
-			return out, len(c.ends), nil
+			return out, c.total, nil
 		}
 		prevEnd = e
 		s = e
@@ -97,17 +100,24 @@ func (r *Rationer) Cut(source string, record int, text []byte, keepText bool) ([
 
 // cutter holds one document's state while it is cut.
 type cutter struct {
-	r        *Rationer
-	text     []byte
-	ends     []uint32 // byte end of every token of the whole document's encoding
-	generic  bool
-	before   []byte
-	after    []byte
-	preCut   int // before[:preCut] counts on its own
-	preTok   int
-	postCut  int // after[postCut:] counts on its own
-	postTok  int
-	frameTok int // tokens of the frame around an empty document, overhead included
+	r    *Rationer
+	text []byte
+	// marks are offsets in text, from 0 to len(text), and cums the
+	// whole document's tokens before each: exact at every mark, and
+	// estimated in between by bytes.
+	marks   []uint32
+	cums    []uint32
+	total   int
+	generic bool
+	before  []byte
+	after   []byte
+	preCut  int // before[:preCut] counts on its own
+	preTok  int
+	postCut int // after[postCut:] counts on its own
+	postTok int
+	// frameTok is the tokens of the frame around an empty document,
+	// overhead included.
+	frameTok int
 	buf      []byte
 }
 
@@ -126,66 +136,95 @@ func (r *Rationer) newCutter(name string, text []byte) *cutter {
 		}
 	}
 	c.frameTok = r.Enc.Count(r.Frame.Assemble(name, nil)) + r.Overhead
-	c.encode()
+	if c.generic {
+		c.encodeWhole()
+	} else {
+		c.countBlocks()
+	}
 	return c
 }
 
-// encode records the byte end of every token of the whole document. With
-// the GPT-2 rule it encodes a window at a time, cut at pre-token edges that
-// do not depend on context.
-func (c *cutter) encode() {
+// countBlocks counts the document a block at a time, each block ending at
+// a pre-token edge that holds in any context (see safeCut), so the sum is
+// the whole document's count and every mark's count is exact.
+func (c *cutter) countBlocks() {
 	n := len(c.text)
+	c.marks = make([]uint32, 1, n/blockMin+2)
+	c.cums = make([]uint32, 1, n/blockMin+2)
+	sum := 0
+	for x := 0; x < n; {
+		y := firstSafeCut(c.text, x+blockMin, n)
+		if y == 0 {
+			y = n
+		}
+		sum += c.r.Enc.Count(c.text[x:y])
+		c.marks = append(c.marks, uint32(y))
+		c.cums = append(c.cums, uint32(sum))
+		x = y
+	}
+	c.total = sum
+}
+
+// encodeWhole encodes the whole document at once and marks the end of
+// every token: the counts between marks are estimates for the search only,
+// as a split rule other than GPT-2's has no context-free edges.
+func (c *cutter) encodeWhole() {
 	v := c.r.Enc.Vocab()
-	c.ends = make([]uint32, 0, n/3+16)
-	var ids []int
+	ids := c.r.Enc.Encode(c.text)
+	c.marks = make([]uint32, 1, len(ids)+2)
+	c.cums = make([]uint32, 1, len(ids)+2)
 	pos := 0
-	for w0 := 0; w0 < n; {
-		w1 := n
-		if !c.generic && n-w0 > encodeWindow {
-			if k := lastSafeCut(c.text, w0+encodeWindow/2, w0+encodeWindow); k > 0 {
-				w1 = k
-			} else if k := firstSafeCut(c.text, w0+encodeWindow, n); k > 0 {
-				w1 = k
-			}
+	for i, id := range ids {
+		t, _ := v.Token(id)
+		pos += len(t)
+		if pos > len(c.text) {
+			pos = len(c.text)
 		}
-		ids, _ = c.r.Enc.EncodeStats(ids[:0], c.text[w0:w1])
-		for _, id := range ids {
-			t, _ := v.Token(id)
-			pos += len(t)
-			c.ends = append(c.ends, uint32(pos))
-		}
-		w0 = w1
-	}
-	if pos != n {
-		// The ids do not spell the text back (a vocabulary whose special
-		// tokens are not their own text, say): keep the counts as
-		// estimates and count every chunk whole.
-		c.generic = true
-		for i := range c.ends {
-			if int(c.ends[i]) > n {
-				c.ends[i] = uint32(n)
-			}
-		}
-		if len(c.ends) > 0 {
-			c.ends[len(c.ends)-1] = uint32(n)
+		if pos > int(c.marks[len(c.marks)-1]) {
+			c.marks = append(c.marks, uint32(pos))
+			c.cums = append(c.cums, uint32(i+1))
 		}
 	}
+	if int(c.marks[len(c.marks)-1]) != len(c.text) {
+		c.marks = append(c.marks, uint32(len(c.text)))
+		c.cums = append(c.cums, uint32(len(ids)))
+	}
+	c.total = len(ids)
 }
 
-// tokAt returns how many of the document's tokens end at or before x.
+// tokAt returns an estimate of the document's tokens before offset x:
+// exact at a mark, by bytes between marks.
 func (c *cutter) tokAt(x int) int {
-	return sort.Search(len(c.ends), func(i int) bool { return int(c.ends[i]) > x })
+	i := sort.Search(len(c.marks), func(i int) bool { return int(c.marks[i]) > x }) - 1
+	if i < 0 {
+		return 0
+	}
+	if i == len(c.marks)-1 {
+		return int(c.cums[i])
+	}
+	m0, m1 := int(c.marks[i]), int(c.marks[i+1])
+	k0, k1 := int(c.cums[i]), int(c.cums[i+1])
+	return k0 + (x-m0)*(k1-k0)/(m1-m0)
 }
 
-// posAfter returns the byte offset after the document's first k tokens.
+// posAfter returns an estimate of the offset after the document's first k
+// tokens: exact at a mark, by bytes between marks.
 func (c *cutter) posAfter(k int) int {
 	if k <= 0 {
 		return 0
 	}
-	if k > len(c.ends) {
+	if k >= c.total {
 		return len(c.text)
 	}
-	return int(c.ends[k-1])
+	i := sort.Search(len(c.cums), func(i int) bool { return int(c.cums[i]) >= k })
+	// cums[i-1] < k <= cums[i]
+	m0, m1 := int(c.marks[i-1]), int(c.marks[i])
+	k0, k1 := int(c.cums[i-1]), int(c.cums[i])
+	p := m0 + (k-k0)*(m1-m0)/(k1-k0)
+	if p <= m0 {
+		p = m0 + 1
+	}
+	return p
 }
 
 // next finds the end of the chunk that starts at s: the latest good cut
@@ -216,7 +255,7 @@ func (c *cutter) pick(s, minEnd, limit, ub int) (int, string) {
 	ks := c.tokAt(s)
 	maxE := s
 	if limit > 0 {
-		if ks+limit >= len(c.ends) {
+		if ks+limit >= c.total {
 			maxE = n
 		} else {
 			maxE = c.posAfter(ks + limit)
@@ -275,38 +314,47 @@ func (c *cutter) pick(s, minEnd, limit, ub int) (int, string) {
 // latest line break, else the latest sentence end, or 0.
 func (c *cutter) naturalBreak(lo, hi int) (int, string) {
 	t := c.text
-	line, sentence := 0, 0
-	for p := hi; p >= lo && p > 0; p-- {
-		if p >= len(t) {
+	if hi >= len(t) {
+		hi = len(t) - 1
+	}
+	if lo < 1 {
+		lo = 1
+	}
+	if lo > hi {
+		return 0, ""
+	}
+	// A break at p follows the line feed at p-1: look for line feeds in
+	// t[lo-1 : hi], latest first.
+	line := 0
+	for end := hi; end >= lo; {
+		i := bytes.LastIndexByte(t[lo-1:end], '\n')
+		if i < 0 {
+			break
+		}
+		p := lo - 1 + i + 1
+		end = p - 1
+		if t[p] == '\n' || t[p] == '\r' {
 			continue
 		}
-		prev := t[p-1]
-		switch {
-		case prev == '\n':
-			if t[p] == '\n' || t[p] == '\r' {
-				continue
-			}
-			q := p - 2
-			if q >= 0 && t[q] == '\r' {
-				q--
-			}
-			if q >= 0 && t[q] == '\n' {
-				return p, CutParagraph
-			}
-			if line == 0 {
-				line = p
-			}
-		case sentence == 0 && (t[p] == ' ' || t[p] == '\t') && endsSentence(t[:p]):
-			sentence = p
-		case sentence == 0 && prev >= 0x80 && endsSentenceWide(t[:p]):
-			sentence = p
+		q := p - 2
+		if q >= 0 && t[q] == '\r' {
+			q--
+		}
+		if q >= 0 && t[q] == '\n' {
+			return p, CutParagraph
+		}
+		if line == 0 {
+			line = p
 		}
 	}
 	if line > 0 {
 		return line, CutLine
 	}
-	if sentence > 0 {
-		return sentence, CutSentence
+	for p := hi; p >= lo; p-- {
+		b := t[p-1]
+		if (t[p] == ' ' || t[p] == '\t') && endsSentence(t[:p]) || b >= 0x80 && endsSentenceWide(t[:p]) {
+			return p, CutSentence
+		}
 	}
 	return 0, ""
 }
@@ -387,17 +435,16 @@ func (c *cutter) overlapStart(s, e int) int {
 func (c *cutter) framed(s, e int) int {
 	t := c.text[s:e]
 	if !c.generic {
-		a := firstSafeCut(t, 0, len(t))
-		b := lastSafeCut(t, 0, len(t))
-		if a > 0 && b > a {
-			ka, kb := c.tokAt(s+a), c.tokAt(s+b)
-			if c.posAfter(ka) == s+a && c.posAfter(kb) == s+b {
-				c.buf = append(append(c.buf[:0], c.before[c.preCut:]...), t[:a]...)
-				head := c.preTok + c.r.Enc.Count(c.buf)
-				c.buf = append(append(c.buf[:0], t[b:]...), c.after[:c.postCut]...)
-				tail := c.r.Enc.Count(c.buf) + c.postTok
-				return head + (kb - ka) + tail + c.r.Overhead
-			}
+		// The first mark after s and the last before e.
+		ia := sort.Search(len(c.marks), func(i int) bool { return int(c.marks[i]) > s })
+		ib := sort.Search(len(c.marks), func(i int) bool { return int(c.marks[i]) >= e }) - 1
+		if ia < ib {
+			a, b := int(c.marks[ia])-s, int(c.marks[ib])-s
+			c.buf = append(append(c.buf[:0], c.before[c.preCut:]...), t[:a]...)
+			head := c.preTok + c.r.Enc.Count(c.buf)
+			c.buf = append(append(c.buf[:0], t[b:]...), c.after[:c.postCut]...)
+			tail := c.r.Enc.Count(c.buf) + c.postTok
+			return head + int(c.cums[ib]-c.cums[ia]) + tail + c.r.Overhead
 		}
 	}
 	c.buf = append(append(append(c.buf[:0], c.before...), t...), c.after...)
@@ -467,4 +514,187 @@ func charEdge(t []byte, p int) bool {
 		}
 	}
 	return true
+}
+
+// RationDoc is one document's chunk plan.
+type RationDoc struct {
+	Source   string  `json:"source"`
+	Record   int     `json:"record"`
+	Bytes    int     `json:"bytes"`
+	Tokens   int     `json:"tokens"` // the document's own tokens
+	Chunks   int     `json:"chunks"`
+	Largest  int     `json:"largest"`  // tokens of its largest chunk's request
+	Smallest int     `json:"smallest"` // and of its smallest
+	Plan     []Chunk `json:"-"`
+}
+
+// FillBin counts the chunks whose request fills From% <= fill < To% of the
+// budget (the last bin takes 100%).
+type FillBin struct {
+	From   int `json:"from"`
+	To     int `json:"to"`
+	Chunks int `json:"chunks"`
+}
+
+// RationTotals sums a ration report.
+type RationTotals struct {
+	Documents int   `json:"documents"`
+	Split     int   `json:"split"` // documents cut into more than one chunk
+	Chunks    int   `json:"chunks"`
+	Tokens    int64 `json:"tokens"` // the chunks' request tokens, summed
+	Skipped   int   `json:"skipped"`
+	Failed    int   `json:"failed"`
+	NoRoom    int   `json:"no_room"` // documents the budget could not hold a piece of
+}
+
+// RationReport is the report of morsel ration.
+type RationReport struct {
+	Vocabulary bpe.Info       `json:"vocabulary"`
+	Target     string         `json:"target,omitempty"`
+	Budget     int            `json:"budget"`
+	Overlap    int            `json:"overlap"`
+	Overhead   int            `json:"overhead"`
+	Frame      string         `json:"frame"`
+	Documents  []RationDoc    `json:"documents"`
+	Skipped    []Skipped      `json:"skipped"`
+	Totals     RationTotals   `json:"totals"`
+	Fill       []FillBin      `json:"fill"`
+	FillSpread Spread         `json:"fill_spread"` // percent of the budget, over all chunks but each document's last
+	Cuts       map[string]int `json:"cuts"`        // chunks by the kind of cut that ends them
+}
+
+// fillEdges are the bin edges of the fill distribution, in percent.
+var fillEdges = []int{0, 25, 50, 75, 90, 100}
+
+// RationCollector folds walk results into a RationReport.
+type RationCollector struct {
+	r     RationReport
+	fills []int
+}
+
+// NewRationCollector starts a ration report for r.
+func NewRationCollector(r *Rationer, target string) *RationCollector {
+	rc := &RationCollector{r: RationReport{Vocabulary: r.Enc.Vocab().Info(), Target: target, Budget: r.Budget, Overlap: r.Overlap,
+		Overhead: r.Overhead, Frame: r.Frame.Label(), Documents: []RationDoc{}, Skipped: []Skipped{}, Cuts: map[string]int{}}}
+	for i := 0; i+1 < len(fillEdges); i++ {
+		rc.r.Fill = append(rc.r.Fill, FillBin{From: fillEdges[i], To: fillEdges[i+1]})
+	}
+	return rc
+}
+
+// RationOf cuts one document with r, reading its text; with keepText the
+// plan's chunks carry their text.
+func RationOf(r *Rationer, d *corpus.Document, keepText bool) (RationDoc, error) {
+	text, err := Text(d)
+	if err != nil {
+		return RationDoc{}, err
+	}
+	chunks, tokens, err := r.Cut(d.Source, d.Record, text, keepText)
+	rd := RationDoc{Source: d.Source, Record: d.Record, Bytes: len(text), Tokens: tokens, Chunks: len(chunks), Plan: chunks}
+	for i, c := range chunks {
+		if i == 0 || c.Tokens > rd.Largest {
+			rd.Largest = c.Tokens
+		}
+		if i == 0 || c.Tokens < rd.Smallest {
+			rd.Smallest = c.Tokens
+		}
+	}
+	return rd, err
+}
+
+// Add takes one walk item with its plan, or the error it gave.
+func (rc *RationCollector) Add(it corpus.Item, d RationDoc, err error) {
+	switch {
+	case it.Skip != nil:
+		rc.r.Skipped = append(rc.r.Skipped, SkipOf(it.Skip))
+		return
+	case err != nil:
+		s := FailedDoc(it.Doc, err)
+		if errors.Is(err, ErrNoRoom) {
+			s.Reason = "no-room"
+			rc.r.Totals.NoRoom++
+		}
+		rc.r.Skipped = append(rc.r.Skipped, s)
+		return
+	}
+	t := &rc.r.Totals
+	t.Documents++
+	if d.Chunks > 1 {
+		t.Split++
+	}
+	t.Chunks += d.Chunks
+	for i, c := range d.Plan {
+		t.Tokens += int64(c.Tokens)
+		rc.r.Cuts[c.Cut]++
+		pct := c.Tokens * 100 / rc.r.Budget
+		k := 0
+		for k+1 < len(rc.r.Fill) && pct >= rc.r.Fill[k].To {
+			k++
+		}
+		rc.r.Fill[k].Chunks++
+		if i < len(d.Plan)-1 {
+			rc.fills = append(rc.fills, pct)
+		}
+	}
+	d.Plan = nil
+	rc.r.Documents = append(rc.r.Documents, d)
+}
+
+// Finish sums the report and returns it.
+func (rc *RationCollector) Finish() *RationReport {
+	for _, s := range rc.r.Skipped {
+		rc.r.Totals.Skipped++
+		if s.Failed {
+			rc.r.Totals.Failed++
+		}
+	}
+	rc.r.FillSpread = SpreadOf(rc.fills)
+	return &rc.r
+}
+
+// WriteRation renders a ration report in format f.
+func WriteRation(w io.Writer, f Format, r *RationReport) error {
+	if f == JSON {
+		return WriteJSON(w, r)
+	}
+	g := &Grid{Title: fmt.Sprintf("Chunk plan: budget %s tokens a request (frame %s, overlap %s)", Num(r.Budget), r.Frame, Num(r.Overlap)),
+		Header: []string{"document", "bytes", "tokens", "chunks", "largest", "smallest"}, Right: []int{1, 2, 3, 4, 5}}
+	if f == CSV {
+		g.Header = []string{"source", "record", "bytes", "tokens", "chunks", "largest", "smallest"}
+		for _, d := range r.Documents {
+			g.AddRow(d.Source, fmt.Sprint(d.Record), fmt.Sprint(d.Bytes), fmt.Sprint(d.Tokens), fmt.Sprint(d.Chunks), fmt.Sprint(d.Largest), fmt.Sprint(d.Smallest))
+		}
+		return g.WriteCSV(w)
+	}
+	for _, d := range r.Documents {
+		g.AddRow(Where(d.Source, d.Record), Num(d.Bytes), Num(d.Tokens), Num(d.Chunks), Num(d.Largest), Num(d.Smallest))
+	}
+	t := r.Totals
+	sum := &Grid{Title: "Totals", Header: []string{"measure", "value"}, Right: []int{1}}
+	sum.AddRow("documents", Num(t.Documents))
+	sum.AddRow("cut into several chunks", Num(t.Split))
+	sum.AddRow("chunks (requests)", Num(t.Chunks))
+	sum.AddRow("request tokens", Num(t.Tokens))
+	sum.AddRow("not cut", fmt.Sprintf("%s (%s failed, %s with no room)", Num(t.Skipped), Num(t.Failed), Num(t.NoRoom)))
+	fs := r.FillSpread
+	fill := &Grid{Title: fmt.Sprintf("How full the chunks are (share of the budget); all but each document's last: min %d%%, median %d%%, max %d%%", fs.Min, fs.Median, fs.Max),
+		Header: []string{"fill", "chunks"}, Right: []int{1}}
+	for i, b := range r.Fill {
+		label := fmt.Sprintf("%d%% - %d%%", b.From, b.To)
+		if i == len(r.Fill)-1 {
+			label += " (incl.)"
+		}
+		fill.AddRow(label, Num(b.Chunks))
+	}
+	cuts := &Grid{Title: "Where chunks end", Header: []string{"cut", "chunks"}, Right: []int{1}}
+	for _, k := range []string{CutEnd, CutParagraph, CutLine, CutSentence, CutPreToken, CutInside} {
+		if n := r.Cuts[k]; n > 0 {
+			cuts.AddRow(k, Num(n))
+		}
+	}
+	grids := []*Grid{g, sum, fill, cuts}
+	if len(r.Skipped) > 0 {
+		grids = append(grids, SkipGrid(r.Skipped))
+	}
+	return WriteGrids(w, f, grids...)
 }
