@@ -79,10 +79,10 @@ type QuoteTotal struct {
 
 // Quote is the report of morsel quote.
 type Quote struct {
-	Caution   string      `json:"caution"`
+	Caution   string       `json:"caution"`
 	Targets   []QuoteTotal `json:"targets"`
-	Documents []QuoteDoc  `json:"documents"`
-	Skipped   []Skipped   `json:"skipped"`
+	Documents []QuoteDoc   `json:"documents"`
+	Skipped   []Skipped    `json:"skipped"`
 	Totals    struct {
 		Documents int `json:"documents"`
 		Skipped   int `json:"skipped"`
