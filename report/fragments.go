@@ -129,6 +129,7 @@ type Fragmenter struct {
 	enc     *bpe.Encoder
 	terms   []Term
 	byFirst map[string][]int // a term's first segment -> terms starting with it
+	lens    []uint16         // every token's length in bytes, or longToken
 
 	mu     sync.Mutex
 	shards []*shard    // every shard made, for Finish
@@ -186,6 +187,12 @@ type pendingTerm struct{ term, start, end int }
 // the glossary terms (none when terms is nil).
 func NewFragmenter(enc *bpe.Encoder, terms []Term) *Fragmenter {
 	f := &Fragmenter{enc: enc, terms: terms, docs: []DocFertility{}, skipped: []Skipped{}, free: make(chan *shard, 256)}
+	v := enc.Vocab()
+	f.lens = make([]uint16, v.Size())
+	for id := range f.lens {
+		tok, _ := v.Token(id)
+		f.lens[id] = uint16(min(len(tok), longToken))
+	}
 	if len(terms) > 0 {
 		f.byFirst = map[string][]int{}
 		for i, t := range terms {
@@ -196,6 +203,10 @@ func NewFragmenter(enc *bpe.Encoder, terms []Term) *Fragmenter {
 	}
 	return f
 }
+
+// longToken in Fragmenter.lens stands for a token of that many bytes or
+// more, whose length is looked up in the vocabulary.
+const longToken = 1<<16 - 1
 
 func (f *Fragmenter) getShard() *shard {
 	select {
@@ -235,17 +246,20 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	sh := f.getShard()
 	defer f.putShard(sh)
 	dw := &DocWords{Bytes: len(text)}
-	v := f.enc.Vocab()
 	ids, _ := f.enc.EncodeStats(sh.ids[:0], text)
 	sh.ids = ids
 	ends := sh.ends[:0]
 	pos := 0
 	for _, id := range ids {
-		tok, ok := v.Token(id)
-		if !ok {
+		if uint(id) >= uint(len(f.lens)) {
 			return nil, fmt.Errorf("the encoder gave id %d, which is not in the vocabulary", id)
 		}
-		pos += len(tok)
+		n := int(f.lens[id])
+		if n == longToken {
+			tok, _ := f.enc.Vocab().Token(id)
+			n = len(tok)
+		}
+		pos += n
 		ends = append(ends, pos)
 	}
 	sh.ends = ends
@@ -291,6 +305,13 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 			if f.terms != nil {
 				f.termsAt(sh, dw, text, s, text[s:e])
 			}
+		} else if c == ' ' && s+1 < len(text) && text[s+1] < utf8.RuneSelf && text[s+1] != ' ' {
+			// The other common case: one space between words (WB999).
+			if f.terms != nil {
+				f.termsAt(sh, dw, text, s, text[s:s+1])
+			}
+			s++
+			continue
 		} else {
 			e = nextSegment(text, s)
 			seg := text[s:e]
