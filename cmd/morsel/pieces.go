@@ -99,6 +99,12 @@ func writePieces(w io.Writer, f report.Format, v *bpe.Vocab, ids []int, nbytes i
 	}
 	sum := &report.Grid{Header: []string{"tokens", "bytes", "bytes per token"}, Right: []int{0, 1, 2}}
 	sum.AddRow(report.Num(len(ids)), report.Num(nbytes), report.Ratio(float64(nbytes), float64(len(ids))))
+	info := v.Info()
+	about := fmt.Sprintf("vocabulary %s: %s tokens, %s merges, %d special", info.Name, report.Num(info.Size), report.Num(info.Merges), len(info.Specials))
+	if info.Window > 0 {
+		about += fmt.Sprintf(", %s-token window", report.Num(info.Window))
+	}
+	sum.Notes = append(sum.Notes, about)
 	if f == report.CSV {
 		return g.WriteCSV(w)
 	}
