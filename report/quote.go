@@ -148,6 +148,7 @@ func (qc *QuoteCollector) Add(it corpus.Item, d QuoteDoc, err error) {
 		s := FailedDoc(it.Doc, err)
 		if errors.Is(err, ErrNoRoom) {
 			s.Reason = "no-room"
+			s.Failed = false // it was read; the budget is what failed
 		}
 		qc.q.Skipped = append(qc.q.Skipped, s)
 	default:

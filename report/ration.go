@@ -612,6 +612,7 @@ func (rc *RationCollector) Add(it corpus.Item, d RationDoc, err error) {
 		s := FailedDoc(it.Doc, err)
 		if errors.Is(err, ErrNoRoom) {
 			s.Reason = "no-room"
+			s.Failed = false // it was read; the budget is what failed
 			rc.r.Totals.NoRoom++
 		}
 		rc.r.Skipped = append(rc.r.Skipped, s)

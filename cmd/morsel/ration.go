@@ -1,0 +1,124 @@
+package main
+
+import (
+	"bufio"
+	"encoding/json"
+	"fmt"
+	"os"
+
+	"github.com/spf13/cobra"
+
+	"morsel/corpus"
+	"morsel/report"
+)
+
+func init() { extraCommands = append(extraCommands, newRation) }
+
+func newRation(sh *shared) *cobra.Command {
+	var cf corpusFlags
+	var tf targetFlags
+	var rf requestFlags
+	var budget, overlap int
+	var emit string
+	c := &cobra.Command{
+		Use:   "ration PATH...",
+		Short: "Plan chunks so that every framed request stays within a token budget",
+		Long: `ration splits every document into chunks whose requests (the chunk in its --frame, plus
+--overhead) take at most --budget tokens. The default budget is the window less the answer
+reserved: --window and --reserve, or the target's window and answer size, else the
+vocabulary's window.
+
+Every chunk is counted on its own framed text, so its count is exact; the split moves BPE
+boundaries, and a slice of the whole document's tokens is not trusted. Each chunk ends at
+the latest place that fits, preferring, among places that fill at least half the budget, a
+paragraph break, then a line break, then a sentence end, then any edge between
+pre-tokens; a chunk is cut inside a pre-token only when one pre-token alone is over the
+budget, and never inside a UTF-8 character. Without --overlap the chunks put together give
+back the document byte for byte; --overlap N starts each chunk with up to N tokens of the
+previous chunk's tail, at a pre-token edge.
+
+The report lists chunks per document and how full the chunks are. --emit FILE writes the
+plan as JSON Lines, one chunk a line: source, record, chunk (from 0), start and end (byte
+offsets in the document), tokens (the request's), cut (the kind of place it ends at) and
+text.
+
+Exit status: 1 when an input could not be read, else 3 when a document cannot be cut
+because the budget cannot hold the frame and one character, else 0.`,
+		Example: `  morsel ration testdata/demo --budget 512 --frame testdata/demo/frame.txt
+  morsel ration testdata/demo --target harbor-small --targets testdata/demo/morsel.toml --emit plan.jsonl
+  morsel ration notes/ --budget 2000 --overlap 100 --format json`,
+		Args: cobra.MinimumNArgs(1),
+		RunE: func(c *cobra.Command, args []string) error {
+			f, err := sh.outFormat("ration", report.Table, report.JSON, report.CSV, report.Markdown)
+			if err != nil {
+				return err
+			}
+			rq, err := sh.request(c, "ration", &tf, &rf)
+			if err != nil {
+				return err
+			}
+			if !c.Flags().Changed("budget") {
+				budget = rq.answer.Budget(rq.window)
+			}
+			if budget <= 0 {
+				return usagef("ration", "the budget is %d tokens: the answer reserved takes the whole %d-token window", budget, rq.window)
+			}
+			if overlap < 0 || 2*overlap >= budget {
+				return usagef("ration", "--overlap %d: want 0 or more and less than half the %d-token budget", overlap, budget)
+			}
+			r := &report.Rationer{Enc: rq.enc, Frame: rq.frame, Budget: budget, Overlap: overlap, Overhead: rq.overhead, Generic: sh.splitPattern != ""}
+			var out *bufio.Writer
+			var jl *json.Encoder
+			if emit != "" {
+				file, err := os.Create(emit)
+				if err != nil {
+					return &inputError{fmt.Errorf("--emit: %w", err)}
+				}
+				defer file.Close()
+				out = bufio.NewWriterSize(file, 1<<16)
+				jl = json.NewEncoder(out)
+				jl.SetEscapeHTML(false)
+			}
+			rc := report.NewRationCollector(r, rq.target)
+			err = report.Walk(args, cf.options(), sh.workers, sh.progress(),
+				func(d *corpus.Document) (report.RationDoc, error) { return report.RationOf(r, d, jl != nil) },
+				func(it corpus.Item, d report.RationDoc, err error) error {
+					if jl != nil && err == nil {
+						for i := range d.Plan {
+							if err := jl.Encode(&d.Plan[i]); err != nil {
+								return fmt.Errorf("--emit %s: %w", emit, err)
+							}
+						}
+					}
+					rc.Add(it, d, err)
+					return nil
+				})
+			if err != nil {
+				return err
+			}
+			if out != nil {
+				if err := out.Flush(); err != nil {
+					return fmt.Errorf("--emit %s: %w", emit, err)
+				}
+			}
+			rep := rc.Finish()
+			if err := report.WriteRation(sh.stdout, f, rep); err != nil {
+				return err
+			}
+			if err := sh.skipStatus(rep.Skipped); err != nil {
+				return err
+			}
+			if rep.Totals.NoRoom > 0 {
+				return &checkFailed{fmt.Sprintf("%s document(s) could not be cut within the %s-token budget", report.Num(rep.Totals.NoRoom), report.Num(budget))}
+			}
+			return nil
+		},
+	}
+	addCorpusFlags(c, &cf)
+	addTargetFlags(c, &tf, false)
+	addRequestFlags(c, &rf)
+	c.Flags().IntVar(&budget, "budget", 0, "tokens a chunk's request may take, frame and overhead included (default: window - reserve)")
+	c.Flags().IntVar(&overlap, "overlap", 0, "start each chunk with up to this many tokens of the previous chunk's tail")
+	c.Flags().StringVar(&emit, "emit", "", "write the chunks to this file as JSON Lines")
+	return c
+}

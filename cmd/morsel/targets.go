@@ -1,0 +1,164 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+
+	"github.com/spf13/cobra"
+
+	"morsel/bpe"
+	"morsel/report"
+)
+
+// defaultTargets is the targets file looked for in the working folder.
+const defaultTargets = "morsel.toml"
+
+// targetFlags are --targets and --target, shared by fit, ration and quote.
+type targetFlags struct {
+	file  string
+	names []string
+}
+
+func addTargetFlags(c *cobra.Command, tf *targetFlags, many bool) {
+	f := c.Flags()
+	f.StringVar(&tf.file, "targets", "", "targets file (TOML) with [target.NAME] tables (default: "+defaultTargets+" in the working folder)")
+	if many {
+		f.StringArrayVar(&tf.names, "target", nil, "price for this target (repeatable; default: every target in the file)")
+	} else {
+		f.StringArrayVar(&tf.names, "target", nil, "take vocabulary, window, frame and answer size from this target; flags given override them")
+	}
+}
+
+// load reads the targets file: --targets, else morsel.toml in the working
+// folder. required says whether a missing default file is an error.
+func (tf *targetFlags) load(cmd string, required bool) (*report.Targets, error) {
+	path := tf.file
+	if path == "" {
+		path = defaultTargets
+		if _, err := os.Stat(path); errors.Is(err, fs.ErrNotExist) {
+			if !required {
+				return nil, nil
+			}
+			return nil, usagef(cmd, "no targets file: give --targets FILE or put %s in the working folder", defaultTargets)
+		}
+	}
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, &inputError{fmt.Errorf("reading targets: %w", err)}
+	}
+	ts, err := report.ParseTargets(path, data)
+	if err != nil {
+		return nil, usagef(cmd, "%v", err)
+	}
+	return ts, nil
+}
+
+// one returns the target --target names, or nil without --target.
+func (tf *targetFlags) one(cmd string) (*report.Target, error) {
+	if len(tf.names) == 0 {
+		return nil, nil
+	}
+	if len(tf.names) > 1 {
+		return nil, usagef(cmd, "--target: one target at a time here (morsel quote takes several)")
+	}
+	ts, err := tf.load(cmd, true)
+	if err != nil {
+		return nil, err
+	}
+	t, err := ts.Lookup(tf.names[0])
+	if err != nil {
+		return nil, usagef(cmd, "--target: %v", err)
+	}
+	return t, nil
+}
+
+// requestFlags describe one request: the frame around each document, the
+// window, the answer reserved and a fixed overhead.
+type requestFlags struct {
+	frame    string
+	window   int
+	reserve  int
+	overhead int
+}
+
+func addRequestFlags(c *cobra.Command, rf *requestFlags) {
+	f := c.Flags()
+	f.StringVar(&rf.frame, "frame", "", "prompt frame file wrapping each document, with {{document}} (and {{source}}) placeholders")
+	f.IntVar(&rf.window, "window", 0, "context window in tokens (default: the target's, else the vocabulary's)")
+	f.IntVar(&rf.reserve, "reserve", 0, "tokens kept for the answer (default: the target's answer_tokens or answer_ratio, else 0)")
+	f.IntVar(&rf.overhead, "overhead", 0, "fixed tokens added to every request for framing you know of (message markers, say)")
+}
+
+// request is what a command needs to weigh requests under one setting.
+type request struct {
+	enc      *bpe.Encoder
+	frame    *report.Frame
+	window   int
+	answer   report.Answer
+	overhead int
+	target   string
+}
+
+// loadFrame reads and parses a frame file: a file that cannot be read is
+// an input error (exit status 1), one without {{document}} bad usage.
+func loadFrame(cmd, path string) (*report.Frame, error) {
+	if path == "" {
+		return nil, nil
+	}
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, &inputError{fmt.Errorf("reading frame: %w", err)}
+	}
+	f, err := report.ParseFrame(path, data)
+	if err != nil {
+		return nil, usagef(cmd, "--frame: %v", err)
+	}
+	return f, nil
+}
+
+// request settles the request settings for cmd: the flags given, else the
+// target's fields, else the defaults.
+func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *requestFlags) (*request, error) {
+	t, err := tf.one(cmd)
+	if err != nil {
+		return nil, err
+	}
+	flags := c.Flags()
+	if rf.window < 0 || rf.reserve < 0 || rf.overhead < 0 {
+		return nil, usagef(cmd, "--window, --reserve and --overhead take 0 or more tokens")
+	}
+	rq := &request{overhead: rf.overhead, answer: report.Answer{Tokens: rf.reserve}}
+	framePath := rf.frame
+	if t != nil {
+		rq.target = t.Name
+		if t.Vocab != "" && !flags.Changed("vocab") && !flags.Changed("merges") {
+			sh.vocab, sh.merges = t.Vocab, t.Merges
+		}
+		if !flags.Changed("frame") {
+			framePath = t.Frame
+		}
+		if !flags.Changed("reserve") {
+			rq.answer = t.Answer
+		}
+	}
+	if rq.enc, err = sh.encoder(); err != nil {
+		return nil, err
+	}
+	switch {
+	case flags.Changed("window"):
+		rq.window = rf.window
+	case t != nil && t.Window > 0:
+		rq.window = t.Window
+	default:
+		rq.window = rq.enc.Vocab().Window()
+	}
+	if rq.window <= 0 {
+		return nil, usagef(cmd, "the vocabulary does not say its window: give --window N (or a target with window)")
+	}
+	if rq.frame, err = loadFrame(cmd, framePath); err != nil {
+		return nil, err
+	}
+	return rq, nil
+}
