@@ -11,6 +11,7 @@ import (
 	"github.com/rivo/uniseg"
 
 	"morsel/bpe"
+	"morsel/corpus"
 )
 
 func fragEncoder(t testing.TB) *bpe.Encoder {
@@ -293,4 +294,161 @@ func mustToken(t *testing.T, enc *bpe.Encoder, id uint32) []byte {
 		t.Fatalf("id %d", id)
 	}
 	return tok
+}
+
+func TestParseGlossary(t *testing.T) {
+	for _, c := range []struct {
+		name, in string
+		want     []Term
+		err      string
+	}{
+		{"plain", "\ufeff# comment\n\nQX-7731-Rb\n  Bathyphorus quillandri  \n\t# indented comment\nC#\n",
+			[]Term{{"QX-7731-Rb", 3}, {"Bathyphorus quillandri", 4}, {"C#", 6}}, ""},
+		{"crlf", "alpha\r\nbeta\r\n", []Term{{"alpha", 1}, {"beta", 2}}, ""},
+		{"empty", "", nil, ""},
+		{"duplicate", "alpha\nbeta\nalpha\n", nil, `g.txt:3: term "alpha" is already on line 1`},
+		{"not utf8", "alpha\nbe\xfftа\n", nil, "g.txt:2: the line is not valid UTF-8"},
+		{"control", "alpha\nbe\x00ta\n", nil, `g.txt:2: term "be\x00ta" holds the control character U+0000`},
+		{"tab inside", "two\twords\n", nil, "g.txt:1: term"},
+		{"too long", strings.Repeat("x", MaxTermBytes+1), nil, "g.txt:1: term of 201 bytes is longer than 200"},
+	} {
+		got, err := ParseGlossary("g.txt", strings.NewReader(c.in))
+		if c.err != "" {
+			if err == nil || !strings.HasPrefix(err.Error(), c.err) {
+				t.Errorf("%s: error %v, want %q", c.name, err, c.err)
+			}
+			continue
+		}
+		if err != nil || !slices.Equal(got, c.want) {
+			t.Errorf("%s: %v, %v; want %v", c.name, got, err, c.want)
+		}
+	}
+	if _, err := ParseGlossary("g.txt", strings.NewReader(strings.Repeat("y", 2<<20))); err == nil || !strings.HasPrefix(err.Error(), "g.txt:1:") {
+		t.Errorf("a 2 MB line: %v", err)
+	}
+}
+
+func FuzzParseGlossary(f *testing.F) {
+	f.Add("# c\nalpha\n\nbeta gamma\n")
+	f.Add("a\na\n")
+	f.Add("\xff\n")
+	f.Fuzz(func(t *testing.T, in string) {
+		terms, err := ParseGlossary("g.txt", strings.NewReader(in))
+		if err != nil {
+			if !strings.HasPrefix(err.Error(), "g.txt:") {
+				t.Fatalf("error without a place: %v", err)
+			}
+			return
+		}
+		seen := map[string]bool{}
+		for _, tm := range terms {
+			if tm.Text == "" || tm.Text != strings.TrimSpace(tm.Text) || tm.Text[0] == '#' || seen[tm.Text] || tm.Line < 1 {
+				t.Fatalf("bad term %+v", tm)
+			}
+			seen[tm.Text] = true
+		}
+	})
+}
+
+// TestGlossaryTerms checks term matching on word boundaries and the pieces
+// of each term alone and after a space. GPT-2 splits (bpe/gpt2): "oxymeridol"
+// oxy|mer|id|ol, 4, and " oxymeridol" ␣oxy|mer|id|ol, 4; " storm" one token.
+func TestGlossaryTerms(t *testing.T) {
+	enc := fragEncoder(t)
+	terms := []Term{{"oxymeridol", 1}, {"RV Marrowgull", 2}, {"storm", 3}, {"QX-7731-Rb", 4}}
+	fr := NewFragmenter(enc, terms)
+	for i, s := range []string{
+		// oxymeridol: 2 (not "oxymeridols", which is another word);
+		// RV Marrowgull: 1 (not "RV Marrowgulls"); storm: 1 (not "stormy").
+		"oxymeridol, oxymeridols and oxymeridol. RV Marrowgull met RV Marrowgulls in a stormy storm",
+		// QX-7731-Rb: 2, the second before a Katakana word (a boundary).
+		"QX-7731-Rb QX-7731-Rbx QX-7731-Rbセル",
+	} {
+		dw, err := fr.ScanText([]byte(s))
+		if err != nil {
+			t.Fatal(err)
+		}
+		fr.AddWords("doc", i+1, dw)
+	}
+	r := fr.Finish(FragmentOptions{MinPieces: 3, MinCount: 1})
+	want := []struct {
+		occ, docs int
+		flagged   bool
+	}{{2, 1, true}, {1, 1, true}, {1, 1, false}, {2, 1, true}}
+	for i, w := range want {
+		tr := r.Terms[i]
+		if tr.Occurrences != int64(w.occ) || tr.Documents != w.docs || tr.Flagged != w.flagged {
+			t.Errorf("%s: %+v, want %+v", tr.Term, tr, w)
+		}
+	}
+	ox := r.Terms[0]
+	if ox.PiecesAlone != 4 || ox.PiecesAfterSpace != 4 || !slices.Equal(ox.SplitAfterSpace, []string{" oxy", "mer", "id", "ol"}) {
+		t.Errorf("oxymeridol: %+v", ox)
+	}
+	// In context: the first occurrence starts the text (oxy|mer|id|ol), the
+	// second follows a space (␣oxy|mer|id|ol): 8 pieces, excess 8-2 = 6.
+	if ox.CorpusPieces != 4 || ox.Excess != 6 {
+		t.Errorf("oxymeridol in context: %+v", ox)
+	}
+	if st := r.Terms[2]; st.PiecesAfterSpace != 1 || st.Excess != 0 {
+		t.Errorf("storm: %+v", st)
+	}
+	if r.Totals.FlaggedTerm != 3 {
+		t.Errorf("flagged %d", r.Totals.FlaggedTerm)
+	}
+}
+
+// TestDemoPlantedTermsOnTop runs over the demo corpus, whose README lists
+// the invented terms planted there: the words ranked first are all parts of
+// those terms, and every planted term is flagged while the contrast words
+// of terms.txt are not.
+func TestDemoPlantedTermsOnTop(t *testing.T) {
+	planted := map[string]bool{}
+	for _, term := range []string{"QX-7731-Rb", "TH9-0044/K", "MRV-2210-Sx", "fluvantrazine", "oxymeridol", "cerulaphane",
+		"Bathyphorus quillandri", "Pelagonyx harrowensis", "Thalassodrix venmorei", "Vennskarth Sound", "Kelderwick",
+		"Tregallowmouth", "RV Marrowgull", "Saltmarrow Tidal Instruments"} {
+		for _, w := range strings.FieldsFunc(term, func(r rune) bool { return r == ' ' || r == '-' || r == '/' }) {
+			planted[w] = true
+		}
+	}
+	gf, err := os.Open("../testdata/demo/terms.txt")
+	if err != nil {
+		t.Fatal(err)
+	}
+	terms, err := ParseGlossary("terms.txt", gf)
+	gf.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	fr := NewFragmenter(fragEncoder(t), terms)
+	err = Walk([]string{"../testdata/demo"}, corpus.Options{}, 2, nil, fr.Scan,
+		func(it corpus.Item, dw *DocWords, err error) error { fr.Add(it, dw, err); return nil })
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := fr.Finish(FragmentOptions{MinPieces: 3, MinCount: 1, Top: 10})
+	if len(r.Skipped) != 0 {
+		t.Errorf("skipped %+v", r.Skipped)
+	}
+	const top = 8
+	for i, w := range r.Words[:top] {
+		if !planted[w.Word] {
+			t.Errorf("rank %d: %q (excess %d) is not part of a planted term", i+1, w.Word, w.Excess)
+		}
+	}
+	if r.Words[0].Word != "fluvantrazine" {
+		t.Errorf("first %+v", r.Words[0])
+	}
+	for _, tr := range r.Terms {
+		_, isPlanted := planted[strings.Fields(tr.Term)[0]]
+		switch {
+		case isPlanted && !tr.Flagged:
+			t.Errorf("planted %q is not flagged: %+v", tr.Term, tr)
+		case slices.Contains([]string{"buoy", "sensor", "storm", "harbour", "battery", "valve"}, tr.Term) && tr.Flagged:
+			t.Errorf("contrast word %q is flagged: %+v", tr.Term, tr)
+		}
+		if isPlanted && tr.Occurrences < 10 {
+			t.Errorf("planted %q occurs %d times; the README says 12 or more", tr.Term, tr.Occurrences)
+		}
+	}
 }
