@@ -72,7 +72,7 @@ func fitTip(d FitDoc) string {
 }
 
 func overflowChart(r *FitReport) *barList {
-	c := &barList{Paths: true, ID: "overflow-chart", Title: "Tokens past the window", XLabel: "tokens over (framed input + reserved answer − window)"}
+	c := &barList{Paths: true, YLabel: "document", ID: "overflow-chart", Title: "Tokens past the window", XLabel: "tokens over (framed input + reserved answer − window)"}
 	for _, d := range r.Documents {
 		if d.Fits || len(c.Rows) == ChartRows {
 			break // overflowing documents come first, worst first
@@ -92,7 +92,7 @@ func tightestChart(r *FitReport) *barList {
 	}
 	// The fitting documents are in input order; take the smallest margins.
 	sort.SliceStable(fits, func(i, j int) bool { return fits[i].Margin < fits[j].Margin })
-	c := &barList{Paths: true, ID: "tightest-chart", Title: "Room left in the window", XLabel: "tokens to spare (window − framed input − reserved answer)"}
+	c := &barList{Paths: true, YLabel: "document", ID: "tightest-chart", Title: "Room left in the window", XLabel: "tokens to spare (window − framed input − reserved answer)"}
 	for i, d := range fits {
 		if i == ChartRows/2 {
 			break

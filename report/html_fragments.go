@@ -119,7 +119,7 @@ func readablePieces(split []string) []string {
 }
 
 func excessChart(r *Fragments) *barList {
-	c := &barList{ID: "excess-chart", Title: "Excess tokens of the most wasteful words", XLabel: "excess tokens (occurrences × (pieces − 1))"}
+	c := &barList{YLabel: "word", ID: "excess-chart", Title: "Excess tokens of the most wasteful words", XLabel: "excess tokens (occurrences × (pieces − 1))"}
 	for i, f := range r.Words {
 		if i == ChartRows {
 			break
@@ -132,7 +132,7 @@ func excessChart(r *Fragments) *barList {
 }
 
 func scriptChart(r *Fragments) *barList {
-	c := &barList{ID: "script-chart", Title: "Tokens per word, by script", XLabel: "tokens per word", Decimals: true}
+	c := &barList{YLabel: "script", ID: "script-chart", Title: "Tokens per word, by script", XLabel: "tokens per word", Decimals: true}
 	for _, s := range r.Fertility.ByScript {
 		c.Rows = append(c.Rows, barRow{Label: s.Script, Value: s.Fertility, Text: fmt.Sprintf("%.2f", s.Fertility),
 			Tip: fmt.Sprintf("%s: %s words, %s tokens, %.2f tokens per word", s.Script, Num(s.Words), Num(s.Tokens), s.Fertility)})

@@ -72,7 +72,7 @@ func checkPage(t *testing.T, page []byte, sections []string, charts int) *html.N
 		}
 		parts := map[string]int{}
 		walkNodes(svg, func(n *html.Node) {
-			for _, c := range []string{"ctitle", "alabel", "bar", "tick"} {
+			for _, c := range []string{"ctitle", "alabel", "bar", "tick", "rowlabel"} {
 				if n.Type == html.ElementNode && hasClass(n, c) {
 					parts[c]++
 				}
@@ -80,6 +80,9 @@ func checkPage(t *testing.T, page []byte, sections []string, charts int) *html.N
 		})
 		if parts["ctitle"] != 1 || parts["alabel"] < 1 || parts["bar"] < 1 || parts["tick"] < 2 {
 			t.Errorf("chart %v parts %v: want a title, an axis label, ticks and bars", refs, parts)
+		}
+		if parts["rowlabel"] > 0 && parts["alabel"] != 2 {
+			t.Errorf("bar list %v has %d axis labels, want one for the values and one for the rows", refs, parts["alabel"])
 		}
 	}
 	return doc

@@ -90,7 +90,7 @@ func currencyLabel(cur string) string {
 }
 
 func targetChart(q *Quote, cur string, n int) *barList {
-	c := &barList{ID: fmt.Sprintf("target-chart-%d", n), Title: "Estimated cost by target", XLabel: currencyLabel(cur) + ", estimate", Decimals: true}
+	c := &barList{YLabel: "target", ID: fmt.Sprintf("target-chart-%d", n), Title: "Estimated cost by target", XLabel: currencyLabel(cur) + ", estimate", Decimals: true}
 	if cur != "" {
 		c.Title += " (" + cur + ")"
 	}
@@ -121,7 +121,7 @@ func docCostChart(q *Quote, k int) *barList {
 	sort.SliceStable(idx, func(a, b int) bool {
 		return q.Documents[idx[a]].Targets[k].Cost.GreaterThan(q.Documents[idx[b]].Targets[k].Cost)
 	})
-	c := &barList{Paths: true, ID: "doc-cost-chart", Title: "Costliest documents under " + t.Name, XLabel: currencyLabel(t.Currency) + ", estimate", Decimals: true}
+	c := &barList{Paths: true, YLabel: "document", ID: "doc-cost-chart", Title: "Costliest documents under " + t.Name, XLabel: currencyLabel(t.Currency) + ", estimate", Decimals: true}
 	for _, i := range idx {
 		if len(c.Rows) == ChartRows {
 			break

@@ -168,7 +168,7 @@ func largestIntro(s *Survey) string {
 }
 
 func largestChart(s *Survey) *barList {
-	c := &barList{Paths: true, ID: "largest-chart", Title: fmt.Sprintf("Tokens in each of the %d largest documents", len(s.Largest)), XLabel: "tokens"}
+	c := &barList{Paths: true, YLabel: "document", ID: "largest-chart", Title: fmt.Sprintf("Tokens in each of the %d largest documents", len(s.Largest)), XLabel: "tokens"}
 	win := s.Vocabulary.Window
 	for _, d := range s.Largest {
 		r := barRow{Label: Where(d.Source, d.Record), Value: float64(d.Tokens), Text: Num(d.Tokens),

@@ -187,7 +187,8 @@ type barRow struct {
 type barList struct {
 	ID          string
 	Title, Desc string
-	XLabel      string
+	XLabel      string // the value axis, with its unit
+	YLabel      string // what the rows are
 	Rows        []barRow
 	Marks       []chartMark
 	Decimals    bool // the axis may have fractional ticks (money)
@@ -247,6 +248,9 @@ func (c *barList) SVG() template.HTML {
 		fmt.Fprintf(&b, `<text class="marklabel %s" x="%s" y="%s" text-anchor="middle">%s</text>`, esc(m.Class), num(x(m.At)), num(top-14), esc(m.Label))
 	}
 	fmt.Fprintf(&b, `<text class="alabel" x="%s" y="%s" text-anchor="middle">%s</text>`, num(left+pw/2), num(h-10), esc(c.XLabel))
+	if c.YLabel != "" {
+		fmt.Fprintf(&b, `<text class="alabel" x="%s" y="%s" text-anchor="end">%s</text>`, num(left-8), num(top-14), esc(c.YLabel))
+	}
 	b.WriteString(`</svg>`)
 	return template.HTML(b.String())
 }
