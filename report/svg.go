@@ -237,7 +237,7 @@ func (c *barList) SVG() template.HTML {
 			cls += " " + r.Class
 		}
 		fmt.Fprintf(&b, `<g><title>%s</title>`, esc(r.Tip))
-		fmt.Fprintf(&b, `<text class="rowlabel" x="%s" y="%s" text-anchor="end">%s</text>`, num(left-8), num(y+rowH/2+4), esc(clip(strings.TrimPrefix(r.Label, dir), 34)))
+		fmt.Fprintf(&b, `<text class="rowlabel" x="%s" y="%s" text-anchor="end">%s</text>`, num(left-8), num(y+rowH/2+4), esc(clip(strings.TrimPrefix(r.Label, dir), 38)))
 		fmt.Fprintf(&b, `<rect class="%s" x="%s" y="%s" width="%s" height="%s"/>`, esc(cls), num(left), num(y+4), num(math.Max(x(r.Value)-left, 0)), num(rowH-8))
 		fmt.Fprintf(&b, `<text class="val" x="%s" y="%s">%s</text>`, num(x(r.Value)+5), num(y+rowH/2+4), esc(r.Text))
 		b.WriteString(`</g>`)
