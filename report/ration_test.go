@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"errors"
 	"math/rand"
 	"os"
 	"path/filepath"
@@ -271,4 +272,26 @@ func TestCharEdge(t *testing.T) {
 			t.Errorf("charEdge(%q, %d) = %v, want %v", s, p, got, w)
 		}
 	}
+}
+
+func FuzzRation(f *testing.F) {
+	enc := gpt2(f)
+	fr, _ := ParseFrame("f", []byte("Read:\n{{document}}\nDone."))
+	f.Add([]byte("one two.\n\nthree\xff 日本語。 four"), uint8(12), uint8(0), true)
+	f.Add([]byte("\n\n\u3000\u00fc\u3002QX"), uint8(2), uint8(0), false)
+	f.Add(bytes.Repeat([]byte("ab "), 50), uint8(20), uint8(5), false)
+	f.Fuzz(func(t *testing.T, text []byte, budget, overlap uint8, framed bool) {
+		r := &Rationer{Enc: enc, Budget: int(budget) + 1, Overlap: int(overlap) % (int(budget)/2 + 1)}
+		if framed {
+			r.Frame = fr
+		}
+		chunks, _, err := r.Cut("z", 0, text, false)
+		if err != nil {
+			if !errors.Is(err, ErrNoRoom) {
+				t.Fatal(err)
+			}
+			return
+		}
+		checkPlan(t, r, "fuzz", text, chunks)
+	})
 }
