@@ -58,7 +58,7 @@ type Sampler struct {
 // NewSampler returns a sampler that encodes with enc. want names the
 // document to keep as Where prints it (source, or source:record); an empty
 // want keeps the document with the most tokens per word among those with at
-// least SampleMinWords words.
+// least SampleMinWords words, or among all when none has that many.
 func NewSampler(enc *bpe.Encoder, want string) *Sampler {
 	return &Sampler{enc: enc, want: want}
 }
@@ -87,10 +87,11 @@ func (sp *Sampler) offer(w Weight, head *headBuffer) {
 			return
 		}
 		score = 1
-	case w.Words < SampleMinWords:
-		return
 	default:
 		score = ratio(float64(w.Tokens), float64(w.Words))
+		if w.Words < SampleMinWords {
+			score -= 1e12 // below every document with enough words
+		}
 	}
 	sp.mu.Lock()
 	defer sp.mu.Unlock()
@@ -114,7 +115,7 @@ func before(a, b Weight) bool {
 }
 
 // Sample returns the kept document with its pieces, or nil when none was
-// kept (no document matched the name, or none had enough words).
+// kept (no document was weighed, or none matched the name).
 func (sp *Sampler) Sample() (*Sample, error) {
 	sp.mu.Lock()
 	defer sp.mu.Unlock()
@@ -132,6 +133,9 @@ func (sp *Sampler) Sample() (*Sample, error) {
 			s.Why = "named with --sample"
 		} else {
 			s.Why = fmt.Sprintf("the most tokens per word (%s) of the documents with at least %d words", Ratio(float64(s.Weight.Tokens), float64(s.Weight.Words)), SampleMinWords)
+			if s.Weight.Words < SampleMinWords {
+				s.Why = fmt.Sprintf("the most tokens per word (%s); no document has %d words", Ratio(float64(s.Weight.Tokens), float64(s.Weight.Words)), SampleMinWords)
+			}
 		}
 	}
 	return s, nil

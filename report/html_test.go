@@ -427,7 +427,15 @@ func TestSamplerChoice(t *testing.T) {
 			t.Errorf("want %q: kept %s:%d (cut %v), want %s:%d", tc.want, s.Source, s.Record, s.Cut, tc.source, tc.record)
 		}
 	}
-	sp := NewSampler(enc, "missing.txt")
+	// With no document of enough words, the densest of the short ones.
+	sp := NewSampler(enc, "")
+	for _, d := range []corpus.Document{{Source: "x.txt", Text: []byte("the cat")}, {Source: "y.txt", Text: []byte("QX-7731-Rb Bathyphorus")}} {
+		sp.Weigh(&d)
+	}
+	if s, _ := sp.Sample(); s == nil || s.Source != "y.txt" || !strings.Contains(s.Why, "no document has") {
+		t.Errorf("short documents only: kept %+v", s)
+	}
+	sp = NewSampler(enc, "missing.txt")
 	d := *docs[0]
 	sp.Weigh(&d)
 	if s, err := sp.Sample(); s != nil || err != nil {
