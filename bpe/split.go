@@ -22,11 +22,23 @@ const (
 	clsSpace               // Unicode White_Space
 )
 
-var asciiClass [utf8.RuneSelf]uint8
+// clsMulti marks, in byteClass, a byte that starts a multi-byte character
+// (or is invalid): its class needs decoding.
+const clsMulti uint8 = 4
+
+var (
+	asciiClass [utf8.RuneSelf]uint8
+	byteClass  [256]uint8
+)
 
 func init() {
-	for b := 0; b < utf8.RuneSelf; b++ {
-		asciiClass[b] = runeClass(rune(b))
+	for b := 0; b < 256; b++ {
+		if b < utf8.RuneSelf {
+			asciiClass[b] = runeClass(rune(b))
+			byteClass[b] = asciiClass[b]
+		} else {
+			byteClass[b] = clsMulti
+		}
 	}
 }
 
@@ -47,8 +59,12 @@ func runeClass(r rune) uint8 {
 // replacement character U+FFFD (a symbol) would be.
 func classAt(t []byte, i int) (uint8, int) {
 	if b := t[i]; b < utf8.RuneSelf {
-		return asciiClass[b], 1
+		return asciiClass[b], 1 // small enough to inline: the common case
 	}
+	return classOfRune(t, i)
+}
+
+func classOfRune(t []byte, i int) (uint8, int) {
 	r, n := utf8.DecodeRune(t[i:])
 	if r == utf8.RuneError && n <= 1 {
 		return clsOther, 1
@@ -59,14 +75,15 @@ func classAt(t []byte, i int) (uint8, int) {
 // runOf returns the end of the run of class c that continues at t[i].
 func runOf(t []byte, i int, c uint8) int {
 	for i < len(t) {
-		if b := t[i]; b < utf8.RuneSelf {
-			if asciiClass[b] != c {
-				return i
-			}
+		x := byteClass[t[i]]
+		if x == c {
 			i++
 			continue
 		}
-		cc, n := classAt(t, i)
+		if x != clsMulti {
+			return i
+		}
+		cc, n := classOfRune(t, i)
 		if cc != c {
 			return i
 		}
@@ -99,7 +116,10 @@ func contraction(t []byte, i int) int {
 // nextGPT2 returns the end of the GPT-2 pre-token that starts at t[i],
 // i < len(t). The alternatives are tried in the order the pattern lists them.
 func nextGPT2(t []byte, i int) int {
-	c, n := classAt(t, i)
+	c, n := byteClass[t[i]], 1
+	if c == clsMulti {
+		c, n = classOfRune(t, i)
+	}
 	switch c {
 	case clsLetter, clsNumber:
 		return runOf(t, i+n, c)
@@ -114,7 +134,11 @@ func nextGPT2(t []byte, i int) int {
 	// White space. A plain space directly before a non-space character
 	// starts that character's piece (" ?\p{L}+" and its two siblings).
 	if t[i] == ' ' && i+1 < len(t) {
-		if c2, n2 := classAt(t, i+1); c2 != clsSpace {
+		c2, n2 := byteClass[t[i+1]], 1
+		if c2 == clsMulti {
+			c2, n2 = classOfRune(t, i+1)
+		}
+		if c2 != clsSpace {
 			return runOf(t, i+1+n2, c2)
 		}
 	}
