@@ -27,6 +27,7 @@ type Pricer struct {
 	Overhead int
 	Ration   bool // ration documents whose request overflows the window
 	Batch    bool // apply the target's batch discount
+	Generic  bool // as Rationer.Generic
 }
 
 // Cost returns the cost of in input and out output tokens at the target's
@@ -104,7 +105,7 @@ func QuoteText(ps []*Pricer, source string, record int, text []byte) (QuoteDoc, 
 			l.InputTokens, l.OutputTokens, l.Requests = in, out, 1
 			l.Overflow = in+out > p.Window
 		} else {
-			r := &Rationer{Enc: p.Enc, Frame: p.Frame, Budget: p.Answer.Budget(p.Window), Overhead: p.Overhead}
+			r := &Rationer{Enc: p.Enc, Frame: p.Frame, Budget: p.Answer.Budget(p.Window), Overhead: p.Overhead, Generic: p.Generic}
 			chunks, _, err := r.Cut(source, record, text, false)
 			if err != nil {
 				return d, fmt.Errorf("target %s: %w", p.Target.Name, err)

@@ -86,7 +86,7 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 					}
 					encs[key] = enc
 				}
-				p := &report.Pricer{Target: t, Enc: enc, Window: t.Window, Answer: t.Answer, Overhead: rf.overhead, Ration: ration, Batch: batch}
+				p := &report.Pricer{Target: t, Enc: enc, Window: t.Window, Answer: t.Answer, Overhead: rf.overhead, Ration: ration, Batch: batch, Generic: sh.genericSplit(enc)}
 				if flags.Changed("window") {
 					p.Window = rf.window
 				}

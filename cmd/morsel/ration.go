@@ -66,7 +66,7 @@ because the budget cannot hold the frame and one character, else 0.`,
 			if overlap < 0 || 2*overlap >= budget {
 				return usagef("ration", "--overlap %d: want 0 or more and less than half the %d-token budget", overlap, budget)
 			}
-			r := &report.Rationer{Enc: rq.enc, Frame: rq.frame, Budget: budget, Overlap: overlap, Overhead: rq.overhead, Generic: sh.splitPattern != ""}
+			r := &report.Rationer{Enc: rq.enc, Frame: rq.frame, Budget: budget, Overlap: overlap, Overhead: rq.overhead, Generic: sh.genericSplit(rq.enc)}
 			var out *bufio.Writer
 			var jl *json.Encoder
 			if emit != "" {

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"io/fs"
@@ -161,4 +162,23 @@ func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *req
 		return nil, err
 	}
 	return rq, nil
+}
+
+// genericSplit reports whether the planner must count every chunk whole:
+// under a split pattern of the user's, or special tokens honoured whose
+// text holds white space, the GPT-2 rule's context-free pre-token edges do
+// not hold.
+func (sh *shared) genericSplit(enc *bpe.Encoder) bool {
+	if sh.splitPattern != "" {
+		return true
+	}
+	if sh.specials != "honor" {
+		return false
+	}
+	for _, sp := range enc.Vocab().Specials() {
+		if bytes.ContainsAny([]byte(sp.Text), " \t\n\r\v\f") {
+			return true
+		}
+	}
+	return false
 }
