@@ -295,3 +295,27 @@ func FuzzRation(f *testing.F) {
 		checkPlan(t, r, "fuzz", text, chunks)
 	})
 }
+
+// TestRationHonorSpecials plans with special-token strings mapped to their
+// ids; the demo's logger note holds one.
+func TestRationHonorSpecials(t *testing.T) {
+	enc, err := bpe.NewEncoder(bpe.Default(), bpe.Options{Specials: bpe.SpecialsHonor})
+	if err != nil {
+		t.Fatal(err)
+	}
+	text, err := os.ReadFile("../testdata/demo/notes-logger-gateway-glitch.txt")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Contains(text, []byte("<|endoftext|>")) {
+		t.Fatal("the demo note no longer holds a special-token string")
+	}
+	for _, budget := range []int{8, 30, 100} {
+		r := &Rationer{Enc: enc, Budget: budget}
+		chunks, _, err := r.Cut("n", 0, text, false)
+		if err != nil {
+			t.Fatal(err)
+		}
+		checkPlan(t, r, "honor", text, chunks)
+	}
+}
