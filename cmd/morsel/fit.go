@@ -36,7 +36,7 @@ overflows, else 0.`,
   morsel fit exports/ --window 8192 --format json | jq '.totals'`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
-			f, err := sh.outFormat("fit", report.Table, report.JSON, report.CSV, report.Markdown)
+			f, err := sh.outFormat("fit", report.Table, report.JSON, report.CSV, report.Markdown, report.HTML)
 			if err != nil {
 				return err
 			}
@@ -55,7 +55,11 @@ overflows, else 0.`,
 				return err
 			}
 			r := fc.Finish()
-			if err := report.WriteFit(sh.stdout, f, r); err != nil {
+			write := func() error { return report.WriteFit(sh.stdout, f, r) }
+			if f == report.HTML {
+				write = func() error { return report.WriteFitHTML(sh.stdout, r, 0) }
+			}
+			if err := write(); err != nil {
 				return err
 			}
 			if err := sh.skipStatus(r.Skipped); err != nil {

@@ -40,7 +40,7 @@ flag when it reaches --min-pieces.`,
   morsel fragments exports/tickets.jsonl --min-pieces 4 --min-count 5 --top 20 --format json`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
-			f, err := sh.outFormat("fragments", report.Table, report.JSON, report.CSV, report.Markdown)
+			f, err := sh.outFormat("fragments", report.Table, report.JSON, report.CSV, report.Markdown, report.HTML)
 			if err != nil {
 				return err
 			}
@@ -83,7 +83,11 @@ flag when it reaches --min-pieces.`,
 				return err
 			}
 			r := fr.Finish(report.FragmentOptions{MinPieces: minPieces, MinCount: minCount, Top: top})
-			if err := report.WriteFragments(sh.stdout, f, r, docRows); err != nil {
+			write := func() error { return report.WriteFragments(sh.stdout, f, r, docRows) }
+			if f == report.HTML {
+				write = func() error { return report.WriteFragmentsHTML(sh.stdout, r, docRows) }
+			}
+			if err := write(); err != nil {
 				return err
 			}
 			return sh.skipStatus(r.Skipped)

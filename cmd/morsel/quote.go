@@ -41,7 +41,7 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
   morsel quote exports/ --target harbor-large --batch --format json`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
-			f, err := sh.outFormat("quote", report.Table, report.JSON, report.CSV, report.Markdown)
+			f, err := sh.outFormat("quote", report.Table, report.JSON, report.CSV, report.Markdown, report.HTML)
 			if err != nil {
 				return err
 			}
@@ -125,7 +125,11 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 				return err
 			}
 			q := qc.Finish()
-			if err := report.WriteQuote(sh.stdout, f, q); err != nil {
+			write := func() error { return report.WriteQuote(sh.stdout, f, q) }
+			if f == report.HTML {
+				write = func() error { return report.WriteQuoteHTML(sh.stdout, q, 0) }
+			}
+			if err := write(); err != nil {
 				return err
 			}
 			return sh.skipStatus(q.Skipped)
