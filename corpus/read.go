@@ -151,7 +151,14 @@ func (r *reader) run() error {
 	}
 
 	raw := &errReader{r: f}
-	br := bufio.NewReaderSize(raw, 64<<10)
+	// A small file needs no 64 KB buffer: most files of a source tree are
+	// a few kilobytes, and zeroing a large buffer for each costs more than
+	// reading it.
+	bufSize := 64 << 10
+	if r.in.Size >= 0 && r.in.Size+1 < int64(bufSize) {
+		bufSize = max(int(r.in.Size)+1, sniffSize)
+	}
+	br := bufio.NewReaderSize(raw, bufSize)
 	if comp == compNone && format == "" {
 		magic, _ := br.Peek(4)
 		switch {
@@ -236,7 +243,7 @@ func (r *reader) run() error {
 		if limit >= 0 {
 			src = io.LimitReader(in, limit+1)
 		}
-		text, err = io.ReadAll(src)
+		text, err = readSized(src, size)
 		if err == nil && (limit < 0 || int64(len(text)) <= limit) {
 			err = r.src.err
 		}
@@ -406,4 +413,26 @@ func looksHTML(t []byte) bool {
 		}
 	}
 	return false
+}
+
+// readSized is io.ReadAll with the buffer sized once when the size is known
+// (size >= 0), so a file is read without growing and copying its text.
+func readSized(r io.Reader, size int64) ([]byte, error) {
+	if size < 0 {
+		return io.ReadAll(r)
+	}
+	b := make([]byte, 0, size+1) // one more byte, to see the end at once
+	for {
+		n, err := r.Read(b[len(b):cap(b)])
+		b = b[:len(b)+n]
+		if err == io.EOF {
+			return b, nil
+		}
+		if err != nil {
+			return b, err
+		}
+		if len(b) == cap(b) { // the file grew while it was read
+			b = append(b, 0)[:len(b)]
+		}
+	}
 }
