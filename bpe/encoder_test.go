@@ -217,8 +217,8 @@ func TestCacheBoundedAndConsistent(t *testing.T) {
 		}
 	}
 	s := e.get()
-	if len(s.cache) > 50 || s.short.n > 50 {
-		t.Fatalf("cache holds %d + %d words, bound 50 each", len(s.cache), s.short.n)
+	if len(s.cache) > 50 || s.short.n > 50 || s.mid.n > 50 {
+		t.Fatalf("cache holds %d + %d + %d words, bound 50 each", len(s.cache), s.short.n, s.mid.n)
 	}
 }
 

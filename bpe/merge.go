@@ -1,6 +1,7 @@
 package bpe
 
 import (
+	"encoding/binary"
 	"math"
 	"slices"
 )
@@ -11,6 +12,7 @@ type state struct {
 	v     *Vocab
 	near  [nearSize]slot    // a direct-mapped copy of recently used short entries, small enough to stay in the core's cache
 	short u64table          // pre-tokens of 2-7 bytes, packed into the key -> offset<<32 | length in arena
+	mid   u128table         // pre-tokens of 8-15 bytes, packed into two words -> the same
 	cache map[string]uint64 // longer pre-tokens, up to cacheLongest bytes -> the same
 	arena []uint32
 	max   int
@@ -35,7 +37,7 @@ const (
 )
 
 func newState(v *Vocab, maxWords int) *state {
-	return &state{v: v, short: newU64Table(maxWords), cache: make(map[string]uint64, 1024), max: maxWords}
+	return &state{v: v, short: newU64Table(maxWords), mid: newU128Table(maxWords), cache: make(map[string]uint64, 1024), max: maxWords}
 }
 
 // packShort packs a pre-token of 2 to 7 bytes, and its length, into one
@@ -55,6 +57,17 @@ const (
 	nearSize = 1 << nearBits
 )
 
+// packMid packs a pre-token of 8 to 15 bytes, and its length, into two
+// words.
+func packMid(p []byte) (uint64, uint64) {
+	k1 := binary.LittleEndian.Uint64(p)
+	k2 := uint64(len(p)) << 56
+	for i, b := range p[8:] {
+		k2 |= uint64(b) << (8 * i)
+	}
+	return k1, k2
+}
+
 // cached returns the cached location of p's ids.
 func (s *state) cached(p []byte) (uint64, bool) {
 	if len(p) < 8 {
@@ -68,6 +81,9 @@ func (s *state) cached(p []byte) (uint64, bool) {
 			n.k, n.v = k|occupied, v
 		}
 		return v, ok
+	}
+	if len(p) < 16 {
+		return s.mid.get(packMid(p))
 	}
 	if len(p) <= cacheLongest {
 		loc, ok := s.cache[string(p)]
@@ -93,17 +109,22 @@ func (s *state) piece(p []byte) []uint32 {
 		ids = s.mergeLong(p)
 	}
 	if len(p) <= cacheLongest {
-		if s.short.full() || len(s.cache) >= s.max {
+		if s.short.full() || s.mid.full() || len(s.cache) >= s.max {
 			s.short.reset()
+			s.mid.reset()
 			s.near = [nearSize]slot{}
 			clear(s.cache)
 			s.arena = s.arena[:0]
 		}
 		loc := uint64(len(s.arena))<<32 | uint64(len(ids))
 		s.arena = append(s.arena, ids...)
-		if len(p) < 8 {
+		switch {
+		case len(p) < 8:
 			s.short.put(packShort(p), loc)
-		} else {
+		case len(p) < 16:
+			k1, k2 := packMid(p)
+			s.mid.put(k1, k2, loc)
+		default:
 			s.cache[string(p)] = loc
 		}
 	}

@@ -80,3 +80,62 @@ func (t *u64table) each(fn func(k, v uint64)) {
 		}
 	}
 }
+
+// u128table is u64table for keys of two words; k2 is never zero (it holds
+// the key's length), which marks a slot as used.
+type u128table struct {
+	slots []slot3
+	shift uint
+	n     int
+	limit int
+}
+
+type slot3 struct{ k1, k2, v uint64 }
+
+func newU128Table(capacity int) u128table {
+	size := 16
+	for size < 2*capacity {
+		size *= 2
+	}
+	return u128table{slots: make([]slot3, size), shift: uint(64 - bits.TrailingZeros(uint(size))), limit: capacity}
+}
+
+func (t *u128table) home(k1, k2 uint64) uint64 {
+	return (k1*0x9E3779B97F4A7C15 ^ k2*0xC2B2AE3D27D4EB4F) >> t.shift
+}
+
+func (t *u128table) get(k1, k2 uint64) (uint64, bool) {
+	mask := uint64(len(t.slots) - 1)
+	for i := t.home(k1, k2); ; i = (i + 1) & mask {
+		s := &t.slots[i]
+		if s.k2 == k2 && s.k1 == k1 {
+			return s.v, true
+		}
+		if s.k2 == 0 {
+			return 0, false
+		}
+	}
+}
+
+func (t *u128table) put(k1, k2, v uint64) {
+	mask := uint64(len(t.slots) - 1)
+	for i := t.home(k1, k2); ; i = (i + 1) & mask {
+		s := &t.slots[i]
+		if s.k2 == k2 && s.k1 == k1 {
+			s.v = v
+			return
+		}
+		if s.k2 == 0 {
+			s.k1, s.k2, s.v = k1, k2, v
+			t.n++
+			return
+		}
+	}
+}
+
+func (t *u128table) full() bool { return t.n >= t.limit }
+
+func (t *u128table) reset() {
+	clear(t.slots)
+	t.n = 0
+}
