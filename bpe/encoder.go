@@ -110,18 +110,23 @@ func (e *Encoder) EncodeStats(dst []int, text []byte) ([]int, Stats) {
 	s := e.get()
 	defer e.put(s)
 	var st Stats
+	start := len(dst)
 	e.segments(text, &st, func(seg []byte, special int) {
 		if special >= 0 {
 			dst = append(dst, int(e.specIDs[special]))
 			return
 		}
-		e.pieces(seg, func(p []byte) {
-			for _, id := range s.piece(p) {
-				dst = append(dst, int(id))
-			}
-		})
+		if e.re != nil {
+			e.re.spans(seg, func(a, b int) { dst = s.appendPiece(dst, seg[a:b]) })
+			return
+		}
+		for i := 0; i < len(seg); {
+			j := nextGPT2(seg, i)
+			dst = s.appendPiece(dst, seg[i:j])
+			i = j
+		}
 	})
-	st.Tokens = len(dst)
+	st.Tokens = len(dst) - start
 	return dst, st
 }
 
@@ -228,10 +233,6 @@ func (e *Encoder) spans(seg []byte, fn func(a, b int)) {
 		fn(i, j)
 		i = j
 	}
-}
-
-func (e *Encoder) pieces(seg []byte, fn func(p []byte)) {
-	e.spans(seg, func(a, b int) { fn(seg[a:b]) })
 }
 
 // Decode returns the bytes that ids stand for. Ids outside the vocabulary

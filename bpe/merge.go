@@ -131,6 +131,17 @@ func (s *state) piece(p []byte) []uint32 {
 	return ids
 }
 
+// appendPiece appends the ids of one pre-token to dst.
+func (s *state) appendPiece(dst []int, p []byte) []int {
+	if len(p) == 1 {
+		return append(dst, int(s.v.byteID[p[0]]))
+	}
+	for _, id := range s.piece(p) {
+		dst = append(dst, int(id))
+	}
+	return dst
+}
+
 // count returns the number of tokens of one pre-token.
 func (s *state) count(p []byte) int {
 	if len(p) == 1 {

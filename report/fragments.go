@@ -2,6 +2,7 @@ package report
 
 import (
 	"bufio"
+	"container/heap"
 	"fmt"
 	"io"
 	"slices"
@@ -9,7 +10,6 @@ import (
 	"strings"
 	"sync"
 	"unicode/utf8"
-	"unsafe"
 
 	"github.com/rivo/uniseg"
 
@@ -149,32 +149,46 @@ type Fragmenter struct {
 type shard struct {
 	index   wordIndex // word -> its tally in words
 	words   []wordTally
-	arena   []byte   // the words' bytes; blocks are never reused
+	arena   []byte   // the words' bytes
 	idArena []uint32 // the splits' ids
-	doc     int32    // documents begun by this shard
+	local   docTally // the words of the document being scanned
 	ids     []int
 	ends    []int
 	pending []pendingTerm
 }
 
-// wordTally is one word's occurrences in one shard. The first split seen
-// is kept inline; up to maxSplits-1 more go to more.
+// wordTally is one word's occurrences in one shard. It holds no pointers
+// (the word and the splits' ids are offsets into the shard's arenas), so
+// the garbage collector never scans the millions of them a large corpus
+// makes.
 type wordTally struct {
-	word          string
+	off, n        uint32 // the word is arena[off:off+n]
 	count, pieces int64
-	docs, lastDoc int32
-	split         splitTally
-	more          []splitTally
+	docs          int32
+	nsplits       int32
+	splits        [maxSplits]splitRef
 }
 
 // maxSplits is how many distinct splits of one word a shard tells apart;
 // the occurrences of any further split count in the word's totals only.
 const maxSplits = 4
 
+// splitRef is one way a word splits: the ids idArena[off:off+n], seen
+// count times.
+type splitRef struct {
+	off, n uint32
+	count  int64
+}
+
+// splitTally is a split with its ids, as the report reads it.
 type splitTally struct {
 	ids   []uint32
 	count int64
 }
+
+func (sh *shard) word(w *wordTally) []byte { return sh.arena[w.off : w.off+w.n] }
+
+func (sh *shard) splitIDs(r splitRef) []uint32 { return sh.idArena[r.off : r.off+r.n] }
 
 type termAgg struct {
 	count, pieces int64
@@ -271,7 +285,7 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 		dw.terms = make([]termTally, len(f.terms))
 		sh.pending = sh.pending[:0]
 	}
-	sh.doc++
+	sh.local.reset()
 
 	var words, pieces, one [numScripts]int64
 	k := 0 // the first token that ends after the current segment starts
@@ -332,7 +346,7 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 		for m < len(ends) && ends[m-1] < e {
 			m++
 		}
-		sh.tally(text[s:e], h, ids[k:m])
+		sh.local.add(text, s, e, h, k, m, ids)
 		n := m - k
 		words[sc]++
 		pieces[sc] += int64(n)
@@ -344,6 +358,7 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	if f.terms != nil {
 		f.termsAt(sh, dw, text, len(text), nil)
 	}
+	sh.flush(text, ids)
 	for i := range dw.ByScript {
 		t := ScriptTally{Words: words[i], Tokens: pieces[i], OneToken: one[i]}
 		dw.ByScript[i] = t
@@ -367,48 +382,172 @@ func hashWord(w []byte) uint64 {
 	return h
 }
 
-// tally counts one occurrence of word, whose hashWord is h, split into the
-// tokens ids.
-func (sh *shard) tally(word []byte, h uint64, ids []int) {
-	h ^= h >> 29 // FNV leaves the high bits, which the index uses, weak
+// roomFor returns s with room for n more elements, doubling its capacity
+// when it must grow: the shard's tables reach tens of megabytes, and
+// append's gentler growth for large slices would copy them many times.
+func roomFor[T any](s []T, n int) []T {
+	if len(s)+n <= cap(s) {
+		return s
+	}
+	bigger := make([]T, len(s), max(2*cap(s), len(s)+n, 1024))
+	copy(bigger, s)
+	return bigger
+}
+
+// mixHash spreads a hashWord value: FNV leaves the high bits, which the
+// index uses, weak.
+func mixHash(h uint64) uint64 {
+	h ^= h >> 29
 	h *= 0xbf58476d1ce4e5b9
 	h ^= h >> 32
-	i, slot := sh.index.find(h, word, sh.words)
+	return h
+}
+
+// entry returns the tally of word, whose hashWord is h, making it when the
+// shard has none.
+func (sh *shard) entry(word []byte, h uint64) *wordTally {
+	h = mixHash(h)
+	i, slot := sh.index.find(h, word, sh)
 	if i < 0 {
-		if cap(sh.arena)-len(sh.arena) < len(word) {
-			// A fresh block: the words already made keep the old one.
-			sh.arena = make([]byte, 0, max(1<<16, len(word)))
-		}
-		start := len(sh.arena)
-		sh.arena = append(sh.arena, word...)
-		key := unsafe.String(&sh.arena[start], len(word))
+		off := len(sh.arena)
+		sh.arena = append(roomFor(sh.arena, len(word)), word...)
 		i = int32(len(sh.words))
 		sh.index.insert(slot, h, i)
-		sh.words = append(sh.words, wordTally{word: key})
+		sh.words = append(roomFor(sh.words, 1), wordTally{off: uint32(off), n: uint32(len(word))})
 	}
-	w := &sh.words[i]
+	return &sh.words[i]
+}
+
+// docTally counts the words of one document before they go to the shard:
+// a document repeats its words, and a small table that stays in the
+// processor's cache costs less per occurrence than the shard's large one.
+// Words and splits are spans of the document's text and ids.
+type docTally struct {
+	index []int32 // open addressing: entry index+1, 0 empty
+	words []docWord
+}
+
+type docWord struct {
+	h             uint64 // hashWord of the word
+	s, e          int32  // the first occurrence, text[s:e]
+	count, pieces int32
+	nsplits       int32
+	splits        [maxSplits]struct{ k, m, count int32 } // ids[k:m]
+}
+
+func (d *docTally) reset() {
+	if len(d.index) == 0 {
+		d.index = make([]int32, 1<<10)
+	}
+	if len(d.words) > 0 {
+		clear(d.index)
+		d.words = d.words[:0]
+	}
+}
+
+// add counts the word text[s:e], whose hashWord is h, split into ids[k:m].
+func (d *docTally) add(text []byte, s, e int, h uint64, k, m int, ids []int) {
+	mask := len(d.index) - 1
+	word := text[s:e]
+	p := int(mixHash(h)) & mask
+	var w *docWord
+	for {
+		x := d.index[p]
+		if x == 0 {
+			d.words = append(d.words, docWord{h: h, s: int32(s), e: int32(e)})
+			d.index[p] = int32(len(d.words))
+			w = &d.words[len(d.words)-1]
+			if 2*len(d.words) > len(d.index) {
+				d.grow()
+			}
+			break
+		}
+		if c := &d.words[x-1]; c.h == h && string(text[c.s:c.e]) == string(word) {
+			w = c
+			break
+		}
+		p = (p + 1) & mask
+	}
 	w.count++
-	w.pieces += int64(len(ids))
-	if w.lastDoc != sh.doc {
-		w.lastDoc = sh.doc
-		w.docs++
-	}
-	if w.split.count == 0 {
-		w.split = splitTally{ids: sh.keepIDs(ids), count: 1}
-		return
-	}
-	if sameIDs(w.split.ids, ids) {
-		w.split.count++
-		return
-	}
-	for j := range w.more {
-		if sameIDs(w.more[j].ids, ids) {
-			w.more[j].count++
+	w.pieces += int32(m - k)
+	for j := int32(0); j < w.nsplits; j++ {
+		sp := &w.splits[j]
+		if slices.Equal(ids[sp.k:sp.m], ids[k:m]) {
+			sp.count++
 			return
 		}
 	}
-	if len(w.more) < maxSplits-1 {
-		w.more = append(w.more, splitTally{ids: sh.keepIDs(ids), count: 1})
+	if w.nsplits < maxSplits {
+		w.splits[w.nsplits] = struct{ k, m, count int32 }{int32(k), int32(m), 1}
+		w.nsplits++
+	}
+}
+
+func (d *docTally) grow() {
+	d.index = make([]int32, 2*len(d.index))
+	mask := len(d.index) - 1
+	for i := range d.words {
+		p := int(mixHash(d.words[i].h)) & mask
+		for d.index[p] != 0 {
+			p = (p + 1) & mask
+		}
+		d.index[p] = int32(i + 1)
+	}
+}
+
+// flush adds the document's word counts, kept in sh.local, to the shard.
+func (sh *shard) flush(text []byte, ids []int) {
+	for i := range sh.local.words {
+		lw := &sh.local.words[i]
+		w := sh.entry(text[lw.s:lw.e], lw.h)
+		w.count += int64(lw.count)
+		w.pieces += int64(lw.pieces)
+		w.docs++
+	next:
+		for j := int32(0); j < lw.nsplits; j++ {
+			sp := lw.splits[j]
+			split := ids[sp.k:sp.m]
+			for q := int32(0); q < w.nsplits; q++ {
+				if sameIDs(sh.splitIDs(w.splits[q]), split) {
+					w.splits[q].count += int64(sp.count)
+					continue next
+				}
+			}
+			if w.nsplits < maxSplits {
+				off := len(sh.idArena)
+				sh.idArena = roomFor(sh.idArena, len(split))
+				for _, id := range split {
+					sh.idArena = append(sh.idArena, uint32(id))
+				}
+				w.splits[w.nsplits] = splitRef{off: uint32(off), n: uint32(len(split)), count: int64(sp.count)}
+				w.nsplits++
+			}
+		}
+	}
+}
+
+// absorb adds the tally w of shard src into sh.
+func (sh *shard) absorb(src *shard, w *wordTally) {
+	word := src.word(w)
+	d := sh.entry(word, hashWord(word))
+	d.count += w.count
+	d.pieces += w.pieces
+	d.docs += w.docs
+next:
+	for j := int32(0); j < w.nsplits; j++ {
+		ids := src.splitIDs(w.splits[j])
+		for k := int32(0); k < d.nsplits; k++ {
+			if slices.Equal(sh.splitIDs(d.splits[k]), ids) {
+				d.splits[k].count += w.splits[j].count
+				continue next
+			}
+		}
+		if d.nsplits < maxSplits {
+			off := len(sh.idArena)
+			sh.idArena = append(roomFor(sh.idArena, len(ids)), ids...)
+			d.splits[d.nsplits] = splitRef{off: uint32(off), n: uint32(len(ids)), count: w.splits[j].count}
+			d.nsplits++
+		}
 	}
 }
 
@@ -421,7 +560,7 @@ type wordIndex struct {
 }
 
 // find returns the tally index of word, or -1 and the slot to insert it at.
-func (x *wordIndex) find(h uint64, word []byte, words []wordTally) (int32, int) {
+func (x *wordIndex) find(h uint64, word []byte, sh *shard) (int32, int) {
 	if len(x.slots) == 0 {
 		x.slots = make([]uint64, 1<<10)
 	}
@@ -433,7 +572,7 @@ func (x *wordIndex) find(h uint64, word []byte, words []wordTally) (int32, int) 
 			return -1, p
 		}
 		if s>>32 == hi {
-			if i := int32(s&0xffffffff) - 1; words[i].word == string(word) {
+			if i := int32(s&0xffffffff) - 1; string(sh.word(&sh.words[i])) == string(word) {
 				return i, p
 			}
 		}
@@ -462,17 +601,6 @@ func (x *wordIndex) insert(slot int, h uint64, i int32) {
 		}
 		x.slots[p] = s
 	}
-}
-
-func (sh *shard) keepIDs(ids []int) []uint32 {
-	if cap(sh.idArena)-len(sh.idArena) < len(ids) {
-		sh.idArena = make([]uint32, 0, max(1<<14, len(ids)))
-	}
-	start := len(sh.idArena)
-	for _, id := range ids {
-		sh.idArena = append(sh.idArena, uint32(id))
-	}
-	return sh.idArena[start:len(sh.idArena):len(sh.idArena)]
 }
 
 func sameIDs(a []uint32, b []int) bool {
@@ -570,48 +698,35 @@ func (f *Fragmenter) AddWords(source string, record int, dw *DocWords) {
 	}
 }
 
-// wordSum is one word's tallies over all shards.
-type wordSum struct {
-	count, pieces int64
-	docs          int
-	splits        []splitTally
-}
-
-// mergeShards adds up the shards' tallies by word. The result does not
-// depend on which shard scanned which document, so neither does the report
-// (but for words with more than maxSplits splits).
-func (f *Fragmenter) mergeShards() map[string]*wordSum {
+// merged adds up the shards' tallies by word into one shard. The result
+// does not depend on which shard scanned which document, so neither does
+// the report (but for words with more than maxSplits splits).
+func (f *Fragmenter) merged() *shard {
 	f.mu.Lock()
 	defer f.mu.Unlock()
-	out := map[string]*wordSum{}
-	for _, sh := range f.shards {
-		for i := range sh.words {
-			w := &sh.words[i]
-			m := out[w.word]
-			if m == nil {
-				m = &wordSum{}
-				out[w.word] = m
-			}
-			m.count += w.count
-			m.pieces += w.pieces
-			m.docs += int(w.docs)
-			m.addSplit(w.split)
-			for _, sp := range w.more {
-				m.addSplit(sp)
-			}
+	switch len(f.shards) {
+	case 0:
+		return &shard{}
+	case 1:
+		return f.shards[0]
+	}
+	dst := f.shards[0]
+	for _, src := range f.shards[1:] {
+		for i := range src.words {
+			dst.absorb(src, &src.words[i])
 		}
 	}
-	return out
+	f.shards = f.shards[:1]
+	return dst
 }
 
-func (m *wordSum) addSplit(sp splitTally) {
-	for i := range m.splits {
-		if slices.Equal(m.splits[i].ids, sp.ids) {
-			m.splits[i].count += sp.count
-			return
-		}
+// splitsOf returns the splits of w, a tally of sh.
+func (sh *shard) splitsOf(w *wordTally) []splitTally {
+	out := make([]splitTally, w.nsplits)
+	for j := range out {
+		out[j] = splitTally{ids: sh.splitIDs(w.splits[j]), count: w.splits[j].count}
 	}
-	m.splits = append(m.splits, sp)
+	return out
 }
 
 // betterSplit reports whether a is the more common split, the one of fewer
@@ -732,21 +847,40 @@ func (f *Fragmenter) Finish(opt FragmentOptions) *Fragments {
 			t.Failed++
 		}
 	}
-	merged := f.mergeShards()
-	t.DistinctWords = len(merged)
-	for word, w := range merged {
-		pieces := ratio(float64(w.pieces), float64(w.count))
-		if pieces < opt.MinPieces || w.count < opt.MinCount {
-			continue
+	m := f.merged()
+	t.DistinctWords = len(m.words)
+	// Rank light records first; only the words listed become Fragments.
+	// With --top N, a bounded heap keeps the N best without sorting all.
+	before := func(a, b *wordTally) bool {
+		if ea, eb := a.pieces-a.count, b.pieces-b.count; ea != eb {
+			return ea > eb
 		}
-		best := w.splits[0]
-		for _, sp := range w.splits[1:] {
+		if a.count != b.count {
+			return a.count > b.count
+		}
+		return string(m.word(a)) < string(m.word(b))
+	}
+	top := &rankHeap{before: before, limit: opt.Top}
+	for i := range m.words {
+		w := &m.words[i]
+		if ratio(float64(w.pieces), float64(w.count)) >= opt.MinPieces && w.count >= opt.MinCount {
+			t.Qualifying++
+			top.offer(w)
+		}
+	}
+	ranked := top.ws
+	sort.Slice(ranked, func(i, j int) bool { return before(ranked[i], ranked[j]) })
+	for _, w := range ranked {
+		word := m.word(w)
+		splits := m.splitsOf(w)
+		best := splits[0]
+		for _, sp := range splits[1:] {
 			if betterSplit(sp, best) {
 				best = sp
 			}
 		}
-		fr := Fragment{Word: word, Script: WordScript([]byte(word)).String(), Count: w.count, Documents: w.docs,
-			Pieces: round2(pieces), Excess: w.pieces - w.count,
+		fr := Fragment{Word: string(word), Script: WordScript(word).String(), Count: w.count, Documents: int(w.docs),
+			Pieces: round2(ratio(float64(w.pieces), float64(w.count))), Excess: w.pieces - w.count,
 			SplitShare: round4(ratio(float64(best.count), float64(w.count)))}
 		for _, id := range best.ids {
 			tok, _ := v.Token(int(id))
@@ -754,20 +888,6 @@ func (f *Fragmenter) Finish(opt FragmentOptions) *Fragments {
 			fr.Split = append(fr.Split, pieceText(tok))
 		}
 		r.Words = append(r.Words, fr)
-	}
-	sort.Slice(r.Words, func(i, j int) bool {
-		a, b := r.Words[i], r.Words[j]
-		if a.Excess != b.Excess {
-			return a.Excess > b.Excess
-		}
-		if a.Count != b.Count {
-			return a.Count > b.Count
-		}
-		return a.Word < b.Word
-	})
-	t.Qualifying = len(r.Words)
-	if opt.Top > 0 && len(r.Words) > opt.Top {
-		r.Words = r.Words[:opt.Top]
 	}
 	t.Listed = len(r.Words)
 	for _, w := range r.Words {
@@ -808,6 +928,36 @@ func (f *Fragmenter) Finish(opt FragmentOptions) *Fragments {
 	}
 	r.Totals = t
 	return r
+}
+
+// rankHeap keeps the limit best words offered (all of them when limit is
+// 0): a heap whose root is the worst one kept.
+type rankHeap struct {
+	ws     []*wordTally
+	before func(a, b *wordTally) bool
+	limit  int
+}
+
+func (h *rankHeap) Len() int           { return len(h.ws) }
+func (h *rankHeap) Less(i, j int) bool { return h.before(h.ws[j], h.ws[i]) }
+func (h *rankHeap) Swap(i, j int)      { h.ws[i], h.ws[j] = h.ws[j], h.ws[i] }
+func (h *rankHeap) Push(x any)         { h.ws = append(h.ws, x.(*wordTally)) }
+func (h *rankHeap) Pop() any {
+	w := h.ws[len(h.ws)-1]
+	h.ws = h.ws[:len(h.ws)-1]
+	return w
+}
+
+func (h *rankHeap) offer(w *wordTally) {
+	switch {
+	case h.limit <= 0:
+		h.ws = append(h.ws, w)
+	case len(h.ws) < h.limit:
+		heap.Push(h, w)
+	case h.before(w, h.ws[0]):
+		h.ws[0] = w
+		heap.Fix(h, 0)
+	}
 }
 
 // pieceText is a piece as JSON gives it: its text when it is whole UTF-8,
@@ -988,15 +1138,8 @@ var asciiWB = func() (t [utf8.RuneSelf]uint8) {
 func nextSegment(t []byte, i int) int {
 	if c := t[i]; c < utf8.RuneSelf {
 		switch asciiWB[c] {
-		case wbAlnum:
-			// WB5, WB8, WB9, WB10 join letters and digits; what ends the run
-			// is a boundary (WB3a, WB999) unless WB6, WB7, WB11 or WB12 could
-			// join a MidX to a letter or digit after it.
-			j := i + 1
-			for j < len(t) && t[j] < utf8.RuneSelf && asciiWB[t[j]] == wbAlnum {
-				j++
-			}
-			if alnumRunEnds(t, j) {
+		case wbAlnum, wbSlow:
+			if j, ok := asciiWord(t, i); ok {
 				return j
 			}
 		case wbSpace:
@@ -1031,6 +1174,61 @@ func nextSegment(t []byte, i int) int {
 // reaches j ends there for sure: at the end of the text, before an ASCII
 // character that joins no word (WB3a, WB999), or before a MidX not followed
 // by an ASCII letter or digit (so WB6, WB7, WB11 and WB12 cannot apply).
+// asciiWord returns the end of the word that starts at t[i], a letter,
+// digit or '_', when the word and the character after it are ASCII. The
+// rules: WB5, WB8, WB9, WB10 join letters and digits; WB13a and WB13b join
+// '_' (ExtendNumLet) to them and to itself; WB6 and WB7 join a letter, one
+// of ": . '" (MidLetter, MidNumLet, Single_Quote) and a letter; WB11 and
+// WB12 join a digit, one of ", ; . '" (MidNum, MidNumLet, Single_Quote) and
+// a digit. ok is false when a non-ASCII character decides.
+func asciiWord(t []byte, i int) (end int, ok bool) {
+	const (
+		al = iota + 1
+		num
+		ex
+	)
+	kind := func(c byte) int {
+		switch {
+		case c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z':
+			return al
+		case c >= '0' && c <= '9':
+			return num
+		case c == '_':
+			return ex
+		}
+		return 0
+	}
+	prev := kind(t[i])
+	j := i + 1
+	for j < len(t) {
+		c := t[j]
+		if c >= utf8.RuneSelf {
+			return 0, false
+		}
+		if k := kind(c); k != 0 {
+			prev = k
+			j++
+			continue
+		}
+		if j+1 >= len(t) {
+			return j, true
+		}
+		d := t[j+1]
+		if d >= utf8.RuneSelf {
+			return 0, false
+		}
+		switch {
+		case prev == al && (c == ':' || c == '.' || c == '\'') && kind(d) == al:
+		case prev == num && (c == ',' || c == ';' || c == '.' || c == '\'') && kind(d) == num:
+		default:
+			return j, true
+		}
+		prev = kind(d)
+		j += 2
+	}
+	return j, true
+}
+
 func alnumRunEnds(t []byte, j int) bool {
 	if j == len(t) {
 		return true

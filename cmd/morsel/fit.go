@@ -36,6 +36,7 @@ overflows, else 0.`,
   morsel fit exports/ --window 8192 --format json | jq '.totals'`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
+			boundMemory()
 			f, err := sh.outFormat("fit", report.Table, report.JSON, report.CSV, report.Markdown, report.HTML)
 			if err != nil {
 				return err

@@ -20,16 +20,22 @@ const (
 	exitInternal = 1
 )
 
-// memoryLimit is the soft heap limit morsel runs under unless GOMEMLIMIT
-// says otherwise: the garbage collector works harder as the heap nears it,
-// which keeps a long walk's peak memory flat. It is soft: a report that
-// truly needs more still gets it.
+// memoryLimit is the soft heap limit that the commands whose memory does
+// not grow with the corpus (survey, fit, ration, quote) run under, unless
+// GOMEMLIMIT says otherwise: the garbage collector works harder as the heap
+// nears it, which keeps a long walk's peak memory flat. fragments keeps
+// every distinct word, so its heap grows with the corpus; under a limit
+// below that heap the collector would run without pause.
 const memoryLimit = 100 << 20
 
-func main() {
+// boundMemory sets the soft heap limit for a streaming command.
+func boundMemory() {
 	if os.Getenv("GOMEMLIMIT") == "" {
 		debug.SetMemoryLimit(memoryLimit)
 	}
+}
+
+func main() {
 	err := newRoot().Execute()
 	os.Exit(exitStatus(err))
 }

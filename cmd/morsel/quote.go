@@ -41,6 +41,7 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
   morsel quote exports/ --target harbor-large --batch --format json`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
+			boundMemory()
 			f, err := sh.outFormat("quote", report.Table, report.JSON, report.CSV, report.Markdown, report.HTML)
 			if err != nil {
 				return err

@@ -49,6 +49,7 @@ because the budget cannot hold the frame and one character, else 0.`,
   morsel ration notes/ --budget 2000 --overlap 100 --format json`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
+			boundMemory()
 			f, err := sh.outFormat("ration", report.Table, report.JSON, report.CSV, report.Markdown)
 			if err != nil {
 				return err

@@ -28,6 +28,7 @@ be read; the report still covers all the rest.`,
   morsel survey docs/ --include '*.md' --exclude 'drafts/**' --format csv > weights.csv`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
+			boundMemory()
 			f, err := sh.outFormat("survey", report.Table, report.JSON, report.CSV, report.Markdown, report.HTML)
 			if err != nil {
 				return err

@@ -1,0 +1,19 @@
+package report
+
+// wordSum is one word's tallies over all shards, as the tests read them.
+type wordSum struct {
+	count, pieces int64
+	docs          int
+	splits        []splitTally
+}
+
+// mergeShards returns the merged tallies by word, for the tests.
+func (f *Fragmenter) mergeShards() map[string]*wordSum {
+	m := f.merged()
+	out := map[string]*wordSum{}
+	for i := range m.words {
+		w := &m.words[i]
+		out[string(m.word(w))] = &wordSum{count: w.count, pieces: w.pieces, docs: int(w.docs), splits: m.splitsOf(w)}
+	}
+	return out
+}
