@@ -3,8 +3,10 @@ package report
 import (
 	"bufio"
 	"container/heap"
+	"encoding/binary"
 	"fmt"
 	"io"
+	"math"
 	"slices"
 	"sort"
 	"strings"
@@ -149,9 +151,10 @@ type Fragmenter struct {
 type shard struct {
 	index   wordIndex // word -> its tally in words
 	words   []wordTally
-	arena   []byte   // the words' bytes
-	idArena []uint32 // the splits' ids
-	local   docTally // the words of the document being scanned
+	arena   []byte     // the words' bytes
+	idArena []uint32   // the splits' ids
+	local   batchTally // the words of the last documents scanned, not yet in words
+	doc     int32      // documents this shard has scanned
 	ids     []int
 	ends    []int
 	pending []pendingTerm
@@ -163,6 +166,7 @@ type shard struct {
 // makes.
 type wordTally struct {
 	off, n        uint32 // the word is arena[off:off+n]
+	prefix        uint64 // its first eight bytes, packed: most words are found without reading the arena
 	count, pieces int64
 	docs          int32
 	nsplits       int32
@@ -257,6 +261,9 @@ func (f *Fragmenter) Scan(d *corpus.Document) (*DocWords, error) {
 // It fails, having tallied nothing, when the encoder's tokens do not spell
 // the text back.
 func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
+	if len(text) > math.MaxInt32 {
+		return nil, fmt.Errorf("a %d-byte document is more than fragments handles in one piece (2 GiB); split it first (morsel ration)", len(text))
+	}
 	sh := f.getShard()
 	defer f.putShard(sh)
 	dw := &DocWords{Bytes: len(text)}
@@ -285,7 +292,7 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 		dw.terms = make([]termTally, len(f.terms))
 		sh.pending = sh.pending[:0]
 	}
-	sh.local.reset()
+	sh.doc++
 
 	var words, pieces, one [numScripts]int64
 	k := 0 // the first token that ends after the current segment starts
@@ -346,7 +353,7 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 		for m < len(ends) && ends[m-1] < e {
 			m++
 		}
-		sh.local.add(text, s, e, h, k, m, ids)
+		sh.local.add(text[s:e], h, ids[k:m], sh.doc)
 		n := m - k
 		words[sc]++
 		pieces[sc] += int64(n)
@@ -358,7 +365,9 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	if f.terms != nil {
 		f.termsAt(sh, dw, text, len(text), nil)
 	}
-	sh.flush(text, ids)
+	if len(sh.local.words) >= batchWords {
+		sh.flush()
+	}
 	for i := range dw.ByScript {
 		t := ScriptTally{Words: words[i], Tokens: pieces[i], OneToken: one[i]}
 		dw.ByScript[i] = t
@@ -413,48 +422,51 @@ func (sh *shard) entry(word []byte, h uint64) *wordTally {
 		sh.arena = append(roomFor(sh.arena, len(word)), word...)
 		i = int32(len(sh.words))
 		sh.index.insert(slot, h, i)
-		sh.words = append(roomFor(sh.words, 1), wordTally{off: uint32(off), n: uint32(len(word))})
+		sh.words = append(roomFor(sh.words, 1), wordTally{off: uint32(off), n: uint32(len(word)), prefix: packPrefix(word)})
 	}
 	return &sh.words[i]
 }
 
-// docTally counts the words of one document before they go to the shard:
-// a document repeats its words, and a small table that stays in the
-// processor's cache costs less per occurrence than the shard's large one.
-// Words and splits are spans of the document's text and ids.
-type docTally struct {
+// batchTally counts the words of a run of documents before they go to the
+// shard: documents repeat their words and each other's, and a small table
+// that stays in the processor's cache costs less per occurrence than the
+// shard's large one. It holds copies of the words and splits, since the
+// documents' text is gone by the time it is flushed.
+type batchTally struct {
 	index []int32 // open addressing: entry index+1, 0 empty
-	words []docWord
+	words []batchWord
+	bytes []byte   // the words
+	ids   []uint32 // the splits
 }
 
-type docWord struct {
+// batchWords is how many distinct words a batch holds before it is
+// flushed to the shard.
+const batchWords = 8192
+
+type batchWord struct {
 	h             uint64 // hashWord of the word
-	s, e          int32  // the first occurrence, text[s:e]
-	count, pieces int32
+	off, n        uint32 // the word is bytes[off:off+n]
+	count, pieces int64
+	docs, lastDoc int32
 	nsplits       int32
-	splits        [maxSplits]struct{ k, m, count int32 } // ids[k:m]
+	splits        [maxSplits]splitRef // ids[off:off+n]
 }
 
-func (d *docTally) reset() {
+// add counts one occurrence of word, whose hashWord is h, split into ids,
+// in the document numbered doc.
+func (d *batchTally) add(word []byte, h uint64, ids []int, doc int32) {
 	if len(d.index) == 0 {
-		d.index = make([]int32, 1<<10)
+		d.index = make([]int32, 4*batchWords)
 	}
-	if len(d.words) > 0 {
-		clear(d.index)
-		d.words = d.words[:0]
-	}
-}
-
-// add counts the word text[s:e], whose hashWord is h, split into ids[k:m].
-func (d *docTally) add(text []byte, s, e int, h uint64, k, m int, ids []int) {
 	mask := len(d.index) - 1
-	word := text[s:e]
 	p := int(mixHash(h)) & mask
-	var w *docWord
+	var w *batchWord
 	for {
 		x := d.index[p]
 		if x == 0 {
-			d.words = append(d.words, docWord{h: h, s: int32(s), e: int32(e)})
+			off := len(d.bytes)
+			d.bytes = append(d.bytes, word...)
+			d.words = append(d.words, batchWord{h: h, off: uint32(off), n: uint32(len(word))})
 			d.index[p] = int32(len(d.words))
 			w = &d.words[len(d.words)-1]
 			if 2*len(d.words) > len(d.index) {
@@ -462,28 +474,36 @@ func (d *docTally) add(text []byte, s, e int, h uint64, k, m int, ids []int) {
 			}
 			break
 		}
-		if c := &d.words[x-1]; c.h == h && string(text[c.s:c.e]) == string(word) {
+		if c := &d.words[x-1]; c.h == h && string(d.bytes[c.off:c.off+c.n]) == string(word) {
 			w = c
 			break
 		}
 		p = (p + 1) & mask
 	}
 	w.count++
-	w.pieces += int32(m - k)
+	w.pieces += int64(len(ids))
+	if w.lastDoc != doc {
+		w.lastDoc = doc
+		w.docs++
+	}
 	for j := int32(0); j < w.nsplits; j++ {
 		sp := &w.splits[j]
-		if slices.Equal(ids[sp.k:sp.m], ids[k:m]) {
+		if sameIDs(d.ids[sp.off:sp.off+sp.n], ids) {
 			sp.count++
 			return
 		}
 	}
 	if w.nsplits < maxSplits {
-		w.splits[w.nsplits] = struct{ k, m, count int32 }{int32(k), int32(m), 1}
+		off := len(d.ids)
+		for _, id := range ids {
+			d.ids = append(d.ids, uint32(id))
+		}
+		w.splits[w.nsplits] = splitRef{off: uint32(off), n: uint32(len(ids)), count: 1}
 		w.nsplits++
 	}
 }
 
-func (d *docTally) grow() {
+func (d *batchTally) grow() {
 	d.index = make([]int32, 2*len(d.index))
 	mask := len(d.index) - 1
 	for i := range d.words {
@@ -495,34 +515,38 @@ func (d *docTally) grow() {
 	}
 }
 
-// flush adds the document's word counts, kept in sh.local, to the shard.
-func (sh *shard) flush(text []byte, ids []int) {
-	for i := range sh.local.words {
-		lw := &sh.local.words[i]
-		w := sh.entry(text[lw.s:lw.e], lw.h)
-		w.count += int64(lw.count)
-		w.pieces += int64(lw.pieces)
-		w.docs++
+// flush adds the batch's word counts to the shard and empties the batch.
+// A word's documents add up exactly: a document is scanned within one
+// batch.
+func (sh *shard) flush() {
+	d := &sh.local
+	for i := range d.words {
+		lw := &d.words[i]
+		w := sh.entry(d.bytes[lw.off:lw.off+lw.n], lw.h)
+		w.count += lw.count
+		w.pieces += lw.pieces
+		w.docs += lw.docs
 	next:
 		for j := int32(0); j < lw.nsplits; j++ {
 			sp := lw.splits[j]
-			split := ids[sp.k:sp.m]
+			split := d.ids[sp.off : sp.off+sp.n]
 			for q := int32(0); q < w.nsplits; q++ {
-				if sameIDs(sh.splitIDs(w.splits[q]), split) {
-					w.splits[q].count += int64(sp.count)
+				if slices.Equal(sh.splitIDs(w.splits[q]), split) {
+					w.splits[q].count += sp.count
 					continue next
 				}
 			}
 			if w.nsplits < maxSplits {
 				off := len(sh.idArena)
-				sh.idArena = roomFor(sh.idArena, len(split))
-				for _, id := range split {
-					sh.idArena = append(sh.idArena, uint32(id))
-				}
-				w.splits[w.nsplits] = splitRef{off: uint32(off), n: uint32(len(split)), count: int64(sp.count)}
+				sh.idArena = append(roomFor(sh.idArena, len(split)), split...)
+				w.splits[w.nsplits] = splitRef{off: uint32(off), n: uint32(len(split)), count: sp.count}
 				w.nsplits++
 			}
 		}
+	}
+	if len(d.words) > 0 {
+		clear(d.index)
+		d.words, d.bytes, d.ids = d.words[:0], d.bytes[:0], d.ids[:0]
 	}
 }
 
@@ -566,17 +590,32 @@ func (x *wordIndex) find(h uint64, word []byte, sh *shard) (int32, int) {
 	}
 	mask := len(x.slots) - 1
 	hi := h >> 32
+	prefix := packPrefix(word)
 	for p := int(hi) & mask; ; p = (p + 1) & mask {
 		s := x.slots[p]
 		if s == 0 {
 			return -1, p
 		}
 		if s>>32 == hi {
-			if i := int32(s&0xffffffff) - 1; string(sh.word(&sh.words[i])) == string(word) {
+			i := int32(s&0xffffffff) - 1
+			if w := &sh.words[i]; w.prefix == prefix && int(w.n) == len(word) && (len(word) <= 8 || string(sh.word(w)) == string(word)) {
 				return i, p
 			}
 		}
 	}
+}
+
+// packPrefix packs the first eight bytes of word (fewer when it is
+// shorter; the length tells them apart).
+func packPrefix(word []byte) uint64 {
+	if len(word) >= 8 {
+		return binary.LittleEndian.Uint64(word)
+	}
+	var t uint64
+	for i, c := range word {
+		t |= uint64(c) << (8 * i)
+	}
+	return t
 }
 
 // insert puts tally index i for hash h at slot, growing the table when it
@@ -704,6 +743,9 @@ func (f *Fragmenter) AddWords(source string, record int, dw *DocWords) {
 func (f *Fragmenter) merged() *shard {
 	f.mu.Lock()
 	defer f.mu.Unlock()
+	for _, sh := range f.shards {
+		sh.flush()
+	}
 	switch len(f.shards) {
 	case 0:
 		return &shard{}
