@@ -51,13 +51,12 @@ func benchEncode(b *testing.B, text []byte) {
 	}
 }
 
-func BenchmarkCountProse(b *testing.B)     { benchCount(b, benchText(b, proseFiles...), false) }
-func BenchmarkCountProseCold(b *testing.B) { benchCount(b, benchText(b, proseFiles...), true) }
-func BenchmarkCountCode(b *testing.B)      { benchCount(b, benchText(b, codeFiles...), false) }
-func BenchmarkCountCJK(b *testing.B)       { benchCount(b, benchText(b, cjkFiles...), false) }
-func BenchmarkEncodeProse(b *testing.B)    { benchEncode(b, benchText(b, proseFiles...)) }
-func BenchmarkEncodeCode(b *testing.B)     { benchEncode(b, benchText(b, codeFiles...)) }
-func BenchmarkEncodeCJK(b *testing.B)      { benchEncode(b, benchText(b, cjkFiles...)) }
+func BenchmarkCountProse(b *testing.B)  { benchCount(b, benchText(b, proseFiles...), false) }
+func BenchmarkCountCode(b *testing.B)   { benchCount(b, benchText(b, codeFiles...), false) }
+func BenchmarkCountCJK(b *testing.B)    { benchCount(b, benchText(b, cjkFiles...), false) }
+func BenchmarkEncodeProse(b *testing.B) { benchEncode(b, benchText(b, proseFiles...)) }
+func BenchmarkEncodeCode(b *testing.B)  { benchEncode(b, benchText(b, codeFiles...)) }
+func BenchmarkEncodeCJK(b *testing.B)   { benchEncode(b, benchText(b, cjkFiles...)) }
 
 func oneLetter(n int) []byte { return bytes.Repeat([]byte("a"), n) }
 
@@ -68,7 +67,8 @@ func randomBase64(n int) []byte {
 }
 
 // Pathological inputs: one pre-token of n bytes, and text that defeats the
-// cache. Each is run at 1 MB and 10 MB to show the growth is n log n.
+// cache, each with a fresh encoder (cold caches). Each is run at 1 MB and
+// 10 MB to show the growth is n log n.
 func BenchmarkOneLetter1MB(b *testing.B)  { benchCount(b, oneLetter(1<<20), true) }
 func BenchmarkOneLetter10MB(b *testing.B) { benchCount(b, oneLetter(10<<20), true) }
 func BenchmarkBase64_1MB(b *testing.B)    { benchCount(b, randomBase64(1<<20), true) }

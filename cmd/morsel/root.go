@@ -58,7 +58,7 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
 	pf := root.PersistentFlags()
 	pf.StringVar(&sh.vocab, "vocab", "", "vocabulary JSON file (token -> id), or a folder holding vocab.json+merges.txt or encoder.json+vocab.bpe (default: embedded GPT-2)")
 	pf.StringVar(&sh.merges, "merges", "", "merges file, one ranked pair a line (with --vocab FILE)")
-	pf.StringVar(&sh.format, "format", "table", "output: table, json, csv or md")
+	pf.StringVar(&sh.format, "format", "table", "output: table, json, csv or md; html too for survey, fit, quote and fragments")
 	pf.IntVar(&sh.workers, "workers", runtime.NumCPU(), "documents encoded at once")
 	pf.BoolVarP(&sh.quiet, "quiet", "q", false, "no progress or notes on standard error")
 	pf.StringVar(&sh.specials, "specials", "text", "special-token strings such as <|endoftext|> in a text: text (ordinary text) or honor (their ids)")
