@@ -927,7 +927,7 @@ func (f *Fragmenter) Finish(opt FragmentOptions) *Fragments {
 		for _, id := range best.ids {
 			tok, _ := v.Token(int(id))
 			fr.raw = append(fr.raw, tok)
-			fr.Split = append(fr.Split, pieceText(tok))
+			fr.Split = append(fr.Split, PieceText(tok))
 		}
 		r.Words = append(r.Words, fr)
 	}
@@ -1002,20 +1002,11 @@ func (h *rankHeap) offer(w *wordTally) {
 	}
 }
 
-// pieceText is a piece as JSON gives it: its text when it is whole UTF-8,
-// else its readable form, as morsel pieces does.
-func pieceText(tok []byte) string {
-	if utf8.Valid(tok) {
-		return string(tok)
-	}
-	return Readable(tok)
-}
-
 func idsText(v *bpe.Vocab, ids []int) []string {
 	out := make([]string, len(ids))
 	for i, id := range ids {
 		tok, _ := v.Token(id)
-		out[i] = pieceText(tok)
+		out[i] = PieceText(tok)
 	}
 	return out
 }

@@ -49,3 +49,12 @@ func Readable(piece []byte) string {
 	flush()
 	return b.String()
 }
+
+// PieceText returns a piece as JSON reports give it: its text when it is
+// whole UTF-8, else its Readable form.
+func PieceText(piece []byte) string {
+	if utf8.Valid(piece) {
+		return string(piece)
+	}
+	return Readable(piece)
+}

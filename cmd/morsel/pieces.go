@@ -6,7 +6,6 @@ import (
 	"io"
 	"os"
 	"strings"
-	"unicode/utf8"
 
 	"github.com/spf13/cobra"
 
@@ -83,11 +82,7 @@ func writePieces(w io.Writer, f report.Format, v *bpe.Vocab, ids []int, nbytes i
 		}
 		for _, id := range ids {
 			raw, _ := v.Token(id)
-			p := string(raw)
-			if !utf8.Valid(raw) {
-				p = report.Readable(raw)
-			}
-			out.Pieces = append(out.Pieces, p)
+			out.Pieces = append(out.Pieces, report.PieceText(raw))
 			out.Hex = append(out.Hex, hex.EncodeToString(raw))
 		}
 		return report.WriteJSON(w, out)
