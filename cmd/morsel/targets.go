@@ -149,6 +149,9 @@ func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *req
 	}
 	switch {
 	case flags.Changed("window"):
+		if rf.window <= 0 {
+			return nil, usagef(cmd, "--window %d: a window is a positive number of tokens", rf.window)
+		}
 		rq.window = rf.window
 	case t != nil && t.Window > 0:
 		rq.window = t.Window
