@@ -174,9 +174,8 @@ func (e *Encoder) Split(text []byte, fn func(start, end int, special bool)) {
 	})
 }
 
-// EncodePiece returns the ids of one pre-token, as Split gives them. The
-// slice is only valid until the next call on the encoder and must not be
-// modified; copy it to keep it.
+// EncodePiece returns the ids of one pre-token, as Split gives them, in a
+// slice of its own.
 func (e *Encoder) EncodePiece(piece []byte) []int {
 	s := e.get()
 	defer e.put(s)
