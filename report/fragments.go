@@ -154,6 +154,7 @@ type shard struct {
 	arena   []byte     // the words' bytes
 	idArena []uint32   // the splits' ids
 	local   batchTally // the words of the last documents scanned, not yet in words
+	at      []int32    // flush's scratch space
 	doc     int32      // documents this shard has scanned
 	ids     []int
 	ends    []int
@@ -269,56 +270,55 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	dw := &DocWords{Bytes: len(text)}
 	ids, _ := f.enc.EncodeStats(sh.ids[:0], text)
 	sh.ids = ids
-	ends := sh.ends[:0]
 	pos := 0
 	for _, id := range ids {
 		if uint(id) >= uint(len(f.lens)) {
 			return nil, fmt.Errorf("the encoder gave id %d, which is not in the vocabulary", id)
 		}
-		n := int(f.lens[id])
-		if n == longToken {
-			tok, _ := f.enc.Vocab().Token(id)
-			n = len(tok)
-		}
-		pos += n
-		ends = append(ends, pos)
+		pos += f.tokenLen(id)
 	}
-	sh.ends = ends
 	if pos != len(text) {
 		return nil, fmt.Errorf("the tokens spell %d bytes of a %d-byte text", pos, len(text))
 	}
-	dw.Tokens = len(ids)
 	if f.terms != nil {
+		// Glossary matches are settled by the tokens' end offsets.
+		ends, pos := sh.ends[:0], 0
+		for _, id := range ids {
+			pos += f.tokenLen(id)
+			ends = append(ends, pos)
+		}
+		sh.ends = ends
 		dw.terms = make([]termTally, len(f.terms))
 		sh.pending = sh.pending[:0]
 	}
+	dw.Tokens = len(ids)
 	sh.doc++
 
 	var words, pieces, one [numScripts]int64
-	k := 0 // the first token that ends after the current segment starts
+	// k is the first token that ends after the current segment starts, at
+	// kEnd.
+	k, kEnd := 0, 0
+	if len(ids) > 0 {
+		kEnd = f.tokenLen(ids[0])
+	}
 	for s := 0; s < len(text); {
 		var e int
-		var h uint64
 		var sc Script
 		if c := text[s]; c < utf8.RuneSelf && asciiWB[c] == wbAlnum {
-			// The common case, a word of ASCII letters and digits, hashed
-			// as it is scanned.
-			h = fnvOffset
-			letter := false
+			// The common case, a word of ASCII letters and digits.
+			var top byte
 			e = s
 			for ; e < len(text); e++ {
 				d := text[e]
 				if d >= utf8.RuneSelf || asciiWB[d] != wbAlnum {
 					break
 				}
-				h = (h ^ uint64(d)) * fnvPrime
-				letter = letter || d > '9'
+				top = max(top, d)
 			}
 			if !alnumRunEnds(text, e) {
 				e = nextSegment(text, s)
-				h = hashWord(text[s:e])
 				sc = WordScript(text[s:e])
-			} else if letter {
+			} else if top > '9' {
 				sc = Latin
 			} else {
 				sc = Digits
@@ -326,12 +326,20 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 			if f.terms != nil {
 				f.termsAt(sh, dw, text, s, text[s:e])
 			}
-		} else if c == ' ' && s+1 < len(text) && text[s+1] < utf8.RuneSelf && text[s+1] != ' ' {
-			// The other common case: one space between words (WB999).
-			if f.terms != nil {
-				f.termsAt(sh, dw, text, s, text[s:s+1])
+		} else if c < utf8.RuneSelf && asciiGap[c] && f.terms == nil && (s+1 == len(text) || text[s+1] < utf8.RuneSelf) {
+			// A run of ASCII characters that are not letters, digits or
+			// '_' holds no word while the text stays ASCII: each is a
+			// segment of its own, or joins its like (spaces, CR LF). The
+			// last one before other text is left to nextSegment, since an
+			// Extend or Format character may join it.
+			e = s + 1
+			for e < len(text) && text[e] < utf8.RuneSelf && asciiGap[text[e]] {
+				e++
 			}
-			s++
+			if e < len(text) && text[e] >= utf8.RuneSelf {
+				e--
+			}
+			s = e
 			continue
 		} else {
 			e = nextSegment(text, s)
@@ -343,18 +351,19 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 				s = e
 				continue
 			}
-			h = hashWord(seg)
 			sc = WordScript(seg)
 		}
-		for ends[k] <= s {
+		for kEnd <= s {
 			k++
+			kEnd += f.tokenLen(ids[k])
 		}
-		m := k + 1
-		for m < len(ends) && ends[m-1] < e {
+		m, mEnd := k, kEnd
+		for mEnd < e {
 			m++
+			mEnd += f.tokenLen(ids[m])
 		}
-		sh.local.add(text[s:e], h, ids[k:m], sh.doc)
-		n := m - k
+		sh.local.add(text[s:e], hashWord(text[s:e]), ids[k:m+1], sh.doc)
+		n := m + 1 - k
 		words[sc]++
 		pieces[sc] += int64(n)
 		if n == 1 {
@@ -365,7 +374,7 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	if f.terms != nil {
 		f.termsAt(sh, dw, text, len(text), nil)
 	}
-	if len(sh.local.words) >= batchWords {
+	if sh.local.full() {
 		sh.flush()
 	}
 	for i := range dw.ByScript {
@@ -376,17 +385,26 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	return dw, nil
 }
 
-// FNV-1a, 64 bits: the hash of words (hashWord), computed inline where
-// ScanText scans ASCII words.
-const (
-	fnvOffset = 14695981039346656037
-	fnvPrime  = 1099511628211
-)
+// tokenLen returns the length in bytes of token id, which is in the
+// vocabulary.
+func (f *Fragmenter) tokenLen(id int) int {
+	if n := int(f.lens[id]); n != longToken {
+		return n
+	}
+	tok, _ := f.enc.Vocab().Token(id)
+	return len(tok)
+}
 
+// hashWord hashes a word eight bytes at a time.
 func hashWord(w []byte) uint64 {
-	h := uint64(fnvOffset)
-	for _, c := range w {
-		h = (h ^ uint64(c)) * fnvPrime
+	h := uint64(len(w)) * 0x9E3779B97F4A7C15
+	for len(w) >= 8 {
+		h = (h ^ binary.LittleEndian.Uint64(w)) * 0xbf58476d1ce4e5b9
+		h ^= h >> 31
+		w = w[8:]
+	}
+	if len(w) > 0 {
+		h = (h ^ packPrefix(w)) * 0xbf58476d1ce4e5b9
 	}
 	return h
 }
@@ -403,8 +421,8 @@ func roomFor[T any](s []T, n int) []T {
 	return bigger
 }
 
-// mixHash spreads a hashWord value: FNV leaves the high bits, which the
-// index uses, weak.
+// mixHash spreads a hashWord value over all its bits: the tables use both
+// the low ones and the high ones.
 func mixHash(h uint64) uint64 {
 	h ^= h >> 29
 	h *= 0xbf58476d1ce4e5b9
@@ -415,6 +433,11 @@ func mixHash(h uint64) uint64 {
 // entry returns the tally of word, whose hashWord is h, making it when the
 // shard has none.
 func (sh *shard) entry(word []byte, h uint64) *wordTally {
+	return &sh.words[sh.entryIndex(word, h)]
+}
+
+// entryIndex is entry's index in sh.words.
+func (sh *shard) entryIndex(word []byte, h uint64) int32 {
 	h = mixHash(h)
 	i, slot := sh.index.find(h, word, sh)
 	if i < 0 {
@@ -424,94 +447,126 @@ func (sh *shard) entry(word []byte, h uint64) *wordTally {
 		sh.index.insert(slot, h, i)
 		sh.words = append(roomFor(sh.words, 1), wordTally{off: uint32(off), n: uint32(len(word)), prefix: packPrefix(word)})
 	}
-	return &sh.words[i]
+	return i
 }
 
 // batchTally counts the words of a run of documents before they go to the
 // shard: documents repeat their words and each other's, and a small table
 // that stays in the processor's cache costs less per occurrence than the
 // shard's large one. It holds copies of the words and splits, since the
-// documents' text is gone by the time it is flushed.
+// documents' text is gone by the time it is flushed. Its entries are kept
+// small for the same reason: a word keeps two splits here, and an
+// occurrence split a third way waits in spill for the flush.
 type batchTally struct {
-	index []int32 // open addressing: entry index+1, 0 empty
-	words []batchWord
-	bytes []byte   // the words
-	ids   []uint32 // the splits
+	index  []uint64 // open addressing: the mixed hash's high 32 bits<<32 | entry index+1; 0 is empty
+	words  []batchWord
+	hashes []uint64 // hashWord of words[i]
+	bytes  []byte   // the words
+	ids    []uint32 // the splits
+	spill  []batchSpill
+	pieces uint64 // the pieces of every occurrence in the batch
 }
 
 // batchWords is how many distinct words a batch holds before it is
 // flushed to the shard.
 const batchWords = 8192
 
+// batchFull is the pieces a batch holds before it is flushed whatever its
+// words: the batch's counters are 32 bits, and one document adds fewer
+// than 2^32 - batchFull pieces (it is under 2 GiB).
+const batchFull = 1 << 29
+
 type batchWord struct {
-	h             uint64 // hashWord of the word
 	off, n        uint32 // the word is bytes[off:off+n]
-	count, pieces int64
+	count, pieces uint32
 	docs, lastDoc int32
-	nsplits       int32
-	splits        [maxSplits]splitRef // ids[off:off+n]
+	nsplits       uint32
+	splits        [2]batchSplit
 }
+
+// batchSplit is one split of a batch word: the ids ids[off:off+n], seen
+// count times.
+type batchSplit struct{ off, n, count uint32 }
+
+// batchSpill is one occurrence of words[word] split as ids[off:off+n],
+// neither of the word's two splits in the batch.
+type batchSpill struct{ word, off, n uint32 }
 
 // add counts one occurrence of word, whose hashWord is h, split into ids,
 // in the document numbered doc.
 func (d *batchTally) add(word []byte, h uint64, ids []int, doc int32) {
 	if len(d.index) == 0 {
-		d.index = make([]int32, 4*batchWords)
+		d.index = make([]uint64, 2*batchWords)
 	}
 	mask := len(d.index) - 1
-	p := int(mixHash(h)) & mask
+	mh := mixHash(h)
+	tag := mh >> 32 << 32
+	p := int(mh) & mask
 	var w *batchWord
+	var wi uint32
 	for {
 		x := d.index[p]
 		if x == 0 {
 			off := len(d.bytes)
 			d.bytes = append(d.bytes, word...)
-			d.words = append(d.words, batchWord{h: h, off: uint32(off), n: uint32(len(word))})
-			d.index[p] = int32(len(d.words))
-			w = &d.words[len(d.words)-1]
+			wi = uint32(len(d.words))
+			d.words = append(d.words, batchWord{off: uint32(off), n: uint32(len(word))})
+			d.hashes = append(d.hashes, h)
+			d.index[p] = tag | uint64(wi+1)
+			w = &d.words[wi]
 			if 2*len(d.words) > len(d.index) {
 				d.grow()
 			}
 			break
 		}
-		if c := &d.words[x-1]; c.h == h && string(d.bytes[c.off:c.off+c.n]) == string(word) {
-			w = c
-			break
+		if x&^0xffffffff == tag {
+			wi = uint32(x) - 1
+			if c := &d.words[wi]; string(d.bytes[c.off:c.off+c.n]) == string(word) {
+				w = c
+				break
+			}
 		}
 		p = (p + 1) & mask
 	}
 	w.count++
-	w.pieces += int64(len(ids))
+	w.pieces += uint32(len(ids))
+	d.pieces += uint64(len(ids))
 	if w.lastDoc != doc {
 		w.lastDoc = doc
 		w.docs++
 	}
-	for j := int32(0); j < w.nsplits; j++ {
+	for j := uint32(0); j < w.nsplits; j++ {
 		sp := &w.splits[j]
 		if sameIDs(d.ids[sp.off:sp.off+sp.n], ids) {
 			sp.count++
 			return
 		}
 	}
-	if w.nsplits < maxSplits {
-		off := len(d.ids)
-		for _, id := range ids {
-			d.ids = append(d.ids, uint32(id))
-		}
-		w.splits[w.nsplits] = splitRef{off: uint32(off), n: uint32(len(ids)), count: 1}
-		w.nsplits++
+	off := uint32(len(d.ids))
+	for _, id := range ids {
+		d.ids = append(d.ids, uint32(id))
 	}
+	if w.nsplits < uint32(len(w.splits)) {
+		w.splits[w.nsplits] = batchSplit{off: off, n: uint32(len(ids)), count: 1}
+		w.nsplits++
+		return
+	}
+	d.spill = append(d.spill, batchSpill{word: wi, off: off, n: uint32(len(ids))})
 }
 
+// full reports whether the batch is due to be flushed.
+func (d *batchTally) full() bool { return len(d.words) >= batchWords || d.pieces >= batchFull }
+
 func (d *batchTally) grow() {
-	d.index = make([]int32, 2*len(d.index))
+	d.index = make([]uint64, 2*len(d.index))
 	mask := len(d.index) - 1
-	for i := range d.words {
-		p := int(mixHash(d.words[i].h)) & mask
+	for i, h := range d.hashes {
+		mh := mixHash(h)
+		p := int(mh) & mask
 		for d.index[p] != 0 {
 			p = (p + 1) & mask
 		}
-		d.index[p] = int32(i + 1)
+		d.index[p] = mh>>32<<32 | uint64(i+1)
 	}
 }
 
@@ -520,33 +575,48 @@ func (d *batchTally) grow() {
 // batch.
 func (sh *shard) flush() {
 	d := &sh.local
+	if len(d.words) == 0 {
+		return
+	}
+	at := sh.at[:0] // the shard's tally of each batch word
 	for i := range d.words {
 		lw := &d.words[i]
-		w := sh.entry(d.bytes[lw.off:lw.off+lw.n], lw.h)
-		w.count += lw.count
-		w.pieces += lw.pieces
+		wi := sh.entryIndex(d.bytes[lw.off:lw.off+lw.n], d.hashes[i])
+		at = append(at, wi)
+		w := &sh.words[wi]
+		w.count += int64(lw.count)
+		w.pieces += int64(lw.pieces)
 		w.docs += lw.docs
-	next:
-		for j := int32(0); j < lw.nsplits; j++ {
+		for j := uint32(0); j < lw.nsplits; j++ {
 			sp := lw.splits[j]
-			split := d.ids[sp.off : sp.off+sp.n]
-			for q := int32(0); q < w.nsplits; q++ {
-				if slices.Equal(sh.splitIDs(w.splits[q]), split) {
-					w.splits[q].count += sp.count
-					continue next
-				}
-			}
-			if w.nsplits < maxSplits {
-				off := len(sh.idArena)
-				sh.idArena = append(roomFor(sh.idArena, len(split)), split...)
-				w.splits[w.nsplits] = splitRef{off: uint32(off), n: uint32(len(split)), count: sp.count}
-				w.nsplits++
-			}
+			sh.addSplit(w, d.ids[sp.off:sp.off+sp.n], int64(sp.count))
 		}
 	}
-	if len(d.words) > 0 {
+	for _, sp := range d.spill {
+		sh.addSplit(&sh.words[at[sp.word]], d.ids[sp.off:sp.off+sp.n], 1)
+	}
+	sh.at = at
+	if len(d.index) > 2*batchWords {
+		d.index = make([]uint64, 2*batchWords)
+	} else {
 		clear(d.index)
-		d.words, d.bytes, d.ids = d.words[:0], d.bytes[:0], d.ids[:0]
+	}
+	d.words, d.hashes, d.bytes, d.ids, d.spill, d.pieces = d.words[:0], d.hashes[:0], d.bytes[:0], d.ids[:0], d.spill[:0], 0
+}
+
+// addSplit counts n occurrences of w, a tally of sh, split as ids.
+func (sh *shard) addSplit(w *wordTally, ids []uint32, n int64) {
+	for q := int32(0); q < w.nsplits; q++ {
+		if slices.Equal(sh.splitIDs(w.splits[q]), ids) {
+			w.splits[q].count += n
+			return
+		}
+	}
+	if w.nsplits < maxSplits {
+		off := len(sh.idArena)
+		sh.idArena = append(roomFor(sh.idArena, len(ids)), ids...)
+		w.splits[w.nsplits] = splitRef{off: uint32(off), n: uint32(len(ids)), count: n}
+		w.nsplits++
 	}
 }
 
@@ -557,21 +627,8 @@ func (sh *shard) absorb(src *shard, w *wordTally) {
 	d.count += w.count
 	d.pieces += w.pieces
 	d.docs += w.docs
-next:
 	for j := int32(0); j < w.nsplits; j++ {
-		ids := src.splitIDs(w.splits[j])
-		for k := int32(0); k < d.nsplits; k++ {
-			if slices.Equal(sh.splitIDs(d.splits[k]), ids) {
-				d.splits[k].count += w.splits[j].count
-				continue next
-			}
-		}
-		if d.nsplits < maxSplits {
-			off := len(sh.idArena)
-			sh.idArena = append(roomFor(sh.idArena, len(ids)), ids...)
-			d.splits[d.nsplits] = splitRef{off: uint32(off), n: uint32(len(ids)), count: w.splits[j].count}
-			d.nsplits++
-		}
+		sh.addSplit(d, src.splitIDs(w.splits[j]), w.splits[j].count)
 	}
 }
 
@@ -1147,6 +1204,15 @@ const (
 	wbNewline        // LF, and Newline VT and FF
 	wbSlow           // ExtendNumLet '_': left to uniseg
 )
+
+// asciiGap holds the ASCII characters that can start no word: all but
+// letters, digits and '_'.
+var asciiGap = func() (t [utf8.RuneSelf]bool) {
+	for c := range t {
+		t[c] = asciiWB[c] != wbAlnum && asciiWB[c] != wbSlow
+	}
+	return t
+}()
 
 var asciiWB = func() (t [utf8.RuneSelf]uint8) {
 	for c := 'a'; c <= 'z'; c++ {
