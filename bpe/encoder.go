@@ -107,22 +107,33 @@ func (e *Encoder) Encode(text []byte) []int {
 // EncodeStats appends the token ids of text to dst and returns them with
 // what the text held.
 func (e *Encoder) EncodeStats(dst []int, text []byte) ([]int, Stats) {
+	return encodeTo(e, dst, text)
+}
+
+// AppendIDs appends the token ids of text to dst, as EncodeStats gives
+// them, in 32 bits each: for callers that keep many ids.
+func (e *Encoder) AppendIDs(dst []uint32, text []byte) []uint32 {
+	dst, _ = encodeTo(e, dst, text)
+	return dst
+}
+
+func encodeTo[T int | uint32](e *Encoder, dst []T, text []byte) ([]T, Stats) {
 	s := e.get()
 	defer e.put(s)
 	var st Stats
 	start := len(dst)
 	e.segments(text, &st, func(seg []byte, special int) {
 		if special >= 0 {
-			dst = append(dst, int(e.specIDs[special]))
+			dst = append(dst, T(e.specIDs[special]))
 			return
 		}
 		if e.re != nil {
-			e.re.spans(seg, func(a, b int) { dst = s.appendPiece(dst, seg[a:b]) })
+			e.re.spans(seg, func(a, b int) { dst = appendPiece(s, dst, seg[a:b]) })
 			return
 		}
 		for i := 0; i < len(seg); {
 			j := nextGPT2(seg, i)
-			dst = s.appendPiece(dst, seg[i:j])
+			dst = appendPiece(s, dst, seg[i:j])
 			i = j
 		}
 	})

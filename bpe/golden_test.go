@@ -151,6 +151,17 @@ func TestGoldenIDs(t *testing.T) {
 			if n := enc.Count(text); n != len(got) {
 				t.Errorf("%s: Count = %d, len(Encode) = %d", c.Name, n, len(got))
 			}
+			ids32 := enc.AppendIDs([]uint32{7}, text) // appends after what dst holds
+			if len(ids32) != len(got)+1 || ids32[0] != 7 {
+				t.Errorf("%s: AppendIDs gave %d ids after the one in dst, Encode %d", c.Name, len(ids32)-1, len(got))
+			} else {
+				for i, id := range got {
+					if ids32[i+1] != uint32(id) {
+						t.Errorf("%s: AppendIDs differs from Encode at id %d: %d, %d", c.Name, i, ids32[i+1], id)
+						break
+					}
+				}
+			}
 			if back := enc.Decode(got); !bytes.Equal(back, text) {
 				i := commonPrefix(back, text)
 				t.Errorf("%s: Decode(Encode(text)) differs from text at byte %d: got %q, want %q", c.Name, i, window(back, i), window(text, i))

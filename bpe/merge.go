@@ -132,12 +132,12 @@ func (s *state) piece(p []byte) []uint32 {
 }
 
 // appendPiece appends the ids of one pre-token to dst.
-func (s *state) appendPiece(dst []int, p []byte) []int {
+func appendPiece[T int | uint32](s *state, dst []T, p []byte) []T {
 	if len(p) == 1 {
-		return append(dst, int(s.v.byteID[p[0]]))
+		return append(dst, T(s.v.byteID[p[0]]))
 	}
 	for _, id := range s.piece(p) {
-		dst = append(dst, int(id))
+		dst = append(dst, T(id))
 	}
 	return dst
 }

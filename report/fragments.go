@@ -155,8 +155,9 @@ type shard struct {
 	idArena []uint32   // the splits' ids
 	local   batchTally // the words of the last documents scanned, not yet in words
 	at      []int32    // flush's scratch space
+	sink    uint64     // what touch read
 	doc     int32      // documents this shard has scanned
-	ids     []int
+	ids     []uint32
 	ends    []int
 	pending []pendingTerm
 }
@@ -268,7 +269,7 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	sh := f.getShard()
 	defer f.putShard(sh)
 	dw := &DocWords{Bytes: len(text)}
-	ids, _ := f.enc.EncodeStats(sh.ids[:0], text)
+	ids := f.enc.AppendIDs(sh.ids[:0], text)
 	sh.ids = ids
 	pos := 0
 	for _, id := range ids {
@@ -387,11 +388,11 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 
 // tokenLen returns the length in bytes of token id, which is in the
 // vocabulary.
-func (f *Fragmenter) tokenLen(id int) int {
+func (f *Fragmenter) tokenLen(id uint32) int {
 	if n := int(f.lens[id]); n != longToken {
 		return n
 	}
-	tok, _ := f.enc.Vocab().Token(id)
+	tok, _ := f.enc.Vocab().Token(int(id))
 	return len(tok)
 }
 
@@ -494,7 +495,7 @@ type batchSpill struct{ word, off, n uint32 }
 
 // add counts one occurrence of word, whose hashWord is h, split into ids,
 // in the document numbered doc.
-func (d *batchTally) add(word []byte, h uint64, ids []int, doc int32) {
+func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) {
 	if len(d.index) == 0 {
 		d.index = make([]uint64, 2*batchWords)
 	}
@@ -537,15 +538,13 @@ func (d *batchTally) add(word []byte, h uint64, ids []int, doc int32) {
 	}
 	for j := uint32(0); j < w.nsplits; j++ {
 		sp := &w.splits[j]
-		if sameIDs(d.ids[sp.off:sp.off+sp.n], ids) {
+		if slices.Equal(d.ids[sp.off:sp.off+sp.n], ids) {
 			sp.count++
 			return
 		}
 	}
 	off := uint32(len(d.ids))
-	for _, id := range ids {
-		d.ids = append(d.ids, uint32(id))
-	}
+	d.ids = append(d.ids, ids...)
 	if w.nsplits < uint32(len(w.splits)) {
 		w.splits[w.nsplits] = batchSplit{off: off, n: uint32(len(ids)), count: 1}
 		w.nsplits++
@@ -580,6 +579,9 @@ func (sh *shard) flush() {
 	}
 	at := sh.at[:0] // the shard's tally of each batch word
 	for i := range d.words {
+		if i%flushGroup == 0 {
+			sh.touch(d.hashes[i:min(i+flushGroup, len(d.hashes))])
+		}
 		lw := &d.words[i]
 		wi := sh.entryIndex(d.bytes[lw.off:lw.off+lw.n], d.hashes[i])
 		at = append(at, wi)
@@ -602,6 +604,31 @@ func (sh *shard) flush() {
 		clear(d.index)
 	}
 	d.words, d.hashes, d.bytes, d.ids, d.spill, d.pieces = d.words[:0], d.hashes[:0], d.bytes[:0], d.ids[:0], d.spill[:0], 0
+}
+
+// flushGroup is how many words flush looks up at once.
+const flushGroup = 16
+
+// touch reads the index slots and the tallies that the words of hashes
+// will be looked up in, so that the cache misses overlap instead of coming
+// one after the other.
+func (sh *shard) touch(hashes []uint64) {
+	x := &sh.index
+	if len(x.slots) == 0 {
+		return
+	}
+	mask := len(x.slots) - 1
+	var slots [flushGroup]uint64
+	for j, h := range hashes {
+		slots[j] = x.slots[int(mixHash(h)>>32)&mask]
+	}
+	var sum uint64
+	for _, s := range slots[:len(hashes)] {
+		if i := int(s & 0xffffffff); i > 0 {
+			sum += sh.words[i-1].prefix
+		}
+	}
+	sh.sink += sum
 }
 
 // addSplit counts n occurrences of w, a tally of sh, split as ids.
@@ -665,14 +692,20 @@ func (x *wordIndex) find(h uint64, word []byte, sh *shard) (int32, int) {
 // packPrefix packs the first eight bytes of word (fewer when it is
 // shorter; the length tells them apart).
 func packPrefix(word []byte) uint64 {
-	if len(word) >= 8 {
+	n := len(word)
+	switch {
+	case n >= 8:
 		return binary.LittleEndian.Uint64(word)
+	case n >= 4:
+		// Two loads that overlap where n < 8: the bytes they share are
+		// the same, so or-ing them is exact.
+		lo := uint64(binary.LittleEndian.Uint32(word))
+		hi := uint64(binary.LittleEndian.Uint32(word[n-4:]))
+		return lo | hi<<(8*(n-4))
+	case n > 0:
+		return uint64(word[0]) | uint64(word[n>>1])<<(8*(n>>1)) | uint64(word[n-1])<<(8*(n-1))
 	}
-	var t uint64
-	for i, c := range word {
-		t |= uint64(c) << (8 * i)
-	}
-	return t
+	return 0
 }
 
 // insert puts tally index i for hash h at slot, growing the table when it
@@ -697,18 +730,6 @@ func (x *wordIndex) insert(slot int, h uint64, i int32) {
 		}
 		x.slots[p] = s
 	}
-}
-
-func sameIDs(a []uint32, b []int) bool {
-	if len(a) != len(b) {
-		return false
-	}
-	for i, id := range b {
-		if a[i] != uint32(id) {
-			return false
-		}
-	}
-	return true
 }
 
 // termsAt settles the glossary matches waiting for a word boundary at b,

@@ -452,3 +452,18 @@ func TestDemoPlantedTermsOnTop(t *testing.T) {
 		}
 	}
 }
+
+// packPrefix must give the first eight bytes of a word, little-endian,
+// whatever the loads it takes to read them.
+func TestPackPrefix(t *testing.T) {
+	w := []byte("\x01\x82\x03\xf4\x05\x06\x07\x88\x09\x0a")
+	for n := 0; n <= len(w); n++ {
+		var want uint64
+		for i, c := range w[:min(n, 8)] {
+			want |= uint64(c) << (8 * i)
+		}
+		if got := packPrefix(w[:n]); got != want {
+			t.Errorf("packPrefix of %d bytes = %#x, want %#x", n, got, want)
+		}
+	}
+}
