@@ -5,6 +5,7 @@ import (
 	"math/rand"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 	"testing"
@@ -239,4 +240,23 @@ func FuzzRoundTrip(f *testing.F) {
 			}
 		}
 	})
+}
+
+// A cache value holds one or two ids itself when they fit, else their
+// place in the arena; either way valueIDs gives the ids back.
+func TestCacheValueIDs(t *testing.T) {
+	s := &state{arena: []uint32{9, 8, 7, 6, 5}}
+	for _, ids := range [][]uint32{{0}, {50256}, {inlineMask}, {inlineMask + 1}, {3, 4}, {inlineMask, 1}, {1, inlineMask + 1}, {1, 2, 3}} {
+		off := len(s.arena)
+		v, inline := idsValue(ids, off)
+		if want := len(ids) <= 2 && !slices.ContainsFunc(ids, func(id uint32) bool { return id > inlineMask }); inline != want {
+			t.Errorf("idsValue(%v): inline = %v, want %v", ids, inline, want)
+		}
+		if !inline {
+			s.arena = append(s.arena, ids...)
+		}
+		if got := s.valueIDs(v); !slices.Equal(got, ids) {
+			t.Errorf("valueIDs(idsValue(%v)) = %v", ids, got)
+		}
+	}
 }

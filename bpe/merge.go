@@ -11,7 +11,7 @@ import (
 type state struct {
 	v     *Vocab
 	near  [nearSize]slot    // a direct-mapped copy of recently used short entries, small enough to stay in the core's cache
-	short u64table          // pre-tokens of 2-7 bytes, packed into the key -> offset<<32 | length in arena
+	short u64table          // pre-tokens of 2-7 bytes, packed into the key -> their ids (see idsValue)
 	mid   u128table         // pre-tokens of 8-15 bytes, packed into two words -> the same
 	cache map[string]uint64 // longer pre-tokens, up to cacheLongest bytes -> the same
 	arena []uint32
@@ -92,6 +92,46 @@ func (s *state) cached(p []byte) (uint64, bool) {
 	return 0, false
 }
 
+// The word cache's values hold a pre-token's ids: the number of ids in the
+// low 8 bits (a cached pre-token has at most cacheLongest), and then either
+// one or two ids themselves, marked by inlineIDs, or the ids' offset in the
+// arena. Most pre-tokens are one or two tokens, which are then read without
+// going to the arena.
+const (
+	inlineIDs   = 1 << 8
+	inlineShift = 9
+	inlineBits  = 27 // the ids inline must be below 1<<inlineBits
+	inlineMask  = 1<<inlineBits - 1
+)
+
+// idsValue returns the cache value of ids, and whether it holds them
+// inline (else they must go into the arena at off).
+func idsValue(ids []uint32, off int) (uint64, bool) {
+	n := uint64(len(ids))
+	switch {
+	case n == 1 && ids[0] <= inlineMask:
+		return uint64(ids[0])<<inlineShift | inlineIDs | n, true
+	case n == 2 && ids[0] <= inlineMask && ids[1] <= inlineMask:
+		return uint64(ids[1])<<(inlineShift+inlineBits) | uint64(ids[0])<<inlineShift | inlineIDs | n, true
+	}
+	return uint64(off)<<inlineShift | n, false
+}
+
+// valueIDs returns the ids a cache value holds, in s.out when they are
+// inline.
+func (s *state) valueIDs(v uint64) []uint32 {
+	n := v & 0xff
+	if v&inlineIDs == 0 {
+		off := v >> inlineShift
+		return s.arena[off : off+n]
+	}
+	s.out = append(s.out[:0], uint32(v>>inlineShift)&inlineMask)
+	if n == 2 {
+		s.out = append(s.out, uint32(v>>(inlineShift+inlineBits)))
+	}
+	return s.out
+}
+
 // piece returns the ids of one pre-token. The slice is valid until the next
 // call.
 func (s *state) piece(p []byte) []uint32 {
@@ -99,8 +139,8 @@ func (s *state) piece(p []byte) []uint32 {
 		s.out = append(s.out[:0], s.v.byteID[p[0]])
 		return s.out
 	}
-	if loc, ok := s.cached(p); ok {
-		return s.arena[loc>>32 : loc>>32+loc&0xffffffff]
+	if v, ok := s.cached(p); ok {
+		return s.valueIDs(v)
 	}
 	var ids []uint32
 	if len(p) <= shortest {
@@ -116,8 +156,10 @@ func (s *state) piece(p []byte) []uint32 {
 			clear(s.cache)
 			s.arena = s.arena[:0]
 		}
-		loc := uint64(len(s.arena))<<32 | uint64(len(ids))
-		s.arena = append(s.arena, ids...)
+		loc, inline := idsValue(ids, len(s.arena))
+		if !inline {
+			s.arena = append(s.arena, ids...)
+		}
 		switch {
 		case len(p) < 8:
 			s.short.put(packShort(p), loc)
@@ -136,7 +178,22 @@ func appendPiece[T int | uint32](s *state, dst []T, p []byte) []T {
 	if len(p) == 1 {
 		return append(dst, T(s.v.byteID[p[0]]))
 	}
-	for _, id := range s.piece(p) {
+	ids, ok := s.arena, false
+	if v, hit := s.cached(p); hit {
+		if v&inlineIDs != 0 {
+			dst = append(dst, T(uint32(v>>inlineShift)&inlineMask))
+			if v&0xff == 2 {
+				dst = append(dst, T(uint32(v>>(inlineShift+inlineBits))))
+			}
+			return dst
+		}
+		off := v >> inlineShift
+		ids, ok = ids[off:off+v&0xff], true
+	}
+	if !ok {
+		ids = s.piece(p)
+	}
+	for _, id := range ids {
 		dst = append(dst, T(id))
 	}
 	return dst
@@ -147,8 +204,8 @@ func (s *state) count(p []byte) int {
 	if len(p) == 1 {
 		return 1
 	}
-	if loc, ok := s.cached(p); ok {
-		return int(loc & 0xffffffff)
+	if v, ok := s.cached(p); ok {
+		return int(v & 0xff)
 	}
 	return len(s.piece(p))
 }

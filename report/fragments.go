@@ -136,6 +136,7 @@ type Fragmenter struct {
 	mu     sync.Mutex
 	shards []*shard    // every shard made, for Finish
 	free   chan *shard // shards not in use
+	parts  [numParts]wordTable
 
 	docs     []DocFertility
 	skipped  []Skipped
@@ -145,27 +146,45 @@ type Fragmenter struct {
 	termAgg  []termAgg
 }
 
-// shard holds the word tallies of the documents one worker scanned, and
-// that worker's reusable memory. A document is scanned by one shard, so
-// the documents a word occurs in add up exactly over the shards.
+// shard is one worker's reusable memory, with the words of the last
+// documents it scanned. A document is scanned by one shard, so the
+// documents a word occurs in add up exactly when the shards flush their
+// batches into the word tables.
 type shard struct {
-	index   wordIndex // word -> its tally in words
-	words   []wordTally
-	arena   []byte     // the words' bytes
-	idArena []uint32   // the splits' ids
-	local   batchTally // the words of the last documents scanned, not yet in words
-	at      []int32    // flush's scratch space
-	sink    uint64     // what touch read
+	local   batchTally // the words of the last documents scanned, not yet in a wordTable
 	doc     int32      // documents this shard has scanned
 	ids     []uint32
 	ends    []int
 	pending []pendingTerm
+	// flush's scratch space
+	part  []uint8 // the partition of each batch word
+	order []int32 // the batch words by partition
+	at    []int32 // each batch word's tally in its partition
 }
 
-// wordTally is one word's occurrences in one shard. It holds no pointers
-// (the word and the splits' ids are offsets into the shard's arenas), so
-// the garbage collector never scans the millions of them a large corpus
-// makes.
+// numParts is the number of word tables. A word belongs to one, chosen by
+// its hash, and a worker flushing its batch locks them one by one, so the
+// workers seldom wait for each other and every word is tallied once.
+const numParts = 16
+
+// partOf returns the partition of a word of hashWord h: bits of the mixed
+// hash that neither the batch's index (the low ones) nor the word table's
+// (the high 32) uses.
+func partOf(h uint64) uint8 { return uint8(mixHash(h)>>24) & (numParts - 1) }
+
+// wordTable holds the tallies of the words of one partition.
+type wordTable struct {
+	mu      sync.Mutex
+	index   wordIndex // word -> its tally in words
+	words   []wordTally
+	arena   []byte   // the words' bytes
+	idArena []uint32 // the splits' ids
+	sink    uint64   // what touch read
+}
+
+// wordTally is one word's occurrences. It holds no pointers (the word and
+// the splits' ids are offsets into its table's arenas), so the garbage
+// collector never scans the millions of them a large corpus makes.
 type wordTally struct {
 	off, n        uint32 // the word is arena[off:off+n]
 	prefix        uint64 // its first eight bytes, packed: most words are found without reading the arena
@@ -192,9 +211,9 @@ type splitTally struct {
 	count int64
 }
 
-func (sh *shard) word(w *wordTally) []byte { return sh.arena[w.off : w.off+w.n] }
+func (t *wordTable) word(w *wordTally) []byte { return t.arena[w.off : w.off+w.n] }
 
-func (sh *shard) splitIDs(r splitRef) []uint32 { return sh.idArena[r.off : r.off+r.n] }
+func (t *wordTable) splitIDs(r splitRef) []uint32 { return t.idArena[r.off : r.off+r.n] }
 
 type termAgg struct {
 	count, pieces int64
@@ -376,7 +395,7 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 		f.termsAt(sh, dw, text, len(text), nil)
 	}
 	if sh.local.full() {
-		sh.flush()
+		f.flush(sh)
 	}
 	for i := range dw.ByScript {
 		t := ScriptTally{Words: words[i], Tokens: pieces[i], OneToken: one[i]}
@@ -433,20 +452,20 @@ func mixHash(h uint64) uint64 {
 
 // entry returns the tally of word, whose hashWord is h, making it when the
 // shard has none.
-func (sh *shard) entry(word []byte, h uint64) *wordTally {
-	return &sh.words[sh.entryIndex(word, h)]
+func (t *wordTable) entry(word []byte, h uint64) *wordTally {
+	return &t.words[t.entryIndex(word, h)]
 }
 
 // entryIndex is entry's index in sh.words.
-func (sh *shard) entryIndex(word []byte, h uint64) int32 {
+func (t *wordTable) entryIndex(word []byte, h uint64) int32 {
 	h = mixHash(h)
-	i, slot := sh.index.find(h, word, sh)
+	i, slot := t.index.find(h, word, t)
 	if i < 0 {
-		off := len(sh.arena)
-		sh.arena = append(roomFor(sh.arena, len(word)), word...)
-		i = int32(len(sh.words))
-		sh.index.insert(slot, h, i)
-		sh.words = append(roomFor(sh.words, 1), wordTally{off: uint32(off), n: uint32(len(word)), prefix: packPrefix(word)})
+		off := len(t.arena)
+		t.arena = append(roomFor(t.arena, len(word)), word...)
+		i = int32(len(t.words))
+		t.index.insert(slot, h, i)
+		t.words = append(roomFor(t.words, 1), wordTally{off: uint32(off), n: uint32(len(word)), prefix: packPrefix(word)})
 	}
 	return i
 }
@@ -569,35 +588,69 @@ func (d *batchTally) grow() {
 	}
 }
 
-// flush adds the batch's word counts to the shard and empties the batch.
-// A word's documents add up exactly: a document is scanned within one
-// batch.
-func (sh *shard) flush() {
+// flush adds the words of sh's batch to the word tables and empties the
+// batch. A word's documents add up exactly: a document is scanned within
+// one batch.
+func (f *Fragmenter) flush(sh *shard) {
 	d := &sh.local
 	if len(d.words) == 0 {
 		return
 	}
-	at := sh.at[:0] // the shard's tally of each batch word
-	for i := range d.words {
-		if i%flushGroup == 0 {
-			sh.touch(d.hashes[i:min(i+flushGroup, len(d.hashes))])
+	// Sort the batch's words by partition, counting.
+	var start [numParts + 1]int32
+	part := sh.part[:0]
+	for _, h := range d.hashes {
+		p := partOf(h)
+		part = append(part, p)
+		start[p+1]++
+	}
+	for p := 1; p <= numParts; p++ {
+		start[p] += start[p-1]
+	}
+	order := roomFor(sh.order[:0], len(part))[:len(part)]
+	at := roomFor(sh.at[:0], len(part))[:len(part)] // each batch word's tally in its table
+	next := start
+	for i, p := range part {
+		order[next[p]] = int32(i)
+		next[p]++
+	}
+	var hashes [flushGroup]uint64
+	for p := range numParts {
+		group := order[start[p]:start[p+1]]
+		if len(group) == 0 {
+			continue
 		}
-		lw := &d.words[i]
-		wi := sh.entryIndex(d.bytes[lw.off:lw.off+lw.n], d.hashes[i])
-		at = append(at, wi)
-		w := &sh.words[wi]
-		w.count += int64(lw.count)
-		w.pieces += int64(lw.pieces)
-		w.docs += lw.docs
-		for j := uint32(0); j < lw.nsplits; j++ {
-			sp := lw.splits[j]
-			sh.addSplit(w, d.ids[sp.off:sp.off+sp.n], int64(sp.count))
+		t := &f.parts[p]
+		t.mu.Lock()
+		for g := 0; g < len(group); g += flushGroup {
+			ws := group[g:min(g+flushGroup, len(group))]
+			for j, i := range ws {
+				hashes[j] = d.hashes[i]
+			}
+			t.touch(hashes[:len(ws)])
+			for _, i := range ws {
+				lw := &d.words[i]
+				wi := t.entryIndex(d.bytes[lw.off:lw.off+lw.n], d.hashes[i])
+				at[i] = wi
+				w := &t.words[wi]
+				w.count += int64(lw.count)
+				w.pieces += int64(lw.pieces)
+				w.docs += lw.docs
+				for j := uint32(0); j < lw.nsplits; j++ {
+					sp := lw.splits[j]
+					t.addSplit(w, d.ids[sp.off:sp.off+sp.n], int64(sp.count))
+				}
+			}
 		}
+		t.mu.Unlock()
 	}
 	for _, sp := range d.spill {
-		sh.addSplit(&sh.words[at[sp.word]], d.ids[sp.off:sp.off+sp.n], 1)
+		t := &f.parts[part[sp.word]]
+		t.mu.Lock()
+		t.addSplit(&t.words[at[sp.word]], d.ids[sp.off:sp.off+sp.n], 1)
+		t.mu.Unlock()
 	}
-	sh.at = at
+	sh.part, sh.order, sh.at = part, order, at
 	if len(d.index) > 2*batchWords {
 		d.index = make([]uint64, 2*batchWords)
 	} else {
@@ -612,8 +665,8 @@ const flushGroup = 16
 // touch reads the index slots and the tallies that the words of hashes
 // will be looked up in, so that the cache misses overlap instead of coming
 // one after the other.
-func (sh *shard) touch(hashes []uint64) {
-	x := &sh.index
+func (t *wordTable) touch(hashes []uint64) {
+	x := &t.index
 	if len(x.slots) == 0 {
 		return
 	}
@@ -625,37 +678,25 @@ func (sh *shard) touch(hashes []uint64) {
 	var sum uint64
 	for _, s := range slots[:len(hashes)] {
 		if i := int(s & 0xffffffff); i > 0 {
-			sum += sh.words[i-1].prefix
+			sum += t.words[i-1].prefix
 		}
 	}
-	sh.sink += sum
+	t.sink += sum
 }
 
-// addSplit counts n occurrences of w, a tally of sh, split as ids.
-func (sh *shard) addSplit(w *wordTally, ids []uint32, n int64) {
+// addSplit counts n occurrences of w, a tally of t, split as ids.
+func (t *wordTable) addSplit(w *wordTally, ids []uint32, n int64) {
 	for q := int32(0); q < w.nsplits; q++ {
-		if slices.Equal(sh.splitIDs(w.splits[q]), ids) {
+		if slices.Equal(t.splitIDs(w.splits[q]), ids) {
 			w.splits[q].count += n
 			return
 		}
 	}
 	if w.nsplits < maxSplits {
-		off := len(sh.idArena)
-		sh.idArena = append(roomFor(sh.idArena, len(ids)), ids...)
+		off := len(t.idArena)
+		t.idArena = append(roomFor(t.idArena, len(ids)), ids...)
 		w.splits[w.nsplits] = splitRef{off: uint32(off), n: uint32(len(ids)), count: n}
 		w.nsplits++
-	}
-}
-
-// absorb adds the tally w of shard src into sh.
-func (sh *shard) absorb(src *shard, w *wordTally) {
-	word := src.word(w)
-	d := sh.entry(word, hashWord(word))
-	d.count += w.count
-	d.pieces += w.pieces
-	d.docs += w.docs
-	for j := int32(0); j < w.nsplits; j++ {
-		sh.addSplit(d, src.splitIDs(w.splits[j]), w.splits[j].count)
 	}
 }
 
@@ -668,7 +709,7 @@ type wordIndex struct {
 }
 
 // find returns the tally index of word, or -1 and the slot to insert it at.
-func (x *wordIndex) find(h uint64, word []byte, sh *shard) (int32, int) {
+func (x *wordIndex) find(h uint64, word []byte, t *wordTable) (int32, int) {
 	if len(x.slots) == 0 {
 		x.slots = make([]uint64, 1<<10)
 	}
@@ -682,7 +723,7 @@ func (x *wordIndex) find(h uint64, word []byte, sh *shard) (int32, int) {
 		}
 		if s>>32 == hi {
 			i := int32(s&0xffffffff) - 1
-			if w := &sh.words[i]; w.prefix == prefix && int(w.n) == len(word) && (len(word) <= 8 || string(sh.word(w)) == string(word)) {
+			if w := &t.words[i]; w.prefix == prefix && int(w.n) == len(word) && (len(word) <= 8 || string(t.word(w)) == string(word)) {
 				return i, p
 			}
 		}
@@ -815,36 +856,24 @@ func (f *Fragmenter) AddWords(source string, record int, dw *DocWords) {
 	}
 }
 
-// merged adds up the shards' tallies by word into one shard. The result
-// does not depend on which shard scanned which document, so neither does
-// the report (but for words with more than maxSplits splits).
-func (f *Fragmenter) merged() *shard {
+// tables flushes every shard's batch and returns the word tables, which
+// then hold every word scanned. What they hold does not depend on which
+// shard scanned which document (but for the splits kept of a word with
+// more than maxSplits), so neither does the report.
+func (f *Fragmenter) tables() []wordTable {
 	f.mu.Lock()
 	defer f.mu.Unlock()
 	for _, sh := range f.shards {
-		sh.flush()
+		f.flush(sh)
 	}
-	switch len(f.shards) {
-	case 0:
-		return &shard{}
-	case 1:
-		return f.shards[0]
-	}
-	dst := f.shards[0]
-	for _, src := range f.shards[1:] {
-		for i := range src.words {
-			dst.absorb(src, &src.words[i])
-		}
-	}
-	f.shards = f.shards[:1]
-	return dst
+	return f.parts[:]
 }
 
-// splitsOf returns the splits of w, a tally of sh.
-func (sh *shard) splitsOf(w *wordTally) []splitTally {
+// splitsOf returns the splits of w, a tally of t.
+func (t *wordTable) splitsOf(w *wordTally) []splitTally {
 	out := make([]splitTally, w.nsplits)
 	for j := range out {
-		out[j] = splitTally{ids: sh.splitIDs(w.splits[j]), count: w.splits[j].count}
+		out[j] = splitTally{ids: t.splitIDs(w.splits[j]), count: w.splits[j].count}
 	}
 	return out
 }
@@ -967,30 +996,25 @@ func (f *Fragmenter) Finish(opt FragmentOptions) *Fragments {
 			t.Failed++
 		}
 	}
-	m := f.merged()
-	t.DistinctWords = len(m.words)
+	tables := f.tables()
 	// Rank light records first; only the words listed become Fragments.
 	// With --top N, a bounded heap keeps the N best without sorting all.
-	before := func(a, b *wordTally) bool {
-		if ea, eb := a.pieces-a.count, b.pieces-b.count; ea != eb {
-			return ea > eb
-		}
-		if a.count != b.count {
-			return a.count > b.count
-		}
-		return string(m.word(a)) < string(m.word(b))
-	}
-	top := &rankHeap{before: before, limit: opt.Top}
-	for i := range m.words {
-		w := &m.words[i]
-		if ratio(float64(w.pieces), float64(w.count)) >= opt.MinPieces && w.count >= opt.MinCount {
-			t.Qualifying++
-			top.offer(w)
+	top := &rankHeap{limit: opt.Top}
+	for ti := range tables {
+		m := &tables[ti]
+		t.DistinctWords += len(m.words)
+		for i := range m.words {
+			w := &m.words[i]
+			if ratio(float64(w.pieces), float64(w.count)) >= opt.MinPieces && w.count >= opt.MinCount {
+				t.Qualifying++
+				top.offer(ranked{m, w})
+			}
 		}
 	}
-	ranked := top.ws
-	sort.Slice(ranked, func(i, j int) bool { return before(ranked[i], ranked[j]) })
-	for _, w := range ranked {
+	list := top.ws
+	sort.Slice(list, func(i, j int) bool { return list[i].before(list[j]) })
+	for _, rw := range list {
+		m, w := rw.t, rw.w
 		word := m.word(w)
 		splits := m.splitsOf(w)
 		best := splits[0]
@@ -1050,31 +1074,48 @@ func (f *Fragmenter) Finish(opt FragmentOptions) *Fragments {
 	return r
 }
 
+// ranked is a word tally and the table it is in.
+type ranked struct {
+	t *wordTable
+	w *wordTally
+}
+
+// before reports whether a ranks before b: more excess tokens, then more
+// occurrences, then the word's bytes.
+func (a ranked) before(b ranked) bool {
+	if ea, eb := a.w.pieces-a.w.count, b.w.pieces-b.w.count; ea != eb {
+		return ea > eb
+	}
+	if a.w.count != b.w.count {
+		return a.w.count > b.w.count
+	}
+	return string(a.t.word(a.w)) < string(b.t.word(b.w))
+}
+
 // rankHeap keeps the limit best words offered (all of them when limit is
 // 0): a heap whose root is the worst one kept.
 type rankHeap struct {
-	ws     []*wordTally
-	before func(a, b *wordTally) bool
-	limit  int
+	ws    []ranked
+	limit int
 }
 
 func (h *rankHeap) Len() int           { return len(h.ws) }
-func (h *rankHeap) Less(i, j int) bool { return h.before(h.ws[j], h.ws[i]) }
+func (h *rankHeap) Less(i, j int) bool { return h.ws[j].before(h.ws[i]) }
 func (h *rankHeap) Swap(i, j int)      { h.ws[i], h.ws[j] = h.ws[j], h.ws[i] }
-func (h *rankHeap) Push(x any)         { h.ws = append(h.ws, x.(*wordTally)) }
+func (h *rankHeap) Push(x any)         { h.ws = append(h.ws, x.(ranked)) }
 func (h *rankHeap) Pop() any {
 	w := h.ws[len(h.ws)-1]
 	h.ws = h.ws[:len(h.ws)-1]
 	return w
 }
 
-func (h *rankHeap) offer(w *wordTally) {
+func (h *rankHeap) offer(w ranked) {
 	switch {
 	case h.limit <= 0:
 		h.ws = append(h.ws, w)
 	case len(h.ws) < h.limit:
 		heap.Push(h, w)
-	case h.before(w, h.ws[0]):
+	case w.before(h.ws[0]):
 		h.ws[0] = w
 		heap.Fix(h, 0)
 	}

@@ -9,11 +9,14 @@ type wordSum struct {
 
 // mergeShards returns the merged tallies by word, for the tests.
 func (f *Fragmenter) mergeShards() map[string]*wordSum {
-	m := f.merged()
 	out := map[string]*wordSum{}
-	for i := range m.words {
-		w := &m.words[i]
-		out[string(m.word(w))] = &wordSum{count: w.count, pieces: w.pieces, docs: int(w.docs), splits: m.splitsOf(w)}
+	tables := f.tables()
+	for ti := range tables {
+		m := &tables[ti]
+		for i := range m.words {
+			w := &m.words[i]
+			out[string(m.word(w))] = &wordSum{count: w.count, pieces: w.pieces, docs: int(w.docs), splits: m.splitsOf(w)}
+		}
 	}
 	return out
 }
