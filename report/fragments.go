@@ -497,6 +497,7 @@ const batchWords = 8192
 const batchFull = 1 << 29
 
 type batchWord struct {
+	prefix        uint64 // packPrefix of the word
 	off, n        uint32 // the word is bytes[off:off+n]
 	count, pieces uint32
 	docs, lastDoc int32
@@ -504,9 +505,32 @@ type batchWord struct {
 	splits        [2]batchSplit
 }
 
-// batchSplit is one split of a batch word: the ids ids[off:off+n], seen
-// count times.
-type batchSplit struct{ off, n, count uint32 }
+// batchSplit is one split of a batch word, seen count times: n ids, which
+// are a, or a and b, when n is 1 or 2, and else ids[a:a+n].
+type batchSplit struct{ a, b, n, count uint32 }
+
+// is reports whether sp is the split ids.
+func (sp *batchSplit) is(d *batchTally, ids []uint32) bool {
+	if int(sp.n) != len(ids) {
+		return false
+	}
+	switch sp.n {
+	case 1:
+		return ids[0] == sp.a
+	case 2:
+		return ids[0] == sp.a && ids[1] == sp.b
+	}
+	return slices.Equal(d.ids[sp.a:sp.a+sp.n], ids)
+}
+
+// idsOf returns the ids of sp, in buf when they are inline.
+func (d *batchTally) idsOf(sp *batchSplit, buf *[2]uint32) []uint32 {
+	if sp.n > 2 {
+		return d.ids[sp.a : sp.a+sp.n]
+	}
+	buf[0], buf[1] = sp.a, sp.b
+	return buf[:sp.n]
+}
 
 // batchSpill is one occurrence of words[word] split as ids[off:off+n],
 // neither of the word's two splits in the batch.
@@ -522,6 +546,7 @@ func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) {
 	mh := mixHash(h)
 	tag := mh >> 32 << 32
 	p := int(mh) & mask
+	prefix := packPrefix(word)
 	var w *batchWord
 	var wi uint32
 	for {
@@ -530,7 +555,7 @@ func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) {
 			off := len(d.bytes)
 			d.bytes = append(d.bytes, word...)
 			wi = uint32(len(d.words))
-			d.words = append(d.words, batchWord{off: uint32(off), n: uint32(len(word))})
+			d.words = append(d.words, batchWord{prefix: prefix, off: uint32(off), n: uint32(len(word))})
 			d.hashes = append(d.hashes, h)
 			d.index[p] = tag | uint64(wi+1)
 			w = &d.words[wi]
@@ -541,7 +566,7 @@ func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) {
 		}
 		if x&^0xffffffff == tag {
 			wi = uint32(x) - 1
-			if c := &d.words[wi]; string(d.bytes[c.off:c.off+c.n]) == string(word) {
+			if c := &d.words[wi]; c.prefix == prefix && int(c.n) == len(word) && (len(word) <= 8 || string(d.bytes[c.off:c.off+c.n]) == string(word)) {
 				w = c
 				break
 			}
@@ -556,19 +581,29 @@ func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) {
 		w.docs++
 	}
 	for j := uint32(0); j < w.nsplits; j++ {
-		sp := &w.splits[j]
-		if slices.Equal(d.ids[sp.off:sp.off+sp.n], ids) {
+		if sp := &w.splits[j]; sp.is(d, ids) {
 			sp.count++
 			return
 		}
 	}
-	off := uint32(len(d.ids))
-	d.ids = append(d.ids, ids...)
 	if w.nsplits < uint32(len(w.splits)) {
-		w.splits[w.nsplits] = batchSplit{off: off, n: uint32(len(ids)), count: 1}
+		sp := batchSplit{n: uint32(len(ids)), count: 1}
+		switch len(ids) {
+		case 2:
+			sp.b = ids[1]
+			fallthrough
+		case 1:
+			sp.a = ids[0]
+		default:
+			sp.a = uint32(len(d.ids))
+			d.ids = append(d.ids, ids...)
+		}
+		w.splits[w.nsplits] = sp
 		w.nsplits++
 		return
 	}
+	off := uint32(len(d.ids))
+	d.ids = append(d.ids, ids...)
 	d.spill = append(d.spill, batchSpill{word: wi, off: off, n: uint32(len(ids))})
 }
 
@@ -615,6 +650,7 @@ func (f *Fragmenter) flush(sh *shard) {
 		next[p]++
 	}
 	var hashes [flushGroup]uint64
+	var buf [2]uint32
 	for p := range numParts {
 		group := order[start[p]:start[p+1]]
 		if len(group) == 0 {
@@ -637,8 +673,8 @@ func (f *Fragmenter) flush(sh *shard) {
 				w.pieces += int64(lw.pieces)
 				w.docs += lw.docs
 				for j := uint32(0); j < lw.nsplits; j++ {
-					sp := lw.splits[j]
-					t.addSplit(w, d.ids[sp.off:sp.off+sp.n], int64(sp.count))
+					sp := &lw.splits[j]
+					t.addSplit(w, d.idsOf(sp, &buf), int64(sp.count))
 				}
 			}
 		}
@@ -662,9 +698,9 @@ func (f *Fragmenter) flush(sh *shard) {
 // flushGroup is how many words flush looks up at once.
 const flushGroup = 16
 
-// touch reads the index slots and the tallies that the words of hashes
-// will be looked up in, so that the cache misses overlap instead of coming
-// one after the other.
+// touch reads the index slots, the tallies and the first splits' ids that
+// the words of hashes will be looked up in, so that the cache misses
+// overlap instead of coming one after the other.
 func (t *wordTable) touch(hashes []uint64) {
 	x := &t.index
 	if len(x.slots) == 0 {
@@ -676,9 +712,17 @@ func (t *wordTable) touch(hashes []uint64) {
 		slots[j] = x.slots[int(mixHash(h)>>32)&mask]
 	}
 	var sum uint64
-	for _, s := range slots[:len(hashes)] {
+	var offs [flushGroup]uint32
+	for j, s := range slots[:len(hashes)] {
 		if i := int(s & 0xffffffff); i > 0 {
-			sum += t.words[i-1].prefix
+			w := &t.words[i-1]
+			sum += w.prefix
+			offs[j] = w.splits[0].off
+		}
+	}
+	for _, off := range offs[:len(hashes)] {
+		if int(off) < len(t.idArena) {
+			sum += uint64(t.idArena[off])
 		}
 	}
 	t.sink += sum
