@@ -3,36 +3,46 @@
 # same input, whole process, and print the ratio (the bound is 2).
 #
 #   scripts/bench-fragments.sh [PATH...]      (default: testdata/demo)
-#   RUNS=5 scripts/bench-fragments.sh big/corpus/
+#   RUNS=15 scripts/bench-fragments.sh /tmp/morsel-bench/corpus
 #
-# Each command runs RUNS times (default 3), in turns, and the best time of
-# each counts. The machine's other load falls on both; on a shared machine
-# the figures move between runs.
+# The two commands take turns, RUNS times each (default 9), after one
+# round that warms the page cache. Each turn gives one ratio, fragments
+# over the survey run just before it; the figure to quote is the median of
+# those ratios, since a change in the machine's load between turns touches
+# both runs of a pair alike. The best time of each command is printed too.
 set -eu
 cd "$(dirname "$0")/.."
-RUNS=${RUNS:-3}
+RUNS=${RUNS:-9}
 [ $# -gt 0 ] || set -- testdata/demo
 bin=$(mktemp -d)
 trap 'rm -rf "$bin"' EXIT
 go build -o "$bin/morsel" ./cmd/morsel
 
-# best SECONDS_SO_FAR CMD...: runs CMD once and prints the smaller of the two times.
-now() { date +%s.%N; }
-best() {
-	b=$1
-	shift
-	t0=$(now)
+# secs CMD...: runs CMD once, output to /dev/null, and prints its wall time.
+secs() {
+	t0=$(date +%s.%N)
 	"$@" >/dev/null 2>&1 || true
-	t1=$(now)
-	echo "$b $t0 $t1" | awk '{ t = $3 - $2; if ($1 == "" || $1 == "-" || t < $1) print t; else print $1 }'
+	t1=$(date +%s.%N)
+	echo "$t0 $t1" | awk '{ printf "%.4f\n", $2 - $1 }'
 }
 
-s=- f=-
+"$bin/morsel" survey --quiet --format json "$@" >/dev/null 2>&1 || true
+"$bin/morsel" fragments --quiet --format json "$@" >/dev/null 2>&1 || true
 i=0
 while [ "$i" -lt "$RUNS" ]; do
-	s=$(best "$s" "$bin/morsel" survey --quiet --format json "$@")
-	f=$(best "$f" "$bin/morsel" fragments --quiet --format json "$@")
+	s=$(secs "$bin/morsel" survey --quiet --format json "$@")
+	f=$(secs "$bin/morsel" fragments --quiet --format json "$@")
+	echo "$s $f"
 	i=$((i + 1))
-done
+done >"$bin/times"
 bytes=$(du -cb "$@" 2>/dev/null | tail -1 | cut -f1)
-echo "$s $f $bytes" | awk '{ printf "input %.1f MB; survey %.3f s, fragments %.3f s: fragments/survey %.2f\n", $3/1e6, $1, $2, $2/$1 }'
+awk -v bytes="$bytes" '
+	{ s[NR] = $1; f[NR] = $2; r[NR] = $2 / $1
+	  if (NR == 1 || $1 < bs) bs = $1
+	  if (NR == 1 || $2 < bf) bf = $2 }
+	END {
+		# insertion sort of the ratios, for the median
+		for (i = 2; i <= NR; i++) { x = r[i]; for (j = i - 1; j >= 1 && r[j] > x; j--) r[j+1] = r[j]; r[j+1] = x }
+		m = (NR % 2) ? r[(NR + 1) / 2] : (r[NR / 2] + r[NR / 2 + 1]) / 2
+		printf "input %.1f MB, %d paired runs: fragments/survey median %.2f (lowest %.2f, highest %.2f); best survey %.3f s, best fragments %.3f s\n", bytes / 1e6, NR, m, r[1], r[NR], bs, bf
+	}' "$bin/times"
