@@ -175,8 +175,9 @@ func partOf(h uint64) uint8 { return uint8(mixHash(h)>>24) & (numParts - 1) }
 // wordTable holds the tallies of the words of one partition.
 type wordTable struct {
 	mu      sync.Mutex
-	index   wordIndex // word -> its tally in words
-	words   []wordTally
+	index   wordIndex     // word -> its tally
+	chunks  [][]wordTally // the tallies, chunkSize a chunk: they never move, and growing copies nothing
+	nwords  int32
 	arena   []byte   // the words' bytes
 	idArena []uint32 // the splits' ids
 	sink    uint64   // what touch read
@@ -210,6 +211,15 @@ type splitTally struct {
 	ids   []uint32
 	count int64
 }
+
+// chunkBits sets the tallies of a chunk: 4096, some 400 kB.
+const (
+	chunkBits = 12
+	chunkSize = 1 << chunkBits
+)
+
+// at returns tally i of t.
+func (t *wordTable) at(i int32) *wordTally { return &t.chunks[i>>chunkBits][i&(chunkSize-1)] }
 
 func (t *wordTable) word(w *wordTally) []byte { return t.arena[w.off : w.off+w.n] }
 
@@ -453,19 +463,23 @@ func mixHash(h uint64) uint64 {
 // entry returns the tally of word, whose hashWord is h, making it when the
 // shard has none.
 func (t *wordTable) entry(word []byte, h uint64) *wordTally {
-	return &t.words[t.entryIndex(word, h)]
+	return t.at(t.entryIndex(word, h))
 }
 
-// entryIndex is entry's index in sh.words.
+// entryIndex is the number of entry's tally in t.
 func (t *wordTable) entryIndex(word []byte, h uint64) int32 {
 	h = mixHash(h)
 	i, slot := t.index.find(h, word, t)
 	if i < 0 {
 		off := len(t.arena)
 		t.arena = append(roomFor(t.arena, len(word)), word...)
-		i = int32(len(t.words))
+		i = t.nwords
 		t.index.insert(slot, h, i)
-		t.words = append(roomFor(t.words, 1), wordTally{off: uint32(off), n: uint32(len(word)), prefix: packPrefix(word)})
+		if int(i)>>chunkBits == len(t.chunks) {
+			t.chunks = append(t.chunks, make([]wordTally, chunkSize))
+		}
+		*t.at(i) = wordTally{off: uint32(off), n: uint32(len(word)), prefix: packPrefix(word)}
+		t.nwords++
 	}
 	return i
 }
@@ -668,7 +682,7 @@ func (f *Fragmenter) flush(sh *shard) {
 				lw := &d.words[i]
 				wi := t.entryIndex(d.bytes[lw.off:lw.off+lw.n], d.hashes[i])
 				at[i] = wi
-				w := &t.words[wi]
+				w := t.at(wi)
 				w.count += int64(lw.count)
 				w.pieces += int64(lw.pieces)
 				w.docs += lw.docs
@@ -683,7 +697,7 @@ func (f *Fragmenter) flush(sh *shard) {
 	for _, sp := range d.spill {
 		t := &f.parts[part[sp.word]]
 		t.mu.Lock()
-		t.addSplit(&t.words[at[sp.word]], d.ids[sp.off:sp.off+sp.n], 1)
+		t.addSplit(t.at(at[sp.word]), d.ids[sp.off:sp.off+sp.n], 1)
 		t.mu.Unlock()
 	}
 	sh.part, sh.order, sh.at = part, order, at
@@ -698,9 +712,9 @@ func (f *Fragmenter) flush(sh *shard) {
 // flushGroup is how many words flush looks up at once.
 const flushGroup = 16
 
-// touch reads the index slots, the tallies and the first splits' ids that
-// the words of hashes will be looked up in, so that the cache misses
-// overlap instead of coming one after the other.
+// touch reads the index slots, the tallies, the first splits' ids and the
+// bytes of long words that the words of hashes will be looked up in, so
+// that the cache misses overlap instead of coming one after the other.
 func (t *wordTable) touch(hashes []uint64) {
 	x := &t.index
 	if len(x.slots) == 0 {
@@ -712,17 +726,23 @@ func (t *wordTable) touch(hashes []uint64) {
 		slots[j] = x.slots[int(mixHash(h)>>32)&mask]
 	}
 	var sum uint64
-	var offs [flushGroup]uint32
+	var offs, words [flushGroup]uint32
 	for j, s := range slots[:len(hashes)] {
 		if i := int(s & 0xffffffff); i > 0 {
-			w := &t.words[i-1]
+			w := t.at(int32(i - 1))
 			sum += w.prefix
 			offs[j] = w.splits[0].off
+			if w.n > 8 {
+				words[j] = w.off + 8
+			}
 		}
 	}
-	for _, off := range offs[:len(hashes)] {
+	for j, off := range offs[:len(hashes)] {
 		if int(off) < len(t.idArena) {
 			sum += uint64(t.idArena[off])
+		}
+		if w := words[j]; w > 0 && int(w) < len(t.arena) {
+			sum += uint64(t.arena[w])
 		}
 	}
 	t.sink += sum
@@ -767,7 +787,7 @@ func (x *wordIndex) find(h uint64, word []byte, t *wordTable) (int32, int) {
 		}
 		if s>>32 == hi {
 			i := int32(s&0xffffffff) - 1
-			if w := &t.words[i]; w.prefix == prefix && int(w.n) == len(word) && (len(word) <= 8 || string(t.word(w)) == string(word)) {
+			if w := t.at(i); w.prefix == prefix && int(w.n) == len(word) && (len(word) <= 8 || string(t.word(w)) == string(word)) {
 				return i, p
 			}
 		}
@@ -1046,9 +1066,9 @@ func (f *Fragmenter) Finish(opt FragmentOptions) *Fragments {
 	top := &rankHeap{limit: opt.Top}
 	for ti := range tables {
 		m := &tables[ti]
-		t.DistinctWords += len(m.words)
-		for i := range m.words {
-			w := &m.words[i]
+		t.DistinctWords += int(m.nwords)
+		for i := range m.nwords {
+			w := m.at(i)
 			if ratio(float64(w.pieces), float64(w.count)) >= opt.MinPieces && w.count >= opt.MinCount {
 				t.Qualifying++
 				top.offer(ranked{m, w})
