@@ -13,8 +13,8 @@ func (f *Fragmenter) mergeShards() map[string]*wordSum {
 	tables := f.tables()
 	for ti := range tables {
 		m := &tables[ti]
-		for i := range m.words {
-			w := &m.words[i]
+		for i := range m.nwords {
+			w := m.at(i)
 			out[string(m.word(w))] = &wordSum{count: w.count, pieces: w.pieces, docs: int(w.docs), splits: m.splitsOf(w)}
 		}
 	}
