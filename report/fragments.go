@@ -195,7 +195,7 @@ type wordTally struct {
 	splits        [maxSplits]splitRef
 }
 
-// maxSplits is how many distinct splits of one word a shard tells apart;
+// maxSplits is how many distinct splits of one word a table tells apart;
 // the occurrences of any further split count in the word's totals only.
 const maxSplits = 4
 
@@ -440,7 +440,7 @@ func hashWord(w []byte) uint64 {
 }
 
 // roomFor returns s with room for n more elements, doubling its capacity
-// when it must grow: the shard's tables reach tens of megabytes, and
+// when it must grow: the word tables reach tens of megabytes, and
 // append's gentler growth for large slices would copy them many times.
 func roomFor[T any](s []T, n int) []T {
 	if len(s)+n <= cap(s) {
@@ -485,9 +485,9 @@ func (t *wordTable) entryIndex(word []byte, h uint64) int32 {
 }
 
 // batchTally counts the words of a run of documents before they go to the
-// shard: documents repeat their words and each other's, and a small table
-// that stays in the processor's cache costs less per occurrence than the
-// shard's large one. It holds copies of the words and splits, since the
+// word tables: documents repeat their words and each other's, and a small
+// table that stays in the processor's cache costs less per occurrence than
+// the large ones. It holds copies of the words and splits, since the
 // documents' text is gone by the time it is flushed. Its entries are kept
 // small for the same reason: a word keeps two splits here, and an
 // occurrence split a third way waits in spill for the flush.
@@ -502,7 +502,7 @@ type batchTally struct {
 }
 
 // batchWords is how many distinct words a batch holds before it is
-// flushed to the shard.
+// flushed to the word tables.
 const batchWords = 8192
 
 // batchFull is the pieces a batch holds before it is flushed whatever its

@@ -1,13 +1,14 @@
 package report
 
-// wordSum is one word's tallies over all shards, as the tests read them.
+// wordSum is one word's tallies, as the tests read them.
 type wordSum struct {
 	count, pieces int64
 	docs          int
 	splits        []splitTally
 }
 
-// mergeShards returns the merged tallies by word, for the tests.
+// mergeShards returns the tallies by word, every batch flushed, for the
+// tests.
 func (f *Fragmenter) mergeShards() map[string]*wordSum {
 	out := map[string]*wordSum{}
 	tables := f.tables()
