@@ -117,19 +117,30 @@ func idsValue(ids []uint32, off int) (uint64, bool) {
 	return uint64(off)<<inlineShift | n, false
 }
 
+// valueLen returns the number of ids a cache value holds.
+func valueLen(v uint64) int { return int(v & 0xff) }
+
+// inlined returns the ids a cache value marked inlineIDs holds: the first,
+// and the second when valueLen(v) is 2.
+func inlined(v uint64) (id0, id1 uint32) {
+	return uint32(v>>inlineShift) & inlineMask, uint32(v >> (inlineShift + inlineBits))
+}
+
+// arenaIDs returns the ids of a cache value not marked inlineIDs.
+func (s *state) arenaIDs(v uint64) []uint32 {
+	off := v >> inlineShift
+	return s.arena[off : off+uint64(valueLen(v))]
+}
+
 // valueIDs returns the ids a cache value holds, in s.out when they are
 // inline.
 func (s *state) valueIDs(v uint64) []uint32 {
-	n := v & 0xff
 	if v&inlineIDs == 0 {
-		off := v >> inlineShift
-		return s.arena[off : off+n]
+		return s.arenaIDs(v)
 	}
-	s.out = append(s.out[:0], uint32(v>>inlineShift)&inlineMask)
-	if n == 2 {
-		s.out = append(s.out, uint32(v>>(inlineShift+inlineBits)))
-	}
-	return s.out
+	id0, id1 := inlined(v)
+	s.out = append(s.out[:0], id0, id1)
+	return s.out[:valueLen(v)]
 }
 
 // piece returns the ids of one pre-token. The slice is valid until the next
@@ -178,20 +189,18 @@ func appendPiece[T int | uint32](s *state, dst []T, p []byte) []T {
 	if len(p) == 1 {
 		return append(dst, T(s.v.byteID[p[0]]))
 	}
-	ids, ok := s.arena, false
-	if v, hit := s.cached(p); hit {
-		if v&inlineIDs != 0 {
-			dst = append(dst, T(uint32(v>>inlineShift)&inlineMask))
-			if v&0xff == 2 {
-				dst = append(dst, T(uint32(v>>(inlineShift+inlineBits))))
-			}
-			return dst
-		}
-		off := v >> inlineShift
-		ids, ok = ids[off:off+v&0xff], true
-	}
-	if !ok {
+	var ids []uint32
+	if v, hit := s.cached(p); !hit {
 		ids = s.piece(p)
+	} else if v&inlineIDs == 0 {
+		ids = s.arenaIDs(v)
+	} else {
+		// Read in place, not through s.out: the commonest case.
+		id0, id1 := inlined(v)
+		if dst = append(dst, T(id0)); valueLen(v) == 2 {
+			dst = append(dst, T(id1))
+		}
+		return dst
 	}
 	for _, id := range ids {
 		dst = append(dst, T(id))
@@ -205,7 +214,7 @@ func (s *state) count(p []byte) int {
 		return 1
 	}
 	if v, ok := s.cached(p); ok {
-		return int(v & 0xff)
+		return valueLen(v)
 	}
 	return len(s.piece(p))
 }

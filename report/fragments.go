@@ -300,24 +300,23 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	dw := &DocWords{Bytes: len(text)}
 	ids := f.enc.AppendIDs(sh.ids[:0], text)
 	sh.ids = ids
-	pos := 0
+	// Glossary matches are settled by the tokens' end offsets, which only
+	// they need.
+	pos, ends := 0, sh.ends[:0]
 	for _, id := range ids {
 		if uint(id) >= uint(len(f.lens)) {
 			return nil, fmt.Errorf("the encoder gave id %d, which is not in the vocabulary", id)
 		}
 		pos += f.tokenLen(id)
+		if f.terms != nil {
+			ends = append(ends, pos)
+		}
 	}
+	sh.ends = ends
 	if pos != len(text) {
 		return nil, fmt.Errorf("the tokens spell %d bytes of a %d-byte text", pos, len(text))
 	}
 	if f.terms != nil {
-		// Glossary matches are settled by the tokens' end offsets.
-		ends, pos := sh.ends[:0], 0
-		for _, id := range ids {
-			pos += f.tokenLen(id)
-			ends = append(ends, pos)
-		}
-		sh.ends = ends
 		dw.terms = make([]termTally, len(f.terms))
 		sh.pending = sh.pending[:0]
 	}
@@ -460,14 +459,9 @@ func mixHash(h uint64) uint64 {
 	return h
 }
 
-// entry returns the tally of word, whose hashWord is h, making it when the
-// shard has none.
-func (t *wordTable) entry(word []byte, h uint64) *wordTally {
-	return t.at(t.entryIndex(word, h))
-}
-
-// entryIndex is the number of entry's tally in t.
-func (t *wordTable) entryIndex(word []byte, h uint64) int32 {
+// entry returns the number of the tally of word, whose hashWord is h,
+// making it when t has none.
+func (t *wordTable) entry(word []byte, h uint64) int32 {
 	h = mixHash(h)
 	i, slot := t.index.find(h, word, t)
 	if i < 0 {
@@ -680,7 +674,7 @@ func (f *Fragmenter) flush(sh *shard) {
 			t.touch(hashes[:len(ws)])
 			for _, i := range ws {
 				lw := &d.words[i]
-				wi := t.entryIndex(d.bytes[lw.off:lw.off+lw.n], d.hashes[i])
+				wi := t.entry(d.bytes[lw.off:lw.off+lw.n], d.hashes[i])
 				at[i] = wi
 				w := t.at(wi)
 				w.count += int64(lw.count)
@@ -720,10 +714,9 @@ func (t *wordTable) touch(hashes []uint64) {
 	if len(x.slots) == 0 {
 		return
 	}
-	mask := len(x.slots) - 1
 	var slots [flushGroup]uint64
 	for j, h := range hashes {
-		slots[j] = x.slots[int(mixHash(h)>>32)&mask]
+		slots[j] = x.slots[x.home(mixHash(h))]
 	}
 	var sum uint64
 	var offs, words [flushGroup]uint32
@@ -772,6 +765,10 @@ type wordIndex struct {
 	used  int
 }
 
+// home returns the first slot to try for a word of mixed hash h: slots
+// are placed by its high 32 bits, the ones a slot keeps.
+func (x *wordIndex) home(h uint64) int { return int(h>>32) & (len(x.slots) - 1) }
+
 // find returns the tally index of word, or -1 and the slot to insert it at.
 func (x *wordIndex) find(h uint64, word []byte, t *wordTable) (int32, int) {
 	if len(x.slots) == 0 {
@@ -780,7 +777,7 @@ func (x *wordIndex) find(h uint64, word []byte, t *wordTable) (int32, int) {
 	mask := len(x.slots) - 1
 	hi := h >> 32
 	prefix := packPrefix(word)
-	for p := int(hi) & mask; ; p = (p + 1) & mask {
+	for p := x.home(h); ; p = (p + 1) & mask {
 		s := x.slots[p]
 		if s == 0 {
 			return -1, p
@@ -828,8 +825,7 @@ func (x *wordIndex) insert(slot int, h uint64, i int32) {
 		if s == 0 {
 			continue
 		}
-		// Slots are placed by the hash's high 32 bits, the ones kept.
-		p := int(s>>32) & mask
+		p := x.home(s) // the slot keeps the hash's high 32 bits
 		for x.slots[p] != 0 {
 			p = (p + 1) & mask
 		}
