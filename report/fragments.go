@@ -132,6 +132,7 @@ type Fragmenter struct {
 	terms   []Term
 	byFirst map[string][]int // a term's first segment -> terms starting with it
 	lens    []uint16         // every token's length in bytes, or longToken
+	info    []uint32         // every token's tokenInfo
 
 	mu     sync.Mutex
 	shards []*shard    // every shard made, for Finish
@@ -238,9 +239,11 @@ func NewFragmenter(enc *bpe.Encoder, terms []Term) *Fragmenter {
 	f := &Fragmenter{enc: enc, terms: terms, docs: []DocFertility{}, skipped: []Skipped{}, free: make(chan *shard, 256)}
 	v := enc.Vocab()
 	f.lens = make([]uint16, v.Size())
+	f.info = make([]uint32, v.Size())
 	for id := range f.lens {
 		tok, _ := v.Token(id)
 		f.lens[id] = uint16(min(len(tok), longToken))
+		f.info[id] = tokenInfo(tok)
 	}
 	if len(terms) > 0 {
 		f.byFirst = map[string][]int{}
@@ -323,14 +326,51 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	dw.Tokens = len(ids)
 	sh.doc++
 
-	var words, pieces, one [numScripts]int64
+	var fc fertility
+	if f.terms != nil {
+		kEnd := 0
+		if len(ids) > 0 {
+			kEnd = f.tokenLen(ids[0])
+		}
+		f.scanBytes(sh, dw, text, 0, len(text), 0, kEnd, &fc)
+	} else {
+		f.scanTokens(sh, text, &fc)
+	}
+	if f.terms != nil {
+		f.termsAt(sh, dw, text, len(text), nil)
+	}
+	if sh.local.full() {
+		f.flush(sh)
+	}
+	for i := range dw.ByScript {
+		t := ScriptTally{Words: fc.words[i], Tokens: fc.pieces[i], OneToken: fc.one[i]}
+		dw.ByScript[i] = t
+		dw.All.add(t)
+	}
+	return dw, nil
+}
+
+// fertility counts a document's words and their pieces by script.
+type fertility struct {
+	words, pieces, one [numScripts]int64
+}
+
+func (fc *fertility) add(sc Script, n int) {
+	fc.words[sc]++
+	fc.pieces[sc] += int64(n)
+	if n == 1 {
+		fc.one[sc]++
+	}
+}
+
+// scanBytes tallies the words of text[lo:hi] segment by segment, by the
+// rules of UAX #29. Its tokens start at sh.ids[k], which ends at kEnd. lo
+// is a word boundary, and hi is one too or the end of the text.
+func (f *Fragmenter) scanBytes(sh *shard, dw *DocWords, text []byte, lo, hi, k, kEnd int, fc *fertility) {
+	ids := sh.ids
 	// k is the first token that ends after the current segment starts, at
 	// kEnd.
-	k, kEnd := 0, 0
-	if len(ids) > 0 {
-		kEnd = f.tokenLen(ids[0])
-	}
-	for s := 0; s < len(text); {
+	for s := lo; s < hi; {
 		var e int
 		var sc Script
 		if c := text[s]; c < utf8.RuneSelf && asciiWB[c] == wbAlnum {
@@ -391,27 +431,158 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 			m++
 			mEnd += f.tokenLen(ids[m])
 		}
+		fc.add(sc, m+1-k)
 		sh.local.add(text[s:e], hashWord(text[s:e]), ids[k:m+1], sh.doc)
-		n := m + 1 - k
-		words[sc]++
-		pieces[sc] += int64(n)
-		if n == 1 {
-			one[sc]++
-		}
 		s = e
 	}
-	if f.terms != nil {
-		f.termsAt(sh, dw, text, len(text), nil)
+}
+
+// scanTokens tallies the words of sh's text token by token where it can:
+// a word of ASCII letters and digits is a run of tokens of them, perhaps
+// after a token's leading spaces or punctuation, and its pieces are those
+// tokens. What else the text holds (non-ASCII, '_', the MidX characters of
+// WB6, WB7, WB11 and WB12) goes to scanBytes, in regions cut where no word
+// can cross: before a gap character (ASCII punctuation, space or control,
+// MidX aside) that follows an ASCII one. No rule of UAX #29 joins such a
+// character to a word: WB4 needs an Extend or Format character after it,
+// WB7b and WB7c a Hebrew letter before '"'.
+func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
+	ids, info := sh.ids, f.info
+	pos := 0
+	ws, wk, wkEnd := -1, 0, 0 // the word being read starts at ws, in token wk, which ends at wkEnd
+	letter := false           // it has a letter
+	word := func(we, k int) {
+		sc := Digits
+		if letter {
+			sc = Latin
+		}
+		fc.add(sc, k-wk)
+		sh.local.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc)
 	}
-	if sh.local.full() {
-		f.flush(sh)
+	for k := 0; k < len(ids); {
+		in := info[ids[k]]
+		n := int(in & infoLen)
+		switch in & infoClass {
+		case tokAlnum:
+			if ws < 0 {
+				ws, wk, wkEnd, letter = pos, k, pos+n, false
+			}
+			letter = letter || in&infoLetter != 0
+			pos += n
+			k++
+			continue
+		case tokGapAlnum:
+			if ws >= 0 {
+				word(pos, k)
+			}
+			ws, wk, wkEnd, letter = pos+int(in>>infoGapShift&15), k, pos+n, in&infoLetter != 0
+			pos += n
+			k++
+			continue
+		case tokGap:
+			if ws >= 0 {
+				word(pos, k)
+				ws = -1
+			}
+			pos += n
+			k++
+			continue
+		}
+		// A token scanBytes must read: the region starts here, or where
+		// the word being read does unless this token can end it.
+		rs, rk, rkEnd := pos, k, pos+f.tokenLen(ids[k])
+		if ws >= 0 {
+			if in&infoGapFirst != 0 {
+				word(pos, k)
+			} else {
+				rs, rk, rkEnd = ws, wk, wkEnd
+			}
+			ws = -1
+		}
+		pos += f.tokenLen(ids[k])
+		for k++; k < len(ids); k++ {
+			in := info[ids[k]]
+			if in&infoGapFirst != 0 && info[ids[k-1]]&infoLastASCII != 0 {
+				break
+			}
+			pos += f.tokenLen(ids[k])
+		}
+		f.scanBytes(sh, nil, text, rs, pos, rk, rkEnd, fc)
 	}
-	for i := range dw.ByScript {
-		t := ScriptTally{Words: words[i], Tokens: pieces[i], OneToken: one[i]}
-		dw.ByScript[i] = t
-		dw.All.add(t)
+	if ws >= 0 {
+		word(pos, len(ids))
 	}
-	return dw, nil
+}
+
+// Token classes, for scanTokens: the low bits of Fragmenter.info.
+const (
+	tokOther    = iota << 16
+	tokAlnum    // ASCII letters and digits only
+	tokGapAlnum // one to 15 gap characters, then ASCII letters and digits
+	tokGap      // gap characters only
+)
+
+const (
+	infoLen       = 1<<16 - 1 // the token's length in bytes, or longToken
+	infoClass     = 3 << 16
+	infoLetter    = 1 << 18 // its letters and digits hold a letter
+	infoGapShift  = 19      // 4 bits: a tokGapAlnum's gap characters
+	infoGapFirst  = 1 << 23 // it starts with a gap character
+	infoLastASCII = 1 << 24 // its last byte is ASCII
+)
+
+// isGap reports whether c is a gap character: ASCII, and neither a letter,
+// a digit, '_' nor a MidX.
+func isGap(c byte) bool {
+	if c >= utf8.RuneSelf {
+		return false
+	}
+	switch asciiWB[c] {
+	case wbOther, wbSpace, wbCR, wbNewline:
+		return true
+	}
+	return false
+}
+
+// tokenInfo returns the Fragmenter.info of a token of bytes tok.
+func tokenInfo(tok []byte) uint32 {
+	in := uint32(min(len(tok), longToken))
+	if len(tok) == 0 {
+		return in
+	}
+	if isGap(tok[0]) {
+		in |= infoGapFirst
+	}
+	if tok[len(tok)-1] < utf8.RuneSelf {
+		in |= infoLastASCII
+	}
+	if len(tok) >= longToken {
+		return in
+	}
+	g := 0
+	for g < len(tok) && isGap(tok[g]) {
+		g++
+	}
+	if g == len(tok) {
+		return in | tokGap
+	}
+	letter := false
+	for _, c := range tok[g:] {
+		if c >= utf8.RuneSelf || asciiWB[c] != wbAlnum {
+			return in
+		}
+		letter = letter || c > '9'
+	}
+	if letter {
+		in |= infoLetter
+	}
+	switch {
+	case g == 0:
+		return in | tokAlnum
+	case g <= 15:
+		return in | tokGapAlnum | uint32(g)<<infoGapShift
+	}
+	return in
 }
 
 // tokenLen returns the length in bytes of token id, which is in the

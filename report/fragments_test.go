@@ -99,6 +99,30 @@ var segmentSamples = []string{
 	"Кряжево, прошивки; ελληνικά. שלום \"ש\"ש 数据 キリサキ ひらがな 한국어 मरम्मत",
 	"🇦🇧🇨 👍🏽 a👍 1\u066b5 ٣٫٤ x\u2060y \u3000\u3000a",
 	"", " ", "a", ".", "_", "\u0301", "a ", " a", "a.", ".a", "'s", "3'", "a.\u0301b",
+	"fmt.Println(\"a, b\", x.y) // don't: m[k] = 1_000 (\u0301foo bar\u0301 baz)\r\n\tif v, ok := q[\"ש\"]; ok {",
+	"\u05d0\"b \"\u05d0 x\" 12,5;6 v2.0.1 __init__ a-b/c?d",
+}
+
+// TestTokenInfo checks the token classes scanTokens reads words by.
+func TestTokenInfo(t *testing.T) {
+	for _, c := range []struct {
+		tok         string
+		class, gaps uint32
+		letter      bool
+	}{
+		{"foo", tokAlnum, 0, true}, {"2024", tokAlnum, 0, false}, {" foo", tokGapAlnum, 1, true},
+		{"\n\t\t12", tokGapAlnum, 3, false}, {" (", tokGap, 0, false}, {"\r\n", tokGap, 0, false},
+		{".", tokOther, 0, false}, {"_x", tokOther, 0, false}, {"x_", tokOther, 0, false}, {"'s", tokOther, 0, false},
+		{"é", tokOther, 0, false}, {"\"", tokGap, 0, false}, {"a.b", tokOther, 0, false}, {"(x)", tokOther, 0, false},
+	} {
+		in := tokenInfo([]byte(c.tok))
+		if in&infoClass != c.class || in>>infoGapShift&15 != c.gaps || (in&infoLetter != 0) != c.letter || int(in&infoLen) != len(c.tok) {
+			t.Errorf("%q: info %#x, want class %#x, %d gap characters, letter %v", c.tok, in, c.class, c.gaps, c.letter)
+		}
+		if gapFirst := isGap(c.tok[0]); (in&infoGapFirst != 0) != gapFirst {
+			t.Errorf("%q: gap first %v", c.tok, !gapFirst)
+		}
+	}
 }
 
 // TestSegmentsMatchUniseg checks that starting uniseg afresh at each
@@ -189,12 +213,22 @@ func FuzzScanWords(f *testing.F) {
 				t.Fatalf("%q: word %q: %+v, want count %d, pieces %d", s, w, g, n, pieces[w])
 			}
 		}
-		var words int64
-		for _, n := range want {
+		var words, tokens int64
+		var byScript [numScripts]ScriptTally
+		for w, n := range want {
 			words += n
+			tokens += pieces[w]
+			sc := WordScript([]byte(w))
+			byScript[sc].Words += n
+			byScript[sc].Tokens += pieces[w]
 		}
-		if dw.All.Words != words {
-			t.Fatalf("%q: fertility counts %d words, want %d", s, dw.All.Words, words)
+		if dw.All.Words != words || dw.All.Tokens != tokens {
+			t.Fatalf("%q: fertility counts %d words in %d pieces, want %d in %d", s, dw.All.Words, dw.All.Tokens, words, tokens)
+		}
+		for sc := range byScript {
+			if g, w := dw.ByScript[sc], byScript[sc]; g.Words != w.Words || g.Tokens != w.Tokens {
+				t.Fatalf("%q: script %v: %d words in %d pieces, want %d in %d", s, Script(sc), g.Words, g.Tokens, w.Words, w.Tokens)
+			}
 		}
 	})
 }
