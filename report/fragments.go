@@ -487,6 +487,29 @@ func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 			pos += n
 			k++
 			continue
+		case tokPunct:
+			// A MidX joins only between two letters (WB6, WB7: ": . '")
+			// or two digits (WB11, WB12: ", ; . '"), so only a MidX alone,
+			// after a word, can join what follows.
+			if ws >= 0 && n == 1 && pos+1 < len(text) {
+				if d := text[pos+1]; d < utf8.RuneSelf && asciiWB[d] == wbAlnum {
+					c, letters := text[pos], text[pos-1] > '9'
+					if letters == (d > '9') && (c == '.' || c == '\'' || (c == ':') == letters) {
+						pos++
+						k++
+						continue
+					}
+				} else if d >= utf8.RuneSelf {
+					break // an Extend or Format character may join it (WB4)
+				}
+			}
+			if ws >= 0 {
+				word(pos, k)
+				ws = -1
+			}
+			pos += n
+			k++
+			continue
 		}
 		// A token scanBytes must read: the region starts here, or where
 		// the word being read does unless this token can end it.
@@ -520,15 +543,16 @@ const (
 	tokAlnum    // ASCII letters and digits only
 	tokGapAlnum // one to 15 gap characters, then ASCII letters and digits
 	tokGap      // gap characters only
+	tokPunct    // gap characters and MidX characters, at least one of these
 )
 
 const (
 	infoLen       = 1<<16 - 1 // the token's length in bytes, or longToken
-	infoClass     = 3 << 16
-	infoLetter    = 1 << 18 // its letters and digits hold a letter
-	infoGapShift  = 19      // 4 bits: a tokGapAlnum's gap characters
-	infoGapFirst  = 1 << 23 // it starts with a gap character
-	infoLastASCII = 1 << 24 // its last byte is ASCII
+	infoClass     = 7 << 16
+	infoLetter    = 1 << 19 // its letters and digits hold a letter
+	infoGapShift  = 20      // 4 bits: a tokGapAlnum's gap characters
+	infoGapFirst  = 1 << 24 // it starts with a gap character
+	infoLastASCII = 1 << 25 // its last byte is ASCII
 )
 
 // isGap reports whether c is a gap character: ASCII, and neither a letter,
@@ -559,12 +583,18 @@ func tokenInfo(tok []byte) uint32 {
 	if len(tok) >= longToken {
 		return in
 	}
-	g := 0
-	for g < len(tok) && isGap(tok[g]) {
+	g, mid := 0, false
+	for g < len(tok) && (isGap(tok[g]) || asciiWB[tok[g]&0x7f] == wbMid && tok[g] < utf8.RuneSelf) {
+		mid = mid || !isGap(tok[g])
 		g++
 	}
-	if g == len(tok) {
+	switch {
+	case g == len(tok) && mid:
+		return in | tokPunct
+	case g == len(tok):
 		return in | tokGap
+	case mid:
+		return in
 	}
 	letter := false
 	for _, c := range tok[g:] {

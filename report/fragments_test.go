@@ -112,7 +112,7 @@ func TestTokenInfo(t *testing.T) {
 	}{
 		{"foo", tokAlnum, 0, true}, {"2024", tokAlnum, 0, false}, {" foo", tokGapAlnum, 1, true},
 		{"\n\t\t12", tokGapAlnum, 3, false}, {" (", tokGap, 0, false}, {"\r\n", tokGap, 0, false},
-		{".", tokOther, 0, false}, {"_x", tokOther, 0, false}, {"x_", tokOther, 0, false}, {"'s", tokOther, 0, false},
+		{".", tokPunct, 0, false}, {"),\n", tokPunct, 0, false}, {".foo", tokOther, 0, false}, {"_x", tokOther, 0, false}, {"x_", tokOther, 0, false}, {"'s", tokOther, 0, false}, {"_", tokOther, 0, false}, {"x'", tokOther, 0, false},
 		{"é", tokOther, 0, false}, {"\"", tokGap, 0, false}, {"a.b", tokOther, 0, false}, {"(x)", tokOther, 0, false},
 	} {
 		in := tokenInfo([]byte(c.tok))
