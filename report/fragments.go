@@ -152,8 +152,12 @@ type Fragmenter struct {
 // documents a word occurs in add up exactly when the shards flush their
 // batches into the word tables.
 type shard struct {
-	local   batchTally // the words of the last documents scanned, not yet in a wordTable
-	doc     int32      // documents this shard has scanned
+	local batchTally // the words of the last documents scanned, not yet in a wordTable
+	// byToken finds, by token id, the batch entry of the word that token
+	// is alone: local.epoch<<34 | split<<32 | entry+1, good while the
+	// epoch is the batch's.
+	byToken []uint64
+	doc     int32 // documents this shard has scanned
 	ids     []uint32
 	ends    []int
 	pending []pendingTerm
@@ -448,6 +452,14 @@ func (f *Fragmenter) scanBytes(sh *shard, dw *DocWords, text []byte, lo, hi, k, 
 // WB7b and WB7c a Hebrew letter before '"'.
 func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 	ids, info := sh.ids, f.info
+	d := &sh.local
+	if len(sh.byToken) != len(info) {
+		sh.byToken = make([]uint64, len(info))
+	}
+	if d.epoch == 0 {
+		d.epoch = 1
+	}
+	byToken := sh.byToken
 	pos := 0
 	ws, wk, wkEnd := -1, 0, 0 // the word being read starts at ws, in token wk, which ends at wkEnd
 	letter := false           // it has a letter
@@ -457,7 +469,18 @@ func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 			sc = Latin
 		}
 		fc.add(sc, k-wk)
-		sh.local.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc)
+		if k-wk == 1 {
+			// A word that is one token is found by the token.
+			if e := byToken[ids[wk]]; e>>34 == d.epoch {
+				d.again(uint32(e)-1, e>>32&3, sh.doc)
+				return
+			}
+			if wi, j := d.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc); j >= 0 {
+				byToken[ids[wk]] = d.epoch<<34 | uint64(j)<<32 | uint64(wi+1)
+			}
+			return
+		}
+		d.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc)
 	}
 	for k := 0; k < len(ids); {
 		in := info[ids[k]]
@@ -694,6 +717,7 @@ type batchTally struct {
 	ids    []uint32 // the splits
 	spill  []batchSpill
 	pieces uint64 // the pieces of every occurrence in the batch
+	epoch  uint64 // flushes so far, plus one: what shard.byToken entries are good for
 }
 
 // batchWords is how many distinct words a batch holds before it is
@@ -746,8 +770,9 @@ func (d *batchTally) idsOf(sp *batchSplit, buf *[2]uint32) []uint32 {
 type batchSpill struct{ word, off, n uint32 }
 
 // add counts one occurrence of word, whose hashWord is h, split into ids,
-// in the document numbered doc.
-func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) {
+// in the document numbered doc. It returns the word's entry and the split
+// it counted, or -1 when the split went to spill.
+func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) (uint32, int) {
 	if len(d.index) == 0 {
 		d.index = make([]uint64, 2*batchWords)
 	}
@@ -792,7 +817,7 @@ func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) {
 	for j := uint32(0); j < w.nsplits; j++ {
 		if sp := &w.splits[j]; sp.is(d, ids) {
 			sp.count++
-			return
+			return wi, int(j)
 		}
 	}
 	if w.nsplits < uint32(len(w.splits)) {
@@ -809,11 +834,26 @@ func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) {
 		}
 		w.splits[w.nsplits] = sp
 		w.nsplits++
-		return
+		return wi, int(w.nsplits - 1)
 	}
 	off := uint32(len(d.ids))
 	d.ids = append(d.ids, ids...)
 	d.spill = append(d.spill, batchSpill{word: wi, off: off, n: uint32(len(ids))})
+	return wi, -1
+}
+
+// again counts one more occurrence of words[wi] split as its split j, a
+// single token, in the document numbered doc.
+func (d *batchTally) again(wi uint32, j uint64, doc int32) {
+	w := &d.words[wi]
+	w.count++
+	w.pieces++
+	d.pieces++
+	if w.lastDoc != doc {
+		w.lastDoc = doc
+		w.docs++
+	}
+	w.splits[j].count++
 }
 
 // full reports whether the batch is due to be flushed.
@@ -902,6 +942,7 @@ func (f *Fragmenter) flush(sh *shard) {
 		clear(d.index)
 	}
 	d.words, d.hashes, d.bytes, d.ids, d.spill, d.pieces = d.words[:0], d.hashes[:0], d.bytes[:0], d.ids[:0], d.spill[:0], 0
+	d.epoch++
 }
 
 // flushGroup is how many words flush looks up at once.
