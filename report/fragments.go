@@ -183,29 +183,36 @@ type wordTable struct {
 	index   wordIndex     // word -> its tally
 	chunks  [][]wordTally // the tallies, chunkSize a chunk: they never move, and growing copies nothing
 	nwords  int32
-	arena   []byte   // the words' bytes
-	idArena []uint32 // the splits' ids
-	sink    uint64   // what touch read
+	arena   []byte     // the words' bytes
+	idArena []uint32   // the splits' ids
+	more    []wordMore // the splits of words that split more than one way
+	sink    uint64     // what touch read
 }
 
-// wordTally is one word's occurrences. It holds no pointers (the word and
-// the splits' ids are offsets into its table's arenas), so the garbage
-// collector never scans the millions of them a large corpus makes.
+// wordTally is one word's occurrences, in one cache line. It holds no
+// pointers (the word and the splits' ids are offsets into its table's
+// arenas), so the garbage collector never scans the millions of them a
+// large corpus makes.
 type wordTally struct {
+	prefix        uint64 // the word's first eight bytes, packed: most words are found without reading the arena
 	off, n        uint32 // the word is arena[off:off+n]
-	prefix        uint64 // its first eight bytes, packed: most words are found without reading the arena
 	count, pieces int64
 	docs          int32
-	nsplits       int32
-	splits        [maxSplits]splitRef
+	more          int32    // 1 + the index of the word's further splits in more, or 0
+	split         splitRef // the first split seen
+	_             uint64   // pads the tally to 64 bytes
 }
+
+// wordMore holds the second to maxSplits-th splits of a word.
+type wordMore struct{ splits [maxSplits - 1]splitRef }
 
 // maxSplits is how many distinct splits of one word a table tells apart;
 // the occurrences of any further split count in the word's totals only.
 const maxSplits = 4
 
-// splitRef is one way a word splits: the ids idArena[off:off+n], seen
-// count times.
+// splitRef is one way a word splits, seen count times: n ids, which are
+// off itself when n is 1 and else idArena[off:off+n]. n is 0 in a split
+// not yet used; every split has an id.
 type splitRef struct {
 	off, n uint32
 	count  int64
@@ -217,7 +224,7 @@ type splitTally struct {
 	count int64
 }
 
-// chunkBits sets the tallies of a chunk: 4096, some 400 kB.
+// chunkBits sets the tallies of a chunk: 4096, 256 kB.
 const (
 	chunkBits = 12
 	chunkSize = 1 << chunkBits
@@ -228,7 +235,35 @@ func (t *wordTable) at(i int32) *wordTally { return &t.chunks[i>>chunkBits][i&(c
 
 func (t *wordTable) word(w *wordTally) []byte { return t.arena[w.off : w.off+w.n] }
 
-func (t *wordTable) splitIDs(r splitRef) []uint32 { return t.idArena[r.off : r.off+r.n] }
+// splitIDs returns the ids of split r, in a slice of their own when there
+// is one.
+func (t *wordTable) splitIDs(r splitRef) []uint32 {
+	if r.n == 1 {
+		return []uint32{r.off}
+	}
+	return t.idArena[r.off : r.off+r.n]
+}
+
+// splitIs reports whether split r is ids.
+func (t *wordTable) splitIs(r splitRef, ids []uint32) bool {
+	if int(r.n) != len(ids) {
+		return false
+	}
+	if r.n == 1 {
+		return r.off == ids[0]
+	}
+	return slices.Equal(t.idArena[r.off:r.off+r.n], ids)
+}
+
+// newSplit returns a split of ids seen n times.
+func (t *wordTable) newSplit(ids []uint32, n int64) splitRef {
+	if len(ids) == 1 {
+		return splitRef{off: ids[0], n: 1, count: n}
+	}
+	off := len(t.idArena)
+	t.idArena = append(roomFor(t.idArena, len(ids)), ids...)
+	return splitRef{off: uint32(off), n: uint32(len(ids)), count: n}
+}
 
 type termAgg struct {
 	count, pieces int64
@@ -966,15 +1001,17 @@ func (t *wordTable) touch(hashes []uint64) {
 		if i := int(s & 0xffffffff); i > 0 {
 			w := t.at(int32(i - 1))
 			sum += w.prefix
-			offs[j] = w.splits[0].off
+			if w.split.n > 1 {
+				offs[j] = w.split.off + 1
+			}
 			if w.n > 8 {
 				words[j] = w.off + 8
 			}
 		}
 	}
 	for j, off := range offs[:len(hashes)] {
-		if int(off) < len(t.idArena) {
-			sum += uint64(t.idArena[off])
+		if off > 0 && int(off) <= len(t.idArena) {
+			sum += uint64(t.idArena[off-1])
 		}
 		if w := words[j]; w > 0 && int(w) < len(t.arena) {
 			sum += uint64(t.arena[w])
@@ -985,17 +1022,28 @@ func (t *wordTable) touch(hashes []uint64) {
 
 // addSplit counts n occurrences of w, a tally of t, split as ids.
 func (t *wordTable) addSplit(w *wordTally, ids []uint32, n int64) {
-	for q := int32(0); q < w.nsplits; q++ {
-		if slices.Equal(t.splitIDs(w.splits[q]), ids) {
-			w.splits[q].count += n
+	switch {
+	case w.split.n == 0:
+		w.split = t.newSplit(ids, n)
+		return
+	case t.splitIs(w.split, ids):
+		w.split.count += n
+		return
+	}
+	if w.more == 0 {
+		t.more = append(t.more, wordMore{})
+		w.more = int32(len(t.more))
+	}
+	m := &t.more[w.more-1]
+	for q := range m.splits {
+		switch sp := &m.splits[q]; {
+		case sp.n == 0:
+			*sp = t.newSplit(ids, n)
+			return
+		case t.splitIs(*sp, ids):
+			sp.count += n
 			return
 		}
-	}
-	if w.nsplits < maxSplits {
-		off := len(t.idArena)
-		t.idArena = append(roomFor(t.idArena, len(ids)), ids...)
-		w.splits[w.nsplits] = splitRef{off: uint32(off), n: uint32(len(ids)), count: n}
-		w.nsplits++
 	}
 }
 
@@ -1173,9 +1221,13 @@ func (f *Fragmenter) tables() []wordTable {
 
 // splitsOf returns the splits of w, a tally of t.
 func (t *wordTable) splitsOf(w *wordTally) []splitTally {
-	out := make([]splitTally, w.nsplits)
-	for j := range out {
-		out[j] = splitTally{ids: t.splitIDs(w.splits[j]), count: w.splits[j].count}
+	out := []splitTally{{ids: t.splitIDs(w.split), count: w.split.count}}
+	if w.more > 0 {
+		for _, sp := range t.more[w.more-1].splits {
+			if sp.n > 0 {
+				out = append(out, splitTally{ids: t.splitIDs(sp), count: sp.count})
+			}
+		}
 	}
 	return out
 }

@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"unsafe"
 
 	"github.com/rivo/uniseg"
 
@@ -529,5 +530,40 @@ func TestPackPrefix(t *testing.T) {
 		if got := packPrefix(w[:n]); got != want {
 			t.Errorf("packPrefix of %d bytes = %#x, want %#x", n, got, want)
 		}
+	}
+}
+
+// TestWordTallySize holds a word's tally to one 64-byte cache line, the
+// unit the flush reads memory in.
+func TestWordTallySize(t *testing.T) {
+	if n := unsafe.Sizeof(wordTally{}); n != 64 {
+		t.Errorf("a wordTally takes %d bytes, want 64", n)
+	}
+}
+
+// TestWordTableSplits checks that a word's table keeps maxSplits splits,
+// of one id or more, each with its own count, and counts the rest in the
+// word's totals only.
+func TestWordTableSplits(t *testing.T) {
+	var m wordTable
+	w := m.at(m.entry([]byte("kelderwick"), hashWord([]byte("kelderwick"))))
+	for _, s := range []struct {
+		ids []uint32
+		n   int64
+	}{{[]uint32{7}, 2}, {[]uint32{1, 2, 3}, 1}, {[]uint32{7}, 3}, {[]uint32{9}, 1}, {[]uint32{1, 2}, 4}, {[]uint32{5, 6}, 1}, {[]uint32{1, 2, 3}, 2}} {
+		m.addSplit(w, s.ids, s.n)
+	}
+	got := m.splitsOf(w)
+	want := []splitTally{{[]uint32{7}, 5}, {[]uint32{1, 2, 3}, 3}, {[]uint32{9}, 1}, {[]uint32{1, 2}, 4}}
+	if len(got) != len(want) {
+		t.Fatalf("splits %v, want %v", got, want)
+	}
+	for i := range want {
+		if !slices.Equal(got[i].ids, want[i].ids) || got[i].count != want[i].count {
+			t.Errorf("split %d: %v, want %v", i, got[i], want[i])
+		}
+	}
+	if again := m.at(m.entry([]byte("kelderwick"), hashWord([]byte("kelderwick")))); again != w {
+		t.Error("the word's second look-up made a new tally")
 	}
 }
