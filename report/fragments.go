@@ -340,6 +340,9 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	sh := f.getShard()
 	defer f.putShard(sh)
 	dw := &DocWords{Bytes: len(text)}
+	if cap(sh.ids) < len(text)/2 {
+		sh.ids = make([]uint32, 0, len(text)/2+64) // most texts are fewer tokens than that: no growing
+	}
 	ids := f.enc.AppendIDs(sh.ids[:0], text)
 	sh.ids = ids
 	// Glossary matches are settled by the tokens' end offsets, which only
