@@ -6,10 +6,11 @@
 #   RUNS=15 scripts/bench-fragments.sh /tmp/morsel-bench/corpus
 #
 # The two commands take turns, RUNS times each (default 9), after one
-# round that warms the page cache. Each turn gives one ratio, fragments
-# over the survey run just before it; the figure to quote is the median of
-# those ratios, since a change in the machine's load between turns touches
-# both runs of a pair alike. The best time of each command is printed too.
+# round that warms the page cache, and which goes first alternates. Each
+# turn gives one ratio, fragments over the survey run next to it; the
+# figure to quote is the median of those ratios, since a change in the
+# machine's load between turns touches both runs of a pair alike. The best
+# time of each command is printed too.
 set -eu
 cd "$(dirname "$0")/.."
 RUNS=${RUNS:-9}
@@ -30,8 +31,15 @@ secs() {
 "$bin/morsel" fragments --quiet --format json "$@" >/dev/null 2>&1 || true
 i=0
 while [ "$i" -lt "$RUNS" ]; do
-	s=$(secs "$bin/morsel" survey --quiet --format json "$@")
-	f=$(secs "$bin/morsel" fragments --quiet --format json "$@")
+	# The order alternates: on this machine the second run of a pair is
+	# often a few percent slower, whichever command it is.
+	if [ $((i % 2)) -eq 0 ]; then
+		s=$(secs "$bin/morsel" survey --quiet --format json "$@")
+		f=$(secs "$bin/morsel" fragments --quiet --format json "$@")
+	else
+		f=$(secs "$bin/morsel" fragments --quiet --format json "$@")
+		s=$(secs "$bin/morsel" survey --quiet --format json "$@")
+	fi
 	echo "$s $f"
 	i=$((i + 1))
 done >"$bin/times"
