@@ -490,36 +490,15 @@ func (f *Fragmenter) scanBytes(sh *shard, dw *DocWords, text []byte, lo, hi, k, 
 // WB7b and WB7c a Hebrew letter before '"'.
 func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 	ids, info := sh.ids, f.info
-	d := &sh.local
 	if len(sh.byToken) != len(info) {
 		sh.byToken = make([]uint64, len(info))
 	}
-	if d.epoch == 0 {
-		d.epoch = 1
+	if sh.local.epoch == 0 {
+		sh.local.epoch = 1
 	}
-	byToken := sh.byToken
 	pos := 0
 	ws, wk, wkEnd := -1, 0, 0 // the word being read starts at ws, in token wk, which ends at wkEnd
 	letter := false           // it has a letter
-	word := func(we, k int) {
-		sc := Digits
-		if letter {
-			sc = Latin
-		}
-		fc.add(sc, k-wk)
-		if k-wk == 1 {
-			// A word that is one token is found by the token.
-			if e := byToken[ids[wk]]; e>>34 == d.epoch {
-				d.again(uint32(e)-1, e>>32&3, sh.doc)
-				return
-			}
-			if wi, j := d.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc); j >= 0 {
-				byToken[ids[wk]] = d.epoch<<34 | uint64(j)<<32 | uint64(wi+1)
-			}
-			return
-		}
-		d.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc)
-	}
 	for k := 0; k < len(ids); {
 		in := info[ids[k]]
 		n := int(in & infoLen)
@@ -534,7 +513,7 @@ func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 			continue
 		case tokGapAlnum:
 			if ws >= 0 {
-				word(pos, k)
+				sh.word(text, ws, pos, wk, k, letter, fc)
 			}
 			ws, wk, wkEnd, letter = pos+int(in>>infoGapShift&15), k, pos+n, in&infoLetter != 0
 			pos += n
@@ -542,7 +521,7 @@ func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 			continue
 		case tokGap:
 			if ws >= 0 {
-				word(pos, k)
+				sh.word(text, ws, pos, wk, k, letter, fc)
 				ws = -1
 			}
 			pos += n
@@ -565,7 +544,7 @@ func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 				}
 			}
 			if ws >= 0 {
-				word(pos, k)
+				sh.word(text, ws, pos, wk, k, letter, fc)
 				ws = -1
 			}
 			pos += n
@@ -577,7 +556,7 @@ func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 		rs, rk, rkEnd := pos, k, pos+f.tokenLen(ids[k])
 		if ws >= 0 {
 			if in&infoGapFirst != 0 {
-				word(pos, k)
+				sh.word(text, ws, pos, wk, k, letter, fc)
 			} else {
 				rs, rk, rkEnd = ws, wk, wkEnd
 			}
@@ -594,8 +573,31 @@ func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 		f.scanBytes(sh, nil, text, rs, pos, rk, rkEnd, fc)
 	}
 	if ws >= 0 {
-		word(pos, len(ids))
+		sh.word(text, ws, pos, wk, len(ids), letter, fc)
 	}
+}
+
+// word tallies the word text[ws:we], a word scanTokens read, of the
+// tokens sh.ids[wk:k]; letter tells it holds a letter.
+func (sh *shard) word(text []byte, ws, we, wk, k int, letter bool, fc *fertility) {
+	sc := Digits
+	if letter {
+		sc = Latin
+	}
+	fc.add(sc, k-wk)
+	d, ids := &sh.local, sh.ids
+	if k-wk == 1 {
+		// A word that is one token is found by the token.
+		if e := sh.byToken[ids[wk]]; e>>34 == d.epoch {
+			d.again(uint32(e)-1, e>>32&3, sh.doc)
+			return
+		}
+		if wi, j := d.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc); j >= 0 {
+			sh.byToken[ids[wk]] = d.epoch<<34 | uint64(j)<<32 | uint64(wi+1)
+		}
+		return
+	}
+	d.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc)
 }
 
 // Token classes, for scanTokens: the low bits of Fragmenter.info.
