@@ -132,7 +132,7 @@ type Fragmenter struct {
 	terms   []Term
 	byFirst map[string][]int // a term's first segment -> terms starting with it
 	lens    []uint16         // every token's length in bytes, or longToken
-	info    []uint32         // every token's tokenInfo
+	info    []uint16         // every token's tokenInfo
 
 	mu     sync.Mutex
 	shards []*shard    // every shard made, for Finish
@@ -154,9 +154,9 @@ type Fragmenter struct {
 type shard struct {
 	local batchTally // the words of the last documents scanned, not yet in a wordTable
 	// byToken finds, by token id, the batch entry of the word that token
-	// is alone: local.epoch<<34 | split<<32 | entry+1, good while the
-	// epoch is the batch's.
-	byToken []uint64
+	// is alone: byTokenTag<<25 | split<<24 | entry+1, good while the tag
+	// is the batch's.
+	byToken []uint32
 	doc     int32 // documents this shard has scanned
 	ids     []uint32
 	ends    []int
@@ -278,7 +278,7 @@ func NewFragmenter(enc *bpe.Encoder, terms []Term) *Fragmenter {
 	f := &Fragmenter{enc: enc, terms: terms, docs: []DocFertility{}, skipped: []Skipped{}, free: make(chan *shard, 256)}
 	v := enc.Vocab()
 	f.lens = make([]uint16, v.Size())
-	f.info = make([]uint32, v.Size())
+	f.info = make([]uint16, v.Size())
 	for id := range f.lens {
 		tok, _ := v.Token(id)
 		f.lens[id] = uint16(min(len(tok), longToken))
@@ -491,7 +491,7 @@ func (f *Fragmenter) scanBytes(sh *shard, dw *DocWords, text []byte, lo, hi, k, 
 func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 	ids, info := sh.ids, f.info
 	if len(sh.byToken) != len(info) {
-		sh.byToken = make([]uint64, len(info))
+		sh.byToken = make([]uint32, len(info))
 	}
 	if sh.local.epoch == 0 {
 		sh.local.epoch = 1
@@ -515,7 +515,7 @@ func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 			if ws >= 0 {
 				sh.word(text, ws, pos, wk, k, letter, fc)
 			}
-			ws, wk, wkEnd, letter = pos+int(in>>infoGapShift&15), k, pos+n, in&infoLetter != 0
+			ws, wk, wkEnd, letter = pos+1, k, pos+n, in&infoLetter != 0
 			pos += n
 			k++
 			continue
@@ -588,34 +588,40 @@ func (sh *shard) word(text []byte, ws, we, wk, k int, letter bool, fc *fertility
 	d, ids := &sh.local, sh.ids
 	if k-wk == 1 {
 		// A word that is one token is found by the token.
-		if e := sh.byToken[ids[wk]]; e>>34 == d.epoch {
-			d.again(uint32(e)-1, e>>32&3, sh.doc)
+		tag := byTokenTag(d.epoch)
+		if e := sh.byToken[ids[wk]]; e>>25 == tag {
+			d.again(e&(1<<24-1)-1, uint64(e>>24&1), sh.doc)
 			return
 		}
-		if wi, j := d.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc); j >= 0 {
-			sh.byToken[ids[wk]] = d.epoch<<34 | uint64(j)<<32 | uint64(wi+1)
+		if wi, j := d.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc); j >= 0 && wi+1 < 1<<24 {
+			sh.byToken[ids[wk]] = tag<<25 | uint32(j)<<24 | (wi + 1)
 		}
 		return
 	}
 	d.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc)
 }
 
-// Token classes, for scanTokens: the low bits of Fragmenter.info.
+// byTokenTag returns the tag of shard.byToken entries made in the batch
+// of epoch: 1 to 127, which flush reuses after clearing the entries.
+func byTokenTag(epoch uint64) uint32 { return uint32(epoch%127) + 1 }
+
+// Token classes, for scanTokens: bits of Fragmenter.info, which holds 16
+// bits a token, so that the table of them (100 kB for GPT-2) stays in the
+// processor's cache beside the encoder's.
 const (
-	tokOther    = iota << 16
+	tokOther    = iota << 10
 	tokAlnum    // ASCII letters and digits only
-	tokGapAlnum // one to 15 gap characters, then ASCII letters and digits
+	tokGapAlnum // a gap character, then ASCII letters and digits
 	tokGap      // gap characters only
 	tokPunct    // gap characters and MidX characters, at least one of these
 )
 
 const (
-	infoLen       = 1<<16 - 1 // the token's length in bytes, or longToken
-	infoClass     = 7 << 16
-	infoLetter    = 1 << 19 // its letters and digits hold a letter
-	infoGapShift  = 20      // 4 bits: a tokGapAlnum's gap characters
-	infoGapFirst  = 1 << 24 // it starts with a gap character
-	infoLastASCII = 1 << 25 // its last byte is ASCII
+	infoLen       = 1<<10 - 1 // the token's length in bytes; a longer one is tokOther
+	infoClass     = 7 << 10
+	infoLetter    = 1 << 13 // its letters and digits hold a letter
+	infoGapFirst  = 1 << 14 // it starts with a gap character
+	infoLastASCII = 1 << 15 // its last byte is ASCII
 )
 
 // isGap reports whether c is a gap character: ASCII, and neither a letter,
@@ -632,8 +638,8 @@ func isGap(c byte) bool {
 }
 
 // tokenInfo returns the Fragmenter.info of a token of bytes tok.
-func tokenInfo(tok []byte) uint32 {
-	in := uint32(min(len(tok), longToken))
+func tokenInfo(tok []byte) uint16 {
+	var in uint16
 	if len(tok) == 0 {
 		return in
 	}
@@ -643,9 +649,10 @@ func tokenInfo(tok []byte) uint32 {
 	if tok[len(tok)-1] < utf8.RuneSelf {
 		in |= infoLastASCII
 	}
-	if len(tok) >= longToken {
+	if len(tok) >= infoLen {
 		return in
 	}
+	in |= uint16(len(tok))
 	g, mid := 0, false
 	for g < len(tok) && (isGap(tok[g]) || asciiWB[tok[g]&0x7f] == wbMid && tok[g] < utf8.RuneSelf) {
 		mid = mid || !isGap(tok[g])
@@ -669,11 +676,11 @@ func tokenInfo(tok []byte) uint32 {
 	if letter {
 		in |= infoLetter
 	}
-	switch {
-	case g == 0:
+	switch g {
+	case 0:
 		return in | tokAlnum
-	case g <= 15:
-		return in | tokGapAlnum | uint32(g)<<infoGapShift
+	case 1:
+		return in | tokGapAlnum
 	}
 	return in
 }
@@ -983,6 +990,9 @@ func (f *Fragmenter) flush(sh *shard) {
 	}
 	d.words, d.hashes, d.bytes, d.ids, d.spill, d.pieces = d.words[:0], d.hashes[:0], d.bytes[:0], d.ids[:0], d.spill[:0], 0
 	d.epoch++
+	if byTokenTag(d.epoch) == 1 {
+		clear(sh.byToken)
+	}
 }
 
 // flushGroup is how many words flush looks up at once.
