@@ -572,3 +572,35 @@ func TestWordTableSplits(t *testing.T) {
 		t.Error("the word's second look-up made a new tally")
 	}
 }
+
+// TestByTokenTags flushes the batch after every text, through as many
+// batches as byToken has tags: "the" is the fourth word of the first batch
+// and the first word of the 128th, so an entry kept from 127 flushes back
+// would count it in another word's entry.
+func TestByTokenTags(t *testing.T) {
+	fr := NewFragmenter(fragEncoder(t), nil)
+	for r := range 128 {
+		text := "cat"
+		switch r {
+		case 0:
+			text = "cat,dog,and,the"
+		case 127:
+			text = "the,cat"
+		}
+		if _, err := fr.ScanText([]byte(text)); err != nil {
+			t.Fatal(err)
+		}
+		for _, sh := range fr.shards {
+			fr.flush(sh)
+		}
+	}
+	got := fr.mergeShards()
+	for w, n := range map[string]int64{"the": 2, "cat": 128, "and": 1, "dog": 1} {
+		if g := got[w]; g == nil || g.count != n || g.docs != int(n) || g.pieces != n {
+			t.Errorf("%q: %+v, want %d occurrences of one piece in as many documents", w, g, n)
+		}
+	}
+	if len(got) != 4 {
+		t.Errorf("%d words, want 4", len(got))
+	}
+}
