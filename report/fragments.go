@@ -776,17 +776,20 @@ const batchWords = 8192
 // than 2^32 - batchFull pieces (it is under 2 GiB).
 const batchFull = 1 << 29
 
+// batchWord is a word of a batch, in 64 bytes: one cache line. Its pieces
+// are its splits' and its spills'.
 type batchWord struct {
 	prefix        uint64 // packPrefix of the word
 	off, n        uint32 // the word is bytes[off:off+n]
-	count, pieces uint32
+	count         uint32
 	docs, lastDoc int32
-	nsplits       uint32
 	splits        [2]batchSplit
+	_             uint32
 }
 
 // batchSplit is one split of a batch word, seen count times: n ids, which
-// are a, or a and b, when n is 1 or 2, and else ids[a:a+n].
+// are a, or a and b, when n is 1 or 2, and else ids[a:a+n]. n is 0 in a
+// split not yet used.
 type batchSplit struct{ a, b, n, count uint32 }
 
 // is reports whether sp is the split ids.
@@ -855,19 +858,19 @@ func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) (uint32
 		p = (p + 1) & mask
 	}
 	w.count++
-	w.pieces += uint32(len(ids))
 	d.pieces += uint64(len(ids))
 	if w.lastDoc != doc {
 		w.lastDoc = doc
 		w.docs++
 	}
-	for j := uint32(0); j < w.nsplits; j++ {
+	j := 0
+	for ; j < len(w.splits) && w.splits[j].n != 0; j++ {
 		if sp := &w.splits[j]; sp.is(d, ids) {
 			sp.count++
-			return wi, int(j)
+			return wi, j
 		}
 	}
-	if w.nsplits < uint32(len(w.splits)) {
+	if j < len(w.splits) {
 		sp := batchSplit{n: uint32(len(ids)), count: 1}
 		switch len(ids) {
 		case 2:
@@ -879,9 +882,8 @@ func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) (uint32
 			sp.a = uint32(len(d.ids))
 			d.ids = append(d.ids, ids...)
 		}
-		w.splits[w.nsplits] = sp
-		w.nsplits++
-		return wi, int(w.nsplits - 1)
+		w.splits[j] = sp
+		return wi, j
 	}
 	off := uint32(len(d.ids))
 	d.ids = append(d.ids, ids...)
@@ -894,7 +896,6 @@ func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) (uint32
 func (d *batchTally) again(wi uint32, j uint64, doc int32) {
 	w := &d.words[wi]
 	w.count++
-	w.pieces++
 	d.pieces++
 	if w.lastDoc != doc {
 		w.lastDoc = doc
@@ -966,10 +967,13 @@ func (f *Fragmenter) flush(sh *shard) {
 				at[i] = wi
 				w := t.at(wi)
 				w.count += int64(lw.count)
-				w.pieces += int64(lw.pieces)
 				w.docs += lw.docs
-				for j := uint32(0); j < lw.nsplits; j++ {
+				for j := range lw.splits {
 					sp := &lw.splits[j]
+					if sp.n == 0 {
+						break
+					}
+					w.pieces += int64(sp.count) * int64(sp.n)
 					t.addSplit(w, d.idsOf(sp, &buf), int64(sp.count))
 				}
 			}
@@ -979,7 +983,9 @@ func (f *Fragmenter) flush(sh *shard) {
 	for _, sp := range d.spill {
 		t := &f.parts[part[sp.word]]
 		t.mu.Lock()
-		t.addSplit(t.at(at[sp.word]), d.ids[sp.off:sp.off+sp.n], 1)
+		w := t.at(at[sp.word])
+		w.pieces += int64(sp.n)
+		t.addSplit(w, d.ids[sp.off:sp.off+sp.n], 1)
 		t.mu.Unlock()
 	}
 	sh.part, sh.order, sh.at = part, order, at

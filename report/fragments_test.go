@@ -538,11 +538,14 @@ func TestPackPrefix(t *testing.T) {
 	}
 }
 
-// TestWordTallySize holds a word's tally to one 64-byte cache line, the
-// unit the flush reads memory in.
+// TestWordTallySize holds a word's tally, and a batch's word, to one
+// 64-byte cache line, the unit memory is read in.
 func TestWordTallySize(t *testing.T) {
 	if n := unsafe.Sizeof(wordTally{}); n != 64 {
 		t.Errorf("a wordTally takes %d bytes, want 64", n)
+	}
+	if n := unsafe.Sizeof(batchWord{}); n != 64 {
+		t.Errorf("a batchWord takes %d bytes, want 64", n)
 	}
 }
 
