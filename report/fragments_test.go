@@ -607,3 +607,33 @@ func TestByTokenTags(t *testing.T) {
 		t.Errorf("%d words, want 4", len(got))
 	}
 }
+
+// TestBatchSpill counts a word split three ways in one batch, the third
+// way past the batch's two inline splits, and checks what the flush makes
+// of it: the counts and pieces are the sums of the occurrences added here.
+func TestBatchSpill(t *testing.T) {
+	fr := NewFragmenter(fragEncoder(t), nil)
+	sh := fr.getShard()
+	word := []byte("kelderwick")
+	h := hashWord(word)
+	for _, o := range []struct {
+		ids []uint32
+		doc int32
+	}{{[]uint32{1, 2}, 1}, {[]uint32{3}, 1}, {[]uint32{4, 5, 6}, 2}, {[]uint32{1, 2}, 2}, {[]uint32{4, 5, 6}, 3}} {
+		sh.local.add(word, h, o.ids, o.doc)
+	}
+	fr.putShard(sh)
+	got := fr.mergeShards()["kelderwick"]
+	if got == nil || got.count != 5 || got.pieces != 2+1+3+2+3 || got.docs != 3 {
+		t.Fatalf("%+v, want 5 occurrences, 11 pieces, 3 documents", got)
+	}
+	want := []splitTally{{[]uint32{1, 2}, 2}, {[]uint32{3}, 1}, {[]uint32{4, 5, 6}, 2}}
+	if len(got.splits) != len(want) {
+		t.Fatalf("splits %v, want %v", got.splits, want)
+	}
+	for i := range want {
+		if !slices.Equal(got.splits[i].ids, want[i].ids) || got.splits[i].count != want[i].count {
+			t.Errorf("split %d: %v, want %v", i, got.splits[i], want[i])
+		}
+	}
+}
