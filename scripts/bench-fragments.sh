@@ -43,7 +43,7 @@ while [ "$i" -lt "$RUNS" ]; do
 	echo "$s $f"
 	i=$((i + 1))
 done >"$bin/times"
-bytes=$(du -cb "$@" 2>/dev/null | tail -1 | cut -f1)
+bytes=$(find "$@" -type f -printf '%s\n' 2>/dev/null | awk '{ s += $1 } END { print s + 0 }') # every path, as morsel reads it (du counts hard links once)
 awk -v bytes="$bytes" '
 	{ s[NR] = $1; f[NR] = $2; r[NR] = $2 / $1
 	  if (NR == 1 || $1 < bs) bs = $1

@@ -23,7 +23,7 @@ if [ "$#" -eq 0 ]; then
   set -- "$corpus"
 fi
 go build -o "$dir/morsel" ./cmd/morsel
-bytes=$(find "$@" -type f -print0 | du -cb --files0-from=- | tail -1 | cut -f1)
+bytes=$(find "$@" -type f -printf '%s\n' | awk '{ s += $1 } END { print s + 0 }') # every path, as morsel reads it (du counts hard links once)
 echo "input: $((bytes / 1000)) kB in $(find "$@" -type f | wc -l) files; budget $budget tokens"
 echo "machine: $(nproc) cores, load $(cut -d' ' -f1-3 /proc/loadavg)"
 
