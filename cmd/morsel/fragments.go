@@ -69,6 +69,7 @@ flag when it reaches --min-pieces.`,
 			if err != nil {
 				return err
 			}
+			paceGrowingHeap()
 			fr := report.NewFragmenter(enc, terms)
 			prog := sh.progress()
 			err = report.Walk(args, cf.options(), sh.workers, prog, fr.Scan,
