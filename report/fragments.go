@@ -519,18 +519,10 @@ func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 			pos += n
 			k++
 			continue
-		case tokGap:
-			if ws >= 0 {
-				sh.word(text, ws, pos, wk, k, letter, fc)
-				ws = -1
-			}
-			pos += n
-			k++
-			continue
 		case tokPunct:
 			// A MidX joins only between two letters (WB6, WB7: ": . '")
 			// or two digits (WB11, WB12: ", ; . '"), so only a MidX alone,
-			// after a word, can join what follows.
+			// after a word, can join what follows; else it is a gap.
 			if ws >= 0 && n == 1 && pos+1 < len(text) {
 				if d := text[pos+1]; d < utf8.RuneSelf && asciiWB[d] == wbAlnum {
 					c, letters := text[pos], text[pos-1] > '9'
@@ -543,6 +535,8 @@ func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 					break // an Extend or Format character may join it (WB4)
 				}
 			}
+			fallthrough
+		case tokGap:
 			if ws >= 0 {
 				sh.word(text, ws, pos, wk, k, letter, fc)
 				ws = -1
