@@ -480,9 +480,10 @@ func (f *Fragmenter) scanBytes(sh *shard, dw *DocWords, text []byte, lo, hi, k, 
 }
 
 // scanTokens tallies the words of sh's text token by token where it can:
-// a word of ASCII letters and digits is a run of tokens of them, perhaps
-// after a token's leading spaces or punctuation, and its pieces are those
-// tokens. What else the text holds (non-ASCII, '_', the MidX characters of
+// a word of ASCII letters and digits is a run of tokens of them (the
+// first may start with one gap character, such as GPT-2's leading space),
+// perhaps joined by a MidX token between two letters or two digits, and
+// its pieces are those tokens. What else the text holds (non-ASCII, '_', the MidX characters of
 // WB6, WB7, WB11 and WB12) goes to scanBytes, in regions cut where no word
 // can cross: before a gap character (ASCII punctuation, space or control,
 // MidX aside) that follows an ASCII one. No rule of UAX #29 joins such a
