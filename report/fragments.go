@@ -276,14 +276,7 @@ type pendingTerm struct{ term, start, end int }
 // the glossary terms (none when terms is nil).
 func NewFragmenter(enc *bpe.Encoder, terms []Term) *Fragmenter {
 	f := &Fragmenter{enc: enc, terms: terms, docs: []DocFertility{}, skipped: []Skipped{}, free: make(chan *shard, 256)}
-	v := enc.Vocab()
-	f.lens = make([]uint16, v.Size())
-	f.info = make([]uint16, v.Size())
-	for id := range f.lens {
-		tok, _ := v.Token(id)
-		f.lens[id] = uint16(min(len(tok), longToken))
-		f.info[id] = tokenInfo(tok)
-	}
+	f.lens, f.info = tokenTables(enc.Vocab())
 	if len(terms) > 0 {
 		f.byFirst = map[string][]int{}
 		for i, t := range terms {
@@ -298,6 +291,29 @@ func NewFragmenter(enc *bpe.Encoder, terms []Term) *Fragmenter {
 // longToken in Fragmenter.lens stands for a token of that many bytes or
 // more, whose length is looked up in the vocabulary.
 const longToken = 1<<16 - 1
+
+// tables holds each vocabulary's token lengths and classes, made once
+// (the fuzz tests make a fragmenter for every input they try) and kept
+// with the vocabulary for the life of the process: a run uses one.
+var tables sync.Map // *bpe.Vocab -> *[2][]uint16
+
+// tokenTables returns every token's length (or longToken) and tokenInfo
+// under v. The slices are shared; nothing writes them.
+func tokenTables(v *bpe.Vocab) (lens, info []uint16) {
+	if t, ok := tables.Load(v); ok {
+		p := t.(*[2][]uint16)
+		return p[0], p[1]
+	}
+	lens, info = make([]uint16, v.Size()), make([]uint16, v.Size())
+	for id := range lens {
+		tok, _ := v.Token(id)
+		lens[id] = uint16(min(len(tok), longToken))
+		info[id] = tokenInfo(tok)
+	}
+	t, _ := tables.LoadOrStore(v, &[2][]uint16{lens, info})
+	p := t.(*[2][]uint16)
+	return p[0], p[1]
+}
 
 func (f *Fragmenter) getShard() *shard {
 	select {
