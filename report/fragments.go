@@ -131,8 +131,7 @@ type Fragmenter struct {
 	enc     *bpe.Encoder
 	terms   []Term
 	byFirst map[string][]int // a term's first segment -> terms starting with it
-	lens    []uint16         // every token's length in bytes, or longToken
-	info    []uint16         // every token's tokenInfo
+	info    []uint16         // every token's tokenInfo, its length among it
 
 	mu     sync.Mutex
 	shards []*shard    // every shard made, for Finish
@@ -276,7 +275,7 @@ type pendingTerm struct{ term, start, end int }
 // the glossary terms (none when terms is nil).
 func NewFragmenter(enc *bpe.Encoder, terms []Term) *Fragmenter {
 	f := &Fragmenter{enc: enc, terms: terms, docs: []DocFertility{}, skipped: []Skipped{}, free: make(chan *shard, 256)}
-	f.lens, f.info = tokenTables(enc.Vocab())
+	f.info = tokenTables(enc.Vocab())
 	if len(terms) > 0 {
 		f.byFirst = map[string][]int{}
 		for i, t := range terms {
@@ -288,31 +287,24 @@ func NewFragmenter(enc *bpe.Encoder, terms []Term) *Fragmenter {
 	return f
 }
 
-// longToken in Fragmenter.lens stands for a token of that many bytes or
-// more, whose length is looked up in the vocabulary.
-const longToken = 1<<16 - 1
+// tables holds each vocabulary's tokenInfo table, made once (the fuzz
+// tests make a fragmenter for every input they try) and kept with the
+// vocabulary for the life of the process: a run uses one.
+var tables sync.Map // *bpe.Vocab -> []uint16
 
-// tables holds each vocabulary's token lengths and classes, made once
-// (the fuzz tests make a fragmenter for every input they try) and kept
-// with the vocabulary for the life of the process: a run uses one.
-var tables sync.Map // *bpe.Vocab -> *[2][]uint16
-
-// tokenTables returns every token's length (or longToken) and tokenInfo
-// under v. The slices are shared; nothing writes them.
-func tokenTables(v *bpe.Vocab) (lens, info []uint16) {
+// tokenTables returns the tokenInfo of every token of v. The slice is
+// shared; nothing writes it.
+func tokenTables(v *bpe.Vocab) []uint16 {
 	if t, ok := tables.Load(v); ok {
-		p := t.(*[2][]uint16)
-		return p[0], p[1]
+		return t.([]uint16)
 	}
-	lens, info = make([]uint16, v.Size()), make([]uint16, v.Size())
-	for id := range lens {
+	info := make([]uint16, v.Size())
+	for id := range info {
 		tok, _ := v.Token(id)
-		lens[id] = uint16(min(len(tok), longToken))
 		info[id] = tokenInfo(tok)
 	}
-	t, _ := tables.LoadOrStore(v, &[2][]uint16{lens, info})
-	p := t.(*[2][]uint16)
-	return p[0], p[1]
+	t, _ := tables.LoadOrStore(v, info)
+	return t.([]uint16)
 }
 
 func (f *Fragmenter) getShard() *shard {
@@ -365,7 +357,7 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	// they need.
 	pos, ends := 0, sh.ends[:0]
 	for _, id := range ids {
-		if uint(id) >= uint(len(f.lens)) {
+		if uint(id) >= uint(len(f.info)) {
 			return nil, fmt.Errorf("the encoder gave id %d, which is not in the vocabulary", id)
 		}
 		pos += f.tokenLen(id)
@@ -391,11 +383,9 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 			kEnd = f.tokenLen(ids[0])
 		}
 		f.scanBytes(sh, dw, text, 0, len(text), 0, kEnd, &fc)
+		f.termsAt(sh, dw, text, len(text), nil)
 	} else {
 		f.scanTokens(sh, text, &fc)
-	}
-	if f.terms != nil {
-		f.termsAt(sh, dw, text, len(text), nil)
 	}
 	if sh.local.full() {
 		f.flush(sh)
@@ -564,7 +554,8 @@ func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 		}
 		// A token scanBytes must read: the region starts here, or where
 		// the word being read does unless this token can end it.
-		rs, rk, rkEnd := pos, k, pos+f.tokenLen(ids[k])
+		end := pos + f.tokenLen(ids[k])
+		rs, rk, rkEnd := pos, k, end
 		if ws >= 0 {
 			if in&infoGapFirst != 0 {
 				sh.word(text, ws, pos, wk, k, letter, fc)
@@ -573,7 +564,7 @@ func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 			}
 			ws = -1
 		}
-		pos += f.tokenLen(ids[k])
+		pos = end
 		for k++; k < len(ids); k++ {
 			in := info[ids[k]]
 			if in&infoGapFirst != 0 && info[ids[k-1]]&infoLastASCII != 0 {
@@ -628,7 +619,7 @@ const (
 )
 
 const (
-	infoLen       = 1<<10 - 1 // the token's length in bytes; a longer one is tokOther
+	infoLen       = 1<<10 - 1 // the token's length in bytes, or 0 for one this long or longer (a tokOther)
 	infoClass     = 7 << 10
 	infoLetter    = 1 << 13 // its letters and digits hold a letter
 	infoGapFirst  = 1 << 14 // it starts with a gap character
@@ -664,9 +655,10 @@ func tokenInfo(tok []byte) uint16 {
 		return in
 	}
 	in |= uint16(len(tok))
+	isMid := func(c byte) bool { return c < utf8.RuneSelf && asciiWB[c] == wbMid }
 	g, mid := 0, false
-	for g < len(tok) && (isGap(tok[g]) || asciiWB[tok[g]&0x7f] == wbMid && tok[g] < utf8.RuneSelf) {
-		mid = mid || !isGap(tok[g])
+	for g < len(tok) && (isGap(tok[g]) || isMid(tok[g])) {
+		mid = mid || isMid(tok[g])
 		g++
 	}
 	switch {
@@ -699,7 +691,7 @@ func tokenInfo(tok []byte) uint16 {
 // tokenLen returns the length in bytes of token id, which is in the
 // vocabulary.
 func (f *Fragmenter) tokenLen(id uint32) int {
-	if n := int(f.lens[id]); n != longToken {
+	if n := int(f.info[id] & infoLen); n != 0 {
 		return n
 	}
 	tok, _ := f.enc.Vocab().Token(int(id))
@@ -868,12 +860,7 @@ func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) (uint32
 		}
 		p = (p + 1) & mask
 	}
-	w.count++
-	d.pieces += uint64(len(ids))
-	if w.lastDoc != doc {
-		w.lastDoc = doc
-		w.docs++
-	}
+	d.occur(w, len(ids), doc)
 	j := 0
 	for ; j < len(w.splits) && w.splits[j].n != 0; j++ {
 		if sp := &w.splits[j]; sp.is(d, ids) {
@@ -906,13 +893,19 @@ func (d *batchTally) add(word []byte, h uint64, ids []uint32, doc int32) (uint32
 // single token, in the document numbered doc.
 func (d *batchTally) again(wi uint32, j uint64, doc int32) {
 	w := &d.words[wi]
+	d.occur(w, 1, doc)
+	w.splits[j].count++
+}
+
+// occur counts an occurrence of w, of n pieces, in the document numbered
+// doc; its split is the caller's to count.
+func (d *batchTally) occur(w *batchWord, n int, doc int32) {
 	w.count++
-	d.pieces++
+	d.pieces += uint64(n)
 	if w.lastDoc != doc {
 		w.lastDoc = doc
 		w.docs++
 	}
-	w.splits[j].count++
 }
 
 // full reports whether the batch is due to be flushed.
@@ -1054,12 +1047,7 @@ func (t *wordTable) touch(hashes []uint64) {
 
 // addSplit counts n occurrences of w, a tally of t, split as ids.
 func (t *wordTable) addSplit(w *wordTally, ids []uint32, n int64) {
-	switch {
-	case w.split.n == 0:
-		w.split = t.newSplit(ids, n)
-		return
-	case t.splitIs(w.split, ids):
-		w.split.count += n
+	if t.countSplit(&w.split, ids, n) {
 		return
 	}
 	if w.more == 0 {
@@ -1068,15 +1056,24 @@ func (t *wordTable) addSplit(w *wordTally, ids []uint32, n int64) {
 	}
 	m := &t.more[w.more-1]
 	for q := range m.splits {
-		switch sp := &m.splits[q]; {
-		case sp.n == 0:
-			*sp = t.newSplit(ids, n)
-			return
-		case t.splitIs(*sp, ids):
-			sp.count += n
+		if t.countSplit(&m.splits[q], ids, n) {
 			return
 		}
 	}
+}
+
+// countSplit counts n occurrences split as ids in sp, when sp is that
+// split or is not yet used, and reports whether it did.
+func (t *wordTable) countSplit(sp *splitRef, ids []uint32, n int64) bool {
+	switch {
+	case sp.n == 0:
+		*sp = t.newSplit(ids, n)
+	case t.splitIs(*sp, ids):
+		sp.count += n
+	default:
+		return false
+	}
+	return true
 }
 
 // wordIndex is an open-addressing hash table from a word to its tally:

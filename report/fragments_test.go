@@ -116,7 +116,7 @@ func TestTokenInfo(t *testing.T) {
 		{".", tokPunct, false}, {"),\n", tokPunct, false}, {".foo", tokOther, false}, {"_x", tokOther, false},
 		{"x_", tokOther, false}, {"'s", tokOther, false}, {"_", tokOther, false}, {"x'", tokOther, false},
 		{"é", tokOther, false}, {"\"", tokGap, false}, {"a.b", tokOther, false}, {"(x)", tokOther, false},
-		{strings.Repeat("a", 1023), tokOther, false},
+		{strings.Repeat("a", 1022), tokAlnum, true}, {strings.Repeat("a", 1023), tokOther, false},
 	} {
 		in := tokenInfo([]byte(c.tok))
 		if in&infoClass != c.class || (in&infoLetter != 0) != c.letter {
@@ -124,6 +124,9 @@ func TestTokenInfo(t *testing.T) {
 		}
 		if c.class != tokOther && int(in&infoLen) != len(c.tok) {
 			t.Errorf("%q: length %d", c.tok, in&infoLen)
+		}
+		if len(c.tok) >= infoLen && in&infoLen != 0 {
+			t.Errorf("a %d-byte token: length %d, want 0 (looked up)", len(c.tok), in&infoLen)
 		}
 		if gapFirst := isGap(c.tok[0]); (in&infoGapFirst != 0) != gapFirst {
 			t.Errorf("%q: gap first %v", c.tok, !gapFirst)
@@ -562,15 +565,7 @@ func TestWordTableSplits(t *testing.T) {
 		m.addSplit(w, s.ids, s.n)
 	}
 	got := m.splitsOf(w)
-	want := []splitTally{{[]uint32{7}, 5}, {[]uint32{1, 2, 3}, 3}, {[]uint32{9}, 1}, {[]uint32{1, 2}, 4}}
-	if len(got) != len(want) {
-		t.Fatalf("splits %v, want %v", got, want)
-	}
-	for i := range want {
-		if !slices.Equal(got[i].ids, want[i].ids) || got[i].count != want[i].count {
-			t.Errorf("split %d: %v, want %v", i, got[i], want[i])
-		}
-	}
+	checkSplits(t, got, []splitTally{{[]uint32{7}, 5}, {[]uint32{1, 2, 3}, 3}, {[]uint32{9}, 1}, {[]uint32{1, 2}, 4}})
 	if again := m.at(m.entry([]byte("kelderwick"), hashWord([]byte("kelderwick")))); again != w {
 		t.Error("the word's second look-up made a new tally")
 	}
@@ -627,13 +622,18 @@ func TestBatchSpill(t *testing.T) {
 	if got == nil || got.count != 5 || got.pieces != 2+1+3+2+3 || got.docs != 3 {
 		t.Fatalf("%+v, want 5 occurrences, 11 pieces, 3 documents", got)
 	}
-	want := []splitTally{{[]uint32{1, 2}, 2}, {[]uint32{3}, 1}, {[]uint32{4, 5, 6}, 2}}
-	if len(got.splits) != len(want) {
-		t.Fatalf("splits %v, want %v", got.splits, want)
+	checkSplits(t, got.splits, []splitTally{{[]uint32{1, 2}, 2}, {[]uint32{3}, 1}, {[]uint32{4, 5, 6}, 2}})
+}
+
+// checkSplits fails t unless got holds the splits of want, in order.
+func checkSplits(t *testing.T, got, want []splitTally) {
+	t.Helper()
+	if len(got) != len(want) {
+		t.Fatalf("splits %v, want %v", got, want)
 	}
 	for i := range want {
-		if !slices.Equal(got.splits[i].ids, want[i].ids) || got.splits[i].count != want[i].count {
-			t.Errorf("split %d: %v, want %v", i, got.splits[i], want[i])
+		if !slices.Equal(got[i].ids, want[i].ids) || got[i].count != want[i].count {
+			t.Errorf("split %d: %v, want %v", i, got[i], want[i])
 		}
 	}
 }
