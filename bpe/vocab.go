@@ -11,6 +11,8 @@ import (
 	"sort"
 	"strings"
 	"sync"
+
+	"morsel/internal/textfile"
 )
 
 // Vocab is a byte-level BPE vocabulary: the raw bytes of every token, the
@@ -185,16 +187,6 @@ func Parse(vocabName string, vocabJSON []byte, mergesName string, merges []byte)
 	return v, nil
 }
 
-func lineOf(data []byte, off int64) int {
-	if off > int64(len(data)) {
-		off = int64(len(data))
-	}
-	if off < 0 {
-		off = 0
-	}
-	return bytes.Count(data[:off], []byte{'\n'}) + 1
-}
-
 // lineCounter gives the line of offsets that only grow, counting each
 // newline once.
 type lineCounter struct {
@@ -234,14 +226,14 @@ func parseVocabJSON(name string, data []byte) ([][]byte, error) {
 	}
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.UseNumber()
-	fail := func(msg string) error { return &posError{name, lineOf(data, dec.InputOffset()), msg} }
+	fail := func(msg string) error { return &posError{name, textfile.Line(data, dec.InputOffset()), msg} }
 	syntax := func(err error) error {
 		var se *json.SyntaxError
 		if errors.As(err, &se) {
-			return &posError{name, lineOf(data, se.Offset), "not valid JSON: " + se.Error()}
+			return &posError{name, textfile.Line(data, se.Offset), "not valid JSON: " + se.Error()}
 		}
 		if errors.Is(err, io.EOF) || errors.Is(err, io.ErrUnexpectedEOF) {
-			return &posError{name, lineOf(data, int64(len(data))), "not valid JSON: the object is cut short"}
+			return &posError{name, textfile.Line(data, int64(len(data))), "not valid JSON: the object is cut short"}
 		}
 		return fail("not valid JSON: " + err.Error())
 	}
