@@ -9,6 +9,8 @@ import (
 	"io"
 	"strconv"
 	"strings"
+
+	"morsel/internal/textfile"
 )
 
 // jsonl reads one record per line.
@@ -36,12 +38,16 @@ func (r *reader) jsonl(in *bufio.Reader) error {
 			break
 		}
 		line++
+		rec := buf
+		if line == 1 {
+			rec = textfile.TrimBOM(rec)
+		}
 		if tooLarge {
 			records++
 			if e := r.skip(line, ReasonTooLarge, lineDetail(line, fmt.Sprintf("longer than %d bytes", r.opt.MaxRecord)), true); e != nil {
 				return e
 			}
-		} else if rec := bytes.TrimSpace(trimBOM(buf, line == 1)); len(rec) > 0 {
+		} else if rec = bytes.TrimSpace(rec); len(rec) > 0 {
 			records++
 			if e := r.record(line, FormatJSONL, rec, path, func(msg string) string { return lineDetail(line, msg) }); e != nil {
 				return e
@@ -59,13 +65,6 @@ func (r *reader) jsonl(in *bufio.Reader) error {
 		return r.skip(0, ReasonEmpty, "no records", false)
 	}
 	return nil
-}
-
-func trimBOM(b []byte, first bool) []byte {
-	if first {
-		return bytes.TrimPrefix(b, bom)
-	}
-	return b
 }
 
 // record checks one JSON record and emits its document or skip; where
