@@ -17,6 +17,7 @@ import (
 
 	"morsel/bpe"
 	"morsel/corpus"
+	"morsel/internal/textfile"
 )
 
 // How words get their pieces.
@@ -59,7 +60,7 @@ func ParseGlossary(name string, r io.Reader) ([]Term, error) {
 		line++
 		raw := sc.Bytes()
 		if line == 1 {
-			raw = trimBOMPrefix(raw)
+			raw = textfile.TrimBOM(raw)
 		}
 		if !utf8.Valid(raw) {
 			return nil, fmt.Errorf("%s:%d: the line is not valid UTF-8", name, line)
@@ -86,13 +87,6 @@ func ParseGlossary(name string, r io.Reader) ([]Term, error) {
 		return nil, fmt.Errorf("%s:%d: %w", name, line+1, err)
 	}
 	return terms, nil
-}
-
-func trimBOMPrefix(b []byte) []byte {
-	if len(b) >= 3 && b[0] == 0xEF && b[1] == 0xBB && b[2] == 0xBF {
-		return b[3:]
-	}
-	return b
 }
 
 // ScriptTally is the fertility of the words of one class, or of all.

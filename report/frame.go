@@ -6,6 +6,7 @@ import (
 	"os"
 
 	"morsel/bpe"
+	"morsel/internal/textfile"
 )
 
 // The placeholders a frame may hold.
@@ -34,7 +35,7 @@ func ParseFrame(name string, data []byte) (*Frame, error) {
 	if j := bytes.Index(rest, []byte(DocumentMark)); j >= 0 {
 		second := i + len(DocumentMark) + j
 		return nil, fmt.Errorf("%s:%d: a second %s (the first is on line %d); a frame holds the document once",
-			name, lineAt(data, second), DocumentMark, lineAt(data, i))
+			name, textfile.Line(data, int64(second)), DocumentMark, textfile.Line(data, int64(i)))
 	}
 	return &Frame{Name: name, before: data[:i], after: rest}, nil
 }
@@ -46,11 +47,6 @@ func LoadFrame(path string) (*Frame, error) {
 		return nil, fmt.Errorf("reading frame: %w", err)
 	}
 	return ParseFrame(path, data)
-}
-
-// lineAt returns the 1-based line of byte offset off in data.
-func lineAt(data []byte, off int) int {
-	return bytes.Count(data[:off], []byte{'\n'}) + 1
 }
 
 // Parts returns the text before and after the document for the document

@@ -9,6 +9,8 @@ import (
 
 	"github.com/pelletier/go-toml/v2/unstable"
 	"github.com/shopspring/decimal"
+
+	"morsel/internal/textfile"
 )
 
 // Answer is the number of answer tokens a request expects: a fixed count,
@@ -125,7 +127,7 @@ func ParseTargets(name string, data []byte) (ts *Targets, err error) {
 		if int(r.Offset) > len(data) {
 			return 0
 		}
-		return lineAt(data, int(r.Offset))
+		return textfile.Line(data, int64(r.Offset))
 	}
 	fail := func(ln int, format string, args ...any) error {
 		return &TargetsError{File: name, Line: ln, Msg: fmt.Sprintf(format, args...)}
@@ -172,7 +174,7 @@ func ParseTargets(name string, data []byte) (ts *Targets, err error) {
 		if pe, ok := err.(*unstable.ParserError); ok && pe.Highlight != nil {
 			off := cap(data) - cap(pe.Highlight)
 			if off >= 0 && off <= len(data) {
-				ln = lineAt(data, off)
+				ln = textfile.Line(data, int64(off))
 			}
 		}
 		return nil, fail(ln, "%v", err)
