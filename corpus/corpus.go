@@ -2,7 +2,7 @@
 //
 // List resolves paths (files, directories walked recursively in sorted
 // order, glob patterns) into Inputs. Read opens one Input, picks its format
-// and emits its Documents and Skips in input order. Walk does both.
+// and emits its Documents and Skips in input order.
 //
 // # Formats
 //
@@ -176,13 +176,13 @@ func (s Skip) String() string {
 	return s.Source + ": " + s.Reason + ": " + s.Detail
 }
 
-// Item is one result of Read or Walk: exactly one of Doc and Skip is set.
+// Item is one result of Read: exactly one of Doc and Skip is set.
 type Item struct {
 	Doc  *Document
 	Skip *Skip
 }
 
-// Options controls List, Read and Walk. The zero value is ready to use.
+// Options controls List and Read. The zero value is ready to use.
 type Options struct {
 	// Field is the JSON/JSON Lines field holding the text, a dotted path
 	// for nesting; default "text".

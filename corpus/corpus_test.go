@@ -59,14 +59,34 @@ func rel(base, p string) string {
 	return p
 }
 
+// walkAll lists paths as List does, but with each skip in its place among
+// the inputs, and reads each input as Read does, calling fn for every
+// document and skip in order. It stops at the first error fn
+// returns and returns it; unreadable inputs are reported as Skips, not as
+// errors.
+func walkAll(paths []string, opt Options, fn func(Item) error) error {
+	for _, e := range list(paths, opt) {
+		if e.skip != nil {
+			if err := fn(Item{Skip: e.skip}); err != nil {
+				return err
+			}
+			continue
+		}
+		if err := Read(*e.in, opt, fn); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
 func walk(t *testing.T, paths []string, opt Options) []Item {
 	t.Helper()
 	var items []Item
-	if err := Walk(paths, opt, func(it Item) error {
+	if err := walkAll(paths, opt, func(it Item) error {
 		items = append(items, it)
 		return nil
 	}); err != nil {
-		t.Fatalf("Walk: %v", err)
+		t.Fatalf("walk: %v", err)
 	}
 	return items
 }
@@ -583,7 +603,7 @@ func TestStream(t *testing.T) {
 	}
 	opt := Options{StreamAbove: 100}
 	var items []Item
-	if err := Walk([]string{dir}, opt, func(it Item) error { items = append(items, it); return nil }); err != nil {
+	if err := walkAll([]string{dir}, opt, func(it Item) error { items = append(items, it); return nil }); err != nil {
 		t.Fatal(err)
 	}
 	if len(items) != 3 {
@@ -629,7 +649,7 @@ func TestHugeLine(t *testing.T) {
 func TestFnErrorStops(t *testing.T) {
 	stop := errors.New("stop here")
 	n := 0
-	err := Walk([]string{"../testdata/corpus/walk"}, Options{}, func(Item) error {
+	err := walkAll([]string{"../testdata/corpus/walk"}, Options{}, func(Item) error {
 		n++
 		if n == 3 {
 			return stop
@@ -637,7 +657,7 @@ func TestFnErrorStops(t *testing.T) {
 		return nil
 	})
 	if !errors.Is(err, stop) || n != 3 {
-		t.Errorf("Walk returned %v after %d items, want the callback's error after 3", err, n)
+		t.Errorf("the walk returned %v after %d items, want the callback's error after 3", err, n)
 	}
 }
 

@@ -21,25 +21,6 @@ import (
 // and to guess a format.
 const sniffSize = 8 << 10
 
-// Walk lists paths as List does and reads each input as Read does, calling
-// fn for every document and skip in order. It stops at the first error fn
-// returns and returns it; unreadable inputs are reported as Skips, not as
-// errors.
-func Walk(paths []string, opt Options, fn func(Item) error) error {
-	for _, e := range list(paths, opt) {
-		if e.skip != nil {
-			if err := fn(Item{Skip: e.skip}); err != nil {
-				return err
-			}
-			continue
-		}
-		if err := Read(*e.in, opt, fn); err != nil {
-			return err
-		}
-	}
-	return nil
-}
-
 // Read reads one input and calls fn for each of its documents and skips, in
 // input order. Problems with the input become Skips; Read returns only the
 // first error fn returns, which stops it.
