@@ -42,7 +42,7 @@ func TestFragmentsJSONContract(t *testing.T) {
 		t.Fatalf("got %+v", got)
 	}
 	for _, w := range got.Words {
-		// DESIGN.md: excess = count x (pieces - 1).
+		// The JSON contract (fragments --help): excess = occurrences x (pieces - 1).
 		if d := float64(w.Excess) - float64(w.Count)*(w.Pieces-1); d > 0.01*float64(w.Count) || d < -0.01*float64(w.Count) || len(w.Split) == 0 {
 			t.Errorf("%+v", w)
 		}

@@ -11,13 +11,12 @@ import (
 	"strings"
 )
 
-// Exit statuses, as DESIGN.md fixes them.
+// Exit statuses, as the README's "Exit status" table gives them.
 const (
-	exitOK       = 0
-	exitInput    = 1 // an input or vocabulary could not be read
-	exitUsage    = 2 // bad usage
-	exitCheck    = 3 // the check the command exists for failed
-	exitInternal = 1
+	exitOK    = 0
+	exitInput = 1 // an input or vocabulary could not be read, or any other failure
+	exitUsage = 2 // bad usage
+	exitCheck = 3 // the check the command exists for failed
 )
 
 // memoryLimit is the soft heap limit that the commands whose memory does
@@ -82,7 +81,7 @@ func exitStatus(err error) int {
 		return exitUsage
 	}
 	fmt.Fprintf(os.Stderr, "morsel: %v\n", err)
-	return exitInternal
+	return exitInput
 }
 
 // usageError is a mistake in the command line: exit status 2.
