@@ -1,0 +1,145 @@
+package bpe
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"io"
+)
+
+// WritePair writes v as a vocabulary pair that LoadFiles reads back
+// unchanged: a JSON object of every token, spelled in the byte alphabet, to
+// its id, in id order, one a line, to vocabJSON; and the merges in rank
+// order, one "left right" a line after a version line, to merges. It
+// returns the first write error.
+func WritePair(vocabJSON, merges io.Writer, v *Vocab) error {
+	if err := writeVocabJSON(vocabJSON, v, "", false); err != nil {
+		return fmt.Errorf("writing the vocabulary: %w", err)
+	}
+	w := bufio.NewWriter(merges)
+	w.WriteString("#version: 0.2\n")
+	for _, m := range v.Merges() {
+		w.WriteString(SpellBytes(v.tokens[m[0]]))
+		w.WriteByte(' ')
+		w.WriteString(SpellBytes(v.tokens[m[1]]))
+		w.WriteByte('\n')
+	}
+	if err := w.Flush(); err != nil {
+		return fmt.Errorf("writing the merges: %w", err)
+	}
+	return nil
+}
+
+// writeVocabJSON writes the token -> id object, each line indented by
+// indent. In a bundle (bundle true) a special token is written as its text,
+// as the bundle's added tokens name it; in a pair every token is spelled,
+// so that its bytes come back exactly.
+func writeVocabJSON(out io.Writer, v *Vocab, indent string, bundle bool) error {
+	special := make(map[int]bool, len(v.specials))
+	for _, s := range v.specials {
+		special[s.ID] = true
+	}
+	w := bufio.NewWriter(out)
+	w.WriteString("{")
+	for id, t := range v.tokens {
+		if id > 0 {
+			w.WriteByte(',')
+		}
+		w.WriteString("\n" + indent + "  ")
+		key := SpellBytes(t)
+		if bundle && special[id] {
+			key = string(t)
+		}
+		w.Write(jsonString(key))
+		fmt.Fprintf(w, ": %d", id)
+	}
+	w.WriteString("\n" + indent + "}")
+	return w.Flush()
+}
+
+// jsonString returns s as a JSON string, with <, > and & as themselves.
+func jsonString(s string) []byte {
+	var b bytes.Buffer
+	enc := json.NewEncoder(&b)
+	enc.SetEscapeHTML(false)
+	enc.Encode(s) // a string always encodes
+	return bytes.TrimSuffix(b.Bytes(), []byte{'\n'})
+}
+
+// WriteBundle writes v as a single-file tokenizer bundle (tokenizer.json):
+// a byte-level BPE model with v's tokens and ranked merges, its special
+// tokens as added tokens, and the pre-tokenizer that splits by pattern (""
+// is the GPT-2 rule, which the bundle states as its byte-level
+// pre-tokenizer's own pattern). It returns the first write error.
+func WriteBundle(out io.Writer, v *Vocab, pattern string) error {
+	type added struct {
+		ID         int    `json:"id"`
+		Content    string `json:"content"`
+		SingleWord bool   `json:"single_word"`
+		LStrip     bool   `json:"lstrip"`
+		RStrip     bool   `json:"rstrip"`
+		Normalized bool   `json:"normalized"`
+		Special    bool   `json:"special"`
+	}
+	adds := []added{}
+	for _, s := range v.specials {
+		adds = append(adds, added{ID: s.ID, Content: s.Text, Special: true})
+	}
+	byteLevel := func(useRegex bool) map[string]any {
+		return map[string]any{"type": "ByteLevel", "add_prefix_space": false, "trim_offsets": false, "use_regex": useRegex}
+	}
+	var pre any = byteLevel(true)
+	if pattern != "" {
+		pre = map[string]any{"type": "Sequence", "pretokenizers": []any{
+			map[string]any{"type": "Split", "pattern": map[string]string{"Regex": pattern}, "behavior": "Isolated", "invert": false},
+			byteLevel(false),
+		}}
+	}
+	head := func(w *bufio.Writer, key string, val any) {
+		b, _ := json.Marshal(val) // plain maps and structs always marshal
+		fmt.Fprintf(w, "  %q: %s,\n", key, b)
+	}
+	w := bufio.NewWriter(out)
+	w.WriteString("{\n")
+	head(w, "version", "1.0")
+	head(w, "truncation", nil)
+	head(w, "padding", nil)
+	head(w, "added_tokens", adds)
+	head(w, "normalizer", nil)
+	head(w, "pre_tokenizer", pre)
+	head(w, "post_processor", nil)
+	head(w, "decoder", byteLevel(true))
+	w.WriteString(`  "model": {
+    "type": "BPE",
+    "dropout": null,
+    "unk_token": null,
+    "continuing_subword_prefix": null,
+    "end_of_word_suffix": null,
+    "fuse_unk": false,
+    "byte_fallback": false,
+    "ignore_merges": false,
+    "vocab": `)
+	if err := w.Flush(); err != nil {
+		return fmt.Errorf("writing the bundle: %w", err)
+	}
+	if err := writeVocabJSON(out, v, "    ", true); err != nil {
+		return fmt.Errorf("writing the bundle: %w", err)
+	}
+	w.WriteString(",\n    \"merges\": [")
+	for r, m := range v.Merges() {
+		if r > 0 {
+			w.WriteByte(',')
+		}
+		w.WriteString("\n      [")
+		w.Write(jsonString(SpellBytes(v.tokens[m[0]])))
+		w.WriteString(", ")
+		w.Write(jsonString(SpellBytes(v.tokens[m[1]])))
+		w.WriteByte(']')
+	}
+	w.WriteString("\n    ]\n  }\n}\n")
+	if err := w.Flush(); err != nil {
+		return fmt.Errorf("writing the bundle: %w", err)
+	}
+	return nil
+}
