@@ -460,3 +460,45 @@ func TestLearnErrors(t *testing.T) {
 		t.Fatalf("%d merges from \"abc abc\", want 2 (a b, ab c)", len(got.New))
 	}
 }
+
+// The merges do not depend on the order in which words were first seen.
+func TestLearnIgnoresOrder(t *testing.T) {
+	texts := demoTexts(t)
+	a := countText(gpt2(t, Options{}), texts...)
+	r := rand.New(rand.NewSource(3))
+	var ws []string
+	var ns []int64
+	a.Each(func(w string, n int64) { ws = append(ws, w); ns = append(ns, n) })
+	b := NewWordCount(a.Encoder())
+	for _, i := range r.Perm(len(ws)) {
+		b.add([]byte(ws[i]), ns[i])
+	}
+	la, err := Learn(a, LearnOptions{Merges: 400})
+	if err != nil {
+		t.Fatal(err)
+	}
+	lb, err := Learn(b, LearnOptions{Merges: 400})
+	if err != nil {
+		t.Fatal(err)
+	}
+	sameMerges(t, "shuffled", lb.New, la.New)
+}
+
+func BenchmarkLearn(b *testing.B) {
+	var all []byte
+	for _, s := range demoTexts(b) {
+		all = append(all, s...)
+	}
+	c := countText(gpt2(b, Options{}), string(all))
+	fresh := countText(byteEncoder(b, ""), string(all))
+	b.Run("extend-gpt2-500", func(b *testing.B) {
+		for range b.N {
+			Learn(c, LearnOptions{Merges: 500})
+		}
+	})
+	b.Run("bytes-2000", func(b *testing.B) {
+		for range b.N {
+			Learn(fresh, LearnOptions{Merges: 2000})
+		}
+	})
+}

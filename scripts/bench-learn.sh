@@ -24,7 +24,7 @@ if [ ! -f "$text" ]; then
   mv "$text.tmp" "$text"
 fi
 go build -o "$dir/learnbench" ./scripts/learnbench
-echo "text: $(stat -c %s "$text") bytes ($text)"
+echo "text: $(stat -L -c %s "$text") bytes ($text)"
 echo "machine: $(nproc) cores, $(grep -m1 'model name' /proc/cpuinfo | cut -d: -f2 | sed 's/^ //')"
 
 # run LABEL CMD...: wall seconds and peak KB of one run, as "secs kb"
