@@ -43,6 +43,9 @@ type Options struct {
 type Stats struct {
 	Tokens   int // tokens the text encodes to
 	Specials int // special-token strings the text holds (honoured or not)
+	// Err is set when a bundle's regular expression ran past MatchTimeout
+	// (it wraps ErrPatternTimeout): the counts are then not exact.
+	Err error
 }
 
 // Encoder turns text into token ids under one vocabulary. It is safe for
@@ -122,6 +125,20 @@ func encodeTo[T int | uint32](e *Encoder, dst []T, text []byte) ([]T, Stats) {
 	defer e.put(s)
 	var st Stats
 	start := len(dst)
+	if e.v.pipe != nil {
+		switch d := any(dst).(type) {
+		case []int:
+			s.mode, s.ints = sinkInts, d
+			e.runBundle(s, text, &st, func(id uint32, _, _ int) { s.ints = append(s.ints, int(id)) })
+			dst, s.ints = any(s.ints).([]T), nil
+		case []uint32:
+			s.mode, s.u32 = sinkU32, d
+			e.runBundle(s, text, &st, func(id uint32, _, _ int) { s.u32 = append(s.u32, id) })
+			dst, s.u32 = any(s.u32).([]T), nil
+		}
+		st.Tokens = len(dst) - start
+		return dst, st
+	}
 	e.segments(text, &st, func(seg []byte, special int) {
 		if special >= 0 {
 			dst = append(dst, T(e.specIDs[special]))
@@ -151,6 +168,12 @@ func (e *Encoder) CountStats(text []byte) Stats {
 	s := e.get()
 	defer e.put(s)
 	var st Stats
+	if e.v.pipe != nil {
+		s.mode, s.n = sinkCount, 0
+		e.runBundle(s, text, &st, func(uint32, int, int) { s.n++ })
+		st.Tokens = s.n
+		return st
+	}
 	e.segments(text, &st, func(seg []byte, special int) {
 		if special >= 0 {
 			st.Tokens++
@@ -174,6 +197,25 @@ func (e *Encoder) CountStats(text []byte) Stats {
 // The spans cover text without gaps; BPE never merges across them.
 func (e *Encoder) Split(text []byte, fn func(start, end int, special bool)) {
 	var st Stats
+	if e.v.pipe != nil {
+		s := e.get()
+		defer e.put(s)
+		s.mode, s.spanFn, s.cur = sinkSpans, fn, 0
+		e.runBundle(s, text, &st, func(_ uint32, a, b int) {
+			if a > s.cur {
+				fn(s.cur, a, false)
+			}
+			if b > a {
+				fn(a, b, true)
+			}
+			s.cur = max(s.cur, b)
+		})
+		if s.cur < len(text) {
+			fn(s.cur, len(text), false)
+		}
+		s.spanFn = nil
+		return
+	}
 	base := 0
 	e.segments(text, &st, func(seg []byte, special int) {
 		if special >= 0 {
@@ -273,9 +315,13 @@ const streamChunk = 1 << 20
 // of the whole text; with another split pattern, or special strings that
 // hold white space, it reads the whole text first.
 func (e *Encoder) CountReader(r io.Reader) (Stats, int64, error) {
-	if e.re != nil || e.specialsHoldSpace() {
+	if e.re != nil || e.v.pipe != nil || e.specialsHoldSpace() {
 		all, err := io.ReadAll(r)
-		return e.CountStats(all), int64(len(all)), err
+		st := e.CountStats(all)
+		if err == nil {
+			err = st.Err
+		}
+		return st, int64(len(all)), err
 	}
 	var total Stats
 	var n int64
@@ -344,4 +390,15 @@ func (e *Encoder) specialsHoldSpace() bool {
 		}
 	}
 	return false
+}
+
+// runBundle takes text through the bundle's pipeline in s.mode, giving
+// added tokens to added, and counts the special-token strings.
+func (e *Encoder) runBundle(s *state, text []byte, st *Stats, added func(id uint32, start, end int)) {
+	s.run(text, e.mode == SpecialsHonor, added)
+	st.Err = s.err
+	s.err = nil
+	for _, sp := range e.specials {
+		st.Specials += bytes.Count(text, sp)
+	}
 }

@@ -21,6 +21,23 @@ type state struct {
 	ranks []uint32
 	mids  []uint32
 	out   []uint32
+	key   []byte // a symbol's spelling with its prefix or suffix
+
+	// a bundle's pipeline (pipeline.go, normalize.go, pretok.go)
+	stages     []stage
+	mode       int
+	n          int
+	ints       []int
+	u32        []uint32
+	spanFn     func(start, end int, special bool)
+	cur        int
+	err        error
+	nbuf, pbuf [][]byte
+	nal, pal   [][]int32
+	mbuf       [][]int
+	parts      [][]part
+	ident      []int32
+	ms         []int
 	// for long pre-tokens
 	next, prev []int32
 	heap       []uint64
@@ -146,7 +163,7 @@ func (s *state) valueIDs(v uint64) []uint32 {
 // piece returns the ids of one pre-token. The slice is valid until the next
 // call.
 func (s *state) piece(p []byte) []uint32 {
-	if len(p) == 1 {
+	if len(p) == 1 && s.v.plain {
 		s.out = append(s.out[:0], s.v.byteID[p[0]])
 		return s.out
 	}
@@ -154,9 +171,13 @@ func (s *state) piece(p []byte) []uint32 {
 		return s.valueIDs(v)
 	}
 	var ids []uint32
-	if len(p) <= shortest {
+	switch {
+	case s.v.model.ignoreMerges && s.whole(p):
+		// the pre-token is itself a token: s.out holds it
+		ids = s.out
+	case len(p) <= shortest:
 		ids = s.mergeShort(p)
-	} else {
+	default:
 		ids = s.mergeLong(p)
 	}
 	if len(p) <= cacheLongest {
@@ -186,7 +207,7 @@ func (s *state) piece(p []byte) []uint32 {
 
 // appendPiece appends the ids of one pre-token to dst.
 func appendPiece[T int | uint32](s *state, dst []T, p []byte) []T {
-	if len(p) == 1 {
+	if len(p) == 1 && s.v.plain {
 		return append(dst, T(s.v.byteID[p[0]]))
 	}
 	var ids []uint32
@@ -210,7 +231,7 @@ func appendPiece[T int | uint32](s *state, dst []T, p []byte) []T {
 
 // count returns the number of tokens of one pre-token.
 func (s *state) count(p []byte) int {
-	if len(p) == 1 {
+	if len(p) == 1 && s.v.plain {
 		return 1
 	}
 	if v, ok := s.cached(p); ok {
@@ -229,10 +250,7 @@ func (s *state) rankOf(a, b uint32) (rank, merged uint32) {
 // mergeShort applies the merges to a short pre-token: repeatedly merge the
 // adjacent pair of lowest rank, the leftmost on ties.
 func (s *state) mergeShort(p []byte) []uint32 {
-	syms := s.syms[:0]
-	for _, b := range p {
-		syms = append(syms, s.v.byteID[b])
-	}
+	syms := s.initial(s.syms[:0], p)
 	ranks, mids := s.ranks[:0], s.mids[:0]
 	for i := 0; i+1 < len(syms); i++ {
 		r, m := s.rankOf(syms[i], syms[i+1])
@@ -276,14 +294,16 @@ func (s *state) mergeShort(p []byte) []uint32 {
 // lower rank goes first. Entries made stale by a merge are dropped when
 // reached.
 func (s *state) mergeLong(p []byte) []uint32 {
-	n := len(p)
-	if cap(s.syms) < n {
-		s.syms = make([]uint32, 0, n)
-		s.out = make([]uint32, 0, n)
+	if cap(s.syms) < len(p) {
+		s.syms = make([]uint32, 0, len(p))
+		s.out = make([]uint32, 0, len(p))
 	}
-	syms := s.syms[:0]
-	for _, b := range p {
-		syms = append(syms, s.v.byteID[b])
+	syms := s.initial(s.syms[:0], p)
+	n := len(syms)
+	if n < 2 {
+		s.syms = syms
+		s.out = append(s.out[:0], syms...)
+		return s.out
 	}
 	next, prev := grow32(s.next, n), grow32(s.prev, n)
 	for i := 0; i < n; i++ {

@@ -27,6 +27,12 @@ type Vocab struct {
 	specials []Special
 	window   int
 
+	// plain is plainModel(), kept for the hot path.
+	plain bool
+	model modelOpts
+	pipe  *pipeline // a bundle's normalizer, pre-tokenizer and added tokens; nil for a pair
+	spell [][]byte  // a character-level bundle's tokens as written, by id
+
 	idOnce sync.Once
 	ids    map[string]int // raw bytes -> id, built on first use
 }
@@ -168,7 +174,7 @@ func Parse(vocabName string, vocabJSON []byte, mergesName string, merges []byte)
 	if err != nil {
 		return nil, err
 	}
-	v := &Vocab{name: vocabName, tokens: raws, ids: make(map[string]int, len(raws))}
+	v := &Vocab{name: vocabName, tokens: raws, ids: make(map[string]int, len(raws)), plain: true}
 	for id, t := range raws {
 		v.ids[string(t)] = id
 	}
