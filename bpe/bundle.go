@@ -539,8 +539,8 @@ func (v *Vocab) Family() string {
 // Template returns the ids that the bundle's post-processor adds to every
 // single sequence (a start token, say), in order; nil when none.
 func (v *Vocab) Template() []int {
-	if v.pipe == nil {
-		return nil
+	if v.pipe == nil || v.pipe.template == nil {
+		return []int{}
 	}
 	return v.pipe.template
 }

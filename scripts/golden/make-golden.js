@@ -8,6 +8,15 @@
 // Run: cd scripts/golden && npm ci && node make-golden.js
 // Options: --vocab-dir DIR (default /work/shared/vocab/gpt2),
 //          --check (exit 1 if the JSON on disk differs from a fresh run).
+//
+// With --bundle FILE --name NAME it writes testdata/golden/NAME-ids.json
+// instead: the ids of the same texts under a tokenizer bundle
+// (tokenizer.json, with tokenizer_config.json beside it when there is one),
+// in two modes: "ordinary" (special added tokens left out of the bundle, so
+// their strings are text) and "special" (all added tokens), plus the ids a
+// single sequence gets from the post-processor ("template" cases).
+// node make-golden.js --all-bundles rewrites every bundle golden that
+// bpe/bundle_golden_test.go reads.
 
 import { createHash } from "node:crypto";
 import { readFileSync, readdirSync, writeFileSync, existsSync } from "node:fs";
@@ -186,7 +195,108 @@ const INLINE_SPECIAL = [
   ["endoftext-partial-special", "<|endoftext|"],
 ];
 
+// BUNDLES lists the bundle goldens: the real bundles from ../shared/vocab
+// and the small ones under testdata/bundles/.
+const BUNDLES = [
+  ["qwen3", "/work/shared/vocab/qwen3/tokenizer.json"],
+  ["metaspace-32k", "/work/shared/vocab/metaspace-32k/tokenizer.json"],
+];
+
+// Short texts for bundles: the inline texts above, and some that probe
+// added tokens, digits, case and spaces.
+const BUNDLE_INLINE = [
+  ...INLINE,
+  ["digits-run", "0123456789 12 345 6789 3.14159 1,000,000 ١٢٣ ①②"],
+  ["digits-in-words", "x86_64 v1.2.3 2nd 0xFF 1e-9 H2O"],
+  ["case-contractions", "I'M WE'LL YOU'RE THEY'VE SHE'D IT'S 'S 'Ll"],
+  ["leading-symbols", "(hello) [world] {x} \"quoted\" 'single' --flag ..dots"],
+  ["newline-runs", "a\n\nb\r\n\r\nc \n d\t\n\te"],
+  ["spaces-only-lines", "line one   \n   \n\tline two\n"],
+  ["metaspace-char", "a \u2581 b\u2581\u2581c \u2581"],
+  ["leading-space", " starts with a space"],
+  ["two-leading-spaces", "  two spaces"],
+  ["nfc-nfd", "e\u0301 caf\u00e9 cafe\u0301 \u212b \u00c5"],
+  ["added-in-text", "Ask <think>why</think> then <tool_call>{\"a\":1}</tool_call>"],
+  ["added-glued", "x<think>y</think>z<|fim_prefix|>"],
+  ["special-strings-as-text", "<|endoftext|> and <|im_start|>user<|im_end|> and <s> </s> <unk>"],
+  ["byte-fallback", "\u{1F9EC} \u{10348} \u0f3a \u2a6d6 \uABCD"],
+];
+const BUNDLE_INLINE_SPECIAL = [
+  ["special-strings", "<|endoftext|> and <|im_start|>user<|im_end|> and <s> </s> <unk>"],
+  ["special-glued", "<|im_start|>system\nYou help.<|im_end|>\n<s>x</s>"],
+  ["special-twice", "<|endoftext|><|endoftext|>x<s><s>"],
+];
+
+// buildBundle returns a tokenizer for the bundle; without honorSpecials
+// the special added tokens are left out, so their strings are text.
+function buildBundle(file, honorSpecials) {
+  const json = JSON.parse(readFileSync(file, "utf8"));
+  const cfgFile = join(dirname(file), "tokenizer_config.json");
+  const cfg = existsSync(cfgFile) ? JSON.parse(readFileSync(cfgFile, "utf8")) : {};
+  if (!honorSpecials) json.added_tokens = (json.added_tokens ?? []).filter((t) => !t.special);
+  return new Tokenizer(json, { ...cfg, clean_up_tokenization_spaces: false });
+}
+
+function bundleGolden(name, file) {
+  const raw = readFileSync(file);
+  const plain = buildBundle(file, false);
+  const honor = buildBundle(file, true);
+  const ids = (tok, text) => tok.encode(text, { add_special_tokens: false }).ids;
+  const cases = [];
+  const files = readdirSync(corpusDir).filter((f) => !f.startsWith(".")).sort();
+  for (const f of files) {
+    const buf = readFileSync(join(corpusDir, f));
+    const text = buf.toString("utf8");
+    checkText(f, text, buf);
+    cases.push({ name: f, source: "corpus", mode: "ordinary", bytes: buf.length, sha256: sha256(buf), ids: ids(plain, text) });
+  }
+  for (const [n, text] of BUNDLE_INLINE) {
+    const buf = Buffer.from(text, "utf8");
+    cases.push({ name: n, source: "inline", mode: "ordinary", text, bytes: buf.length, sha256: sha256(buf), ids: ids(plain, text) });
+  }
+  for (const [n, text] of BUNDLE_INLINE_SPECIAL) {
+    const buf = Buffer.from(text, "utf8");
+    cases.push({ name: n, source: "inline", mode: "special", text, bytes: buf.length, sha256: sha256(buf), ids: ids(honor, text) });
+  }
+  // What the post-processor adds to one sequence: the ids of a text with
+  // the template, less those without.
+  const text = "template probe";
+  const withT = honor.encode(text, { add_special_tokens: true }).ids;
+  const without = ids(honor, text);
+  const head = {
+    library: LIBRARY,
+    version: libVersion,
+    generator: "scripts/golden/make-golden.js --bundle",
+    bundle: name,
+    bundle_sha256: sha256(raw),
+    modes: {
+      ordinary: "special added tokens left out of the bundle: their strings are text",
+      special: "every added token as the bundle has it",
+    },
+    template_probe: { text, with_template: withT, without_template: without },
+  };
+  const headJSON = JSON.stringify(head, null, 2);
+  return headJSON.slice(0, -2) + ',\n  "cases": [\n' + cases.map((c) => "    " + JSON.stringify(c)).join(",\n") + "\n  ]\n}\n";
+}
+
+function writeOrCheck(outPath, out) {
+  if (checkOnly) {
+    const old = existsSync(outPath) ? readFileSync(outPath, "utf8") : "";
+    if (old !== out) fail(`${outPath} is out of date; run node make-golden.js`);
+    console.log(`make-golden: ${outPath} is up to date`);
+    return;
+  }
+  writeFileSync(outPath, out);
+  console.log(`make-golden: wrote ${outPath}`);
+}
+
 function main() {
+  const bundleFile = arg("--bundle", null);
+  if (bundleFile || process.argv.includes("--all-bundles")) {
+    const list = bundleFile ? [[arg("--name", "bundle"), bundleFile]] : allBundles();
+    for (const [name, file] of list) writeOrCheck(join(root, "testdata", "golden", `${name}-ids.json`), bundleGolden(name, file));
+    return;
+  }
   const pair = loadPair(vocabDir);
   const plain = build(pair, false);
   const honor = build(pair, true);
@@ -241,6 +351,16 @@ function main() {
   }
   writeFileSync(outFile, out);
   console.log(`make-golden: wrote ${cases.length} cases, ${total} ids with ${LIBRARY} ${libVersion} to ${outFile}`);
+}
+
+// allBundles lists BUNDLES and every small bundle in testdata/bundles/
+// (its golden named after the file).
+function allBundles() {
+  const dir = join(root, "testdata", "bundles");
+  const small = existsSync(dir)
+    ? readdirSync(dir).filter((f) => f.endsWith(".json") && !f.endsWith("_config.json")).sort().map((f) => [f.replace(/\.json$/, ""), join(dir, f)])
+    : [];
+  return [...BUNDLES, ...small];
 }
 
 main();

@@ -1,0 +1,237 @@
+package bpe
+
+import (
+	"bytes"
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// miniBundle returns a small byte-level-free bundle: a character vocabulary
+// of a, b, c, ab, abc with two merges, and the given extra top-level
+// members (each `"key": value`).
+func miniBundle(model string, extra ...string) string {
+	if model == "" {
+		model = `"type": "BPE", "vocab": {"a": 0, "b": 1, "c": 2, "ab": 3, "abc": 4, "<unk>": 5}, "merges": ["a b", "ab c"], "unk_token": "<unk>"`
+	}
+	parts := append([]string{`"model": {` + model + `}`}, extra...)
+	return "{\n" + strings.Join(parts, ",\n") + "\n}\n"
+}
+
+func TestBundleErrors(t *testing.T) {
+	cases := []struct {
+		name, data, want string
+	}{
+		{"empty", "", "empty file"},
+		{"truncated", miniBundle("")[:40], "cut short"},
+		{"not JSON", "{model: 1}", "not valid JSON"},
+		{"no model", `{"normalizer": null}`, `no "model"`},
+		{"unigram", miniBundle(`"type": "Unigram", "vocab": []`), `model type "Unigram" is not implemented`},
+		{"dropout", miniBundle(`"type": "BPE", "dropout": 0.1, "vocab": {"a": 0}, "merges": []`), "dropout 0.1"},
+		{"dropout zero ok but missing token", miniBundle(`"type": "BPE", "dropout": 0, "vocab": {"a": 0}, "merges": ["a b"]`), `names "b", which is not in the vocabulary`},
+		{"merge makes missing", miniBundle(`"type": "BPE", "vocab": {"a": 0, "b": 1}, "merges": [["a", "b"]]`), `makes "ab"`},
+		{"merge shape", miniBundle(`"type": "BPE", "vocab": {"a": 0, "b": 1}, "merges": ["a b c"]`), "two tokens separated by one space"},
+		{"duplicate id", miniBundle(`"type": "BPE", "vocab": {"a": 0, "b": 0}, "merges": []`), "id 0 is given to"},
+		{"duplicate token", miniBundle(`"type": "BPE", "vocab": {"a": 0, "a": 1}, "merges": []`), `token "a" appears twice`},
+		{"bad id", miniBundle(`"type": "BPE", "vocab": {"a": -1}, "merges": []`), "outside"},
+		{"fractional id", miniBundle(`"type": "BPE", "vocab": {"a": 1.5}, "merges": []`), "whole number"},
+		{"unknown normalizer", miniBundle("", `"normalizer": {"type": "BertNormalizer"}`), `normalizer type "BertNormalizer" is not implemented`},
+		{"unknown in sequence", miniBundle("", `"normalizer": {"type": "Sequence", "normalizers": [{"type": "NFC"}, {"type": "Bogus"}]}`), `normalizer Sequence[1] Bogus`},
+		{"unknown pre-tokenizer", miniBundle("", `"pre_tokenizer": {"type": "FixedLength", "length": 3}`), `pre-tokenizer type "FixedLength" is not implemented`},
+		{"bad regex", miniBundle("", `"pre_tokenizer": {"type": "Split", "pattern": {"Regex": "(a"}, "behavior": "Isolated", "invert": false}`), "does not compile"},
+		{"empty-matching regex", miniBundle("", `"pre_tokenizer": {"type": "Split", "pattern": {"Regex": "a*"}, "behavior": "Isolated", "invert": false}`), "matches the empty text"},
+		{"bad behavior", miniBundle("", `"pre_tokenizer": {"type": "Split", "pattern": {"String": "a"}, "behavior": "Sideways", "invert": false}`), `behavior "Sideways"`},
+		{"unknown post-processor", miniBundle("", `"post_processor": {"type": "Magic"}`), `post-processor type "Magic"`},
+		{"template names nothing", miniBundle("", `"post_processor": {"type": "TemplateProcessing", "single": [{"SpecialToken": {"id": "<s>", "type_id": 0}}], "special_tokens": {}}`), `names "<s>"`},
+		{"added token clash", miniBundle("", `"added_tokens": [{"id": 0, "content": "zz", "special": true}]`), `which the vocabulary gives to "a"`},
+		{"unk missing", miniBundle(`"type": "BPE", "vocab": {"a": 0}, "merges": [], "unk_token": "<unk>"`), `unk_token "<unk>"`},
+		{"byte-level lacks bytes", miniBundle("", `"pre_tokenizer": {"type": "ByteLevel"}`), "one-byte token"},
+	}
+	for _, c := range cases {
+		_, err := ParseBundle("tok.json", []byte(c.data), "", nil)
+		if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "tok.json") {
+			t.Errorf("%s: error %v, want one naming tok.json and saying %q", c.name, err, c.want)
+			continue
+		}
+		if !errors.Is(err, ErrSyntax) {
+			t.Errorf("%s: error %v does not wrap ErrSyntax", c.name, err)
+		}
+	}
+}
+
+// An error names the line of the entry at fault.
+func TestBundleErrorLine(t *testing.T) {
+	data := miniBundle(`"type": "BPE",
+"vocab": {"a": 0, "b": 1, "ab": 2},
+"merges": [
+"a b",
+"a q"
+]`)
+	_, err := ParseBundle("tok.json", []byte(data), "", nil)
+	if err == nil || !strings.Contains(err.Error(), "tok.json:6:") || !strings.Contains(err.Error(), "model.merges[1]") {
+		t.Fatalf("error %v, want it at tok.json:6 naming model.merges[1]", err)
+	}
+}
+
+func TestConfigWindow(t *testing.T) {
+	for _, c := range []struct {
+		cfg  string
+		want int
+	}{
+		{`{"model_max_length": 131072}`, 131072},
+		{`{"model_max_length": 1000000000000000019884624838656}`, 0}, // the 1e30 placeholder
+		{`{"model_max_length": 1e30}`, 0},
+		{`{}`, 0},
+	} {
+		v, err := ParseBundle("tok.json", []byte(miniBundle("")), "tokenizer_config.json", []byte(c.cfg))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if v.Window() != c.want {
+			t.Errorf("%s: window %d, want %d", c.cfg, v.Window(), c.want)
+		}
+	}
+	if _, err := ParseBundle("tok.json", []byte(miniBundle("")), "tokenizer_config.json", []byte(`{"model_max_length": "x"}`)); err == nil {
+		t.Error("a model_max_length that is not a number is accepted")
+	}
+}
+
+// A vocabulary file must be a regular file.
+func TestLoadBundleNotRegular(t *testing.T) {
+	if _, err := os.Stat("/dev/zero"); err != nil {
+		t.Skip("no /dev/zero")
+	}
+	_, err := LoadBundle("/dev/zero")
+	if err == nil || !strings.Contains(err.Error(), "not a regular file") {
+		t.Fatalf("LoadBundle(/dev/zero): %v", err)
+	}
+	dir := t.TempDir()
+	p := filepath.Join(dir, "tokenizer.json")
+	if err := os.WriteFile(p, []byte(miniBundle("")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := LoadBundle(dir); err != nil {
+		t.Fatalf("LoadBundle(dir): %v", err)
+	}
+}
+
+// Every pre-token span that Split gives covers the text without gaps or
+// overlaps, under both real bundles and every small one, on the golden
+// corpus and on hostile bytes.
+func TestBundleSplitTilesText(t *testing.T) {
+	texts := [][]byte{[]byte(""), []byte(" "), []byte("ab\xff\xfe cd"), []byte("  x  \n\n y\u2581z"), []byte("<think>a</think><|endoftext|>")}
+	for _, data := range corpusTexts(t) {
+		texts = append(texts, data)
+	}
+	for _, name := range bundleGoldenNames(t) {
+		v, _ := loadTestBundle(t, name)
+		for _, mode := range []SpecialMode{SpecialsAsText, SpecialsHonor} {
+			enc, err := NewEncoder(v, Options{Specials: mode})
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, text := range texts {
+				var rebuilt []byte
+				pos := 0
+				enc.Split(text, func(a, b int, _ bool) {
+					if a != pos || b <= a || b > len(text) {
+						t.Fatalf("%s: span [%d,%d) after %d in a text of %d bytes", name, a, b, pos, len(text))
+					}
+					rebuilt = append(rebuilt, text[a:b]...)
+					pos = b
+				})
+				if !bytes.Equal(rebuilt, text) {
+					t.Fatalf("%s: the spans rebuild %d of %d bytes", name, len(rebuilt), len(text))
+				}
+			}
+		}
+	}
+}
+
+// Cutting a metaspace text before each replacement character that follows
+// another character gives the ids of the whole text as one merge problem.
+func TestMetaspaceCutKeepsIDs(t *testing.T) {
+	v, _ := loadTestBundle(t, "metaspace-32k")
+	if !v.pipe.cutBefore {
+		t.Fatal("metaspace-32k: the load check refused the cut")
+	}
+	enc, err := NewEncoder(v, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	texts := corpusTexts(t)
+	texts["spaces"] = []byte("a  b   c\u2581\u2581d \u2581 e\u2581")
+	for name, text := range texts {
+		cut := enc.Encode(text)
+		v.pipe.cutBefore = false
+		whole := enc.Encode(text)
+		v.pipe.cutBefore = true
+		if !eqInts(cut, whole) {
+			t.Errorf("%s: %d ids cut, %d whole", name, len(cut), len(whole))
+		}
+	}
+}
+
+// A vocabulary with a token that holds the replacement character after
+// another character cannot be cut there.
+func TestMetaspaceCutRefused(t *testing.T) {
+	data := miniBundle(`"type": "BPE", "vocab": {"▁": 0, "a": 1, "a▁": 2}, "merges": ["a ▁"]`,
+		`"normalizer": {"type": "Replace", "pattern": {"String": " "}, "content": "▁"}`)
+	v, err := ParseBundle("tok.json", []byte(data), "", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if v.pipe.cutBefore {
+		t.Fatal("a vocabulary holding \"a▁\" allows a cut before ▁")
+	}
+	enc, _ := NewEncoder(v, Options{})
+	if got := enc.Encode([]byte("a a")); !eqInts(got, []int{2, 1}) {
+		t.Errorf("ids %v, want [2 1] (a▁ then a)", got)
+	}
+}
+
+// A regular expression that runs past the time limit is reported, not
+// waited for.
+func TestBundleRegexTimeout(t *testing.T) {
+	if testing.Short() {
+		t.Skip("waits for the match timeout")
+	}
+	data := miniBundle("", `"pre_tokenizer": {"type": "Split", "pattern": {"Regex": "(a+)+$"}, "behavior": "Isolated", "invert": false}`)
+	v, err := ParseBundle("tok.json", []byte(data), "", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	enc, _ := NewEncoder(v, Options{})
+	st := enc.CountStats([]byte(strings.Repeat("a", 40) + "b"))
+	if !errors.Is(st.Err, ErrPatternTimeout) {
+		t.Fatalf("Err = %v, want ErrPatternTimeout", st.Err)
+	}
+	if _, _, err := enc.CountReader(strings.NewReader(strings.Repeat("a", 40) + "b")); !errors.Is(err, ErrPatternTimeout) {
+		t.Fatalf("CountReader error %v, want ErrPatternTimeout", err)
+	}
+}
+
+func FuzzParseBundle(f *testing.F) {
+	f.Add([]byte(miniBundle("")))
+	f.Add([]byte(miniBundle("", `"normalizer": {"type": "Sequence", "normalizers": [{"type": "NFKC"}, {"type": "Lowercase"}]}`, `"pre_tokenizer": {"type": "Metaspace", "replacement": "▁", "prepend_scheme": "first", "split": true}`)))
+	f.Add([]byte(miniBundle("", `"added_tokens": [{"id": 6, "content": "<s>", "special": true, "lstrip": true}]`, `"post_processor": {"type": "TemplateProcessing", "single": [{"SpecialToken": {"id": "<s>"}}], "special_tokens": {"<s>": {"ids": [6]}}}`)))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		v, err := ParseBundle("tok.json", data, "", nil)
+		if err != nil {
+			if !strings.Contains(err.Error(), "tok.json") {
+				t.Fatalf("error %q does not name the file", err)
+			}
+			return
+		}
+		enc, err := NewEncoder(v, Options{Specials: SpecialsHonor})
+		if err != nil {
+			return
+		}
+		text := []byte("abc ab\xffc <s> a")
+		if n := enc.Count(text); n != len(enc.Encode(text)) {
+			t.Fatalf("Count %d, Encode %d", n, len(enc.Encode(text)))
+		}
+	})
+}
