@@ -1,6 +1,8 @@
 package bpe
 
 import (
+	"morsel/internal/textfile"
+
 	"bytes"
 	"encoding/json"
 	"fmt"
@@ -186,7 +188,7 @@ func parseBundleJSON(name string, data []byte) (*bundleSpec, error) {
 		}
 		raw, _ := json.Marshal(small)
 		if err := json.Unmarshal(raw, &b.model); err != nil {
-			return &posError{name, lineOf(data, int64(at)), "model: " + err.Error()}
+			return &posError{name, textfile.Line(data, int64(at)), "model: " + err.Error()}
 		}
 		if _, ok := small["type"]; !ok {
 			b.model.Type = "" // checked below
@@ -440,7 +442,7 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 	}
 	p.cutBefore = metaspaceCut(v, p)
 	v.pipe = p
-	v.plain = v.plainModel() && norm == nil
+	v.slow = !v.plainModel()
 	if config != nil {
 		w, err := configWindow(configName, config)
 		if err != nil {

@@ -91,7 +91,7 @@ func DecodeCompact(data []byte) (*Vocab, error) {
 		p = p[n:]
 		return b
 	}
-	v := &Vocab{plain: true}
+	v := &Vocab{}
 	v.name = string(take(uv()))
 	v.window = int(uv())
 	nt := uv()

@@ -1,6 +1,8 @@
 package bpe
 
 import (
+	"morsel/internal/textfile"
+
 	"fmt"
 	"strconv"
 	"unicode/utf16"
@@ -18,7 +20,7 @@ type jscan struct {
 }
 
 func (j *jscan) errAt(off int, format string, args ...any) error {
-	return &posError{j.name, lineOf(j.data, int64(off)), fmt.Sprintf(format, args...)}
+	return &posError{j.name, textfile.Line(j.data, int64(off)), fmt.Sprintf(format, args...)}
 }
 
 func (j *jscan) cutShort() error {

@@ -163,7 +163,7 @@ func (s *state) valueIDs(v uint64) []uint32 {
 // piece returns the ids of one pre-token. The slice is valid until the next
 // call.
 func (s *state) piece(p []byte) []uint32 {
-	if len(p) == 1 && s.v.plain {
+	if len(p) == 1 && !s.v.slow {
 		s.out = append(s.out[:0], s.v.byteID[p[0]])
 		return s.out
 	}
@@ -207,7 +207,7 @@ func (s *state) piece(p []byte) []uint32 {
 
 // appendPiece appends the ids of one pre-token to dst.
 func appendPiece[T int | uint32](s *state, dst []T, p []byte) []T {
-	if len(p) == 1 && s.v.plain {
+	if len(p) == 1 && !s.v.slow {
 		return append(dst, T(s.v.byteID[p[0]]))
 	}
 	var ids []uint32
@@ -231,7 +231,7 @@ func appendPiece[T int | uint32](s *state, dst []T, p []byte) []T {
 
 // count returns the number of tokens of one pre-token.
 func (s *state) count(p []byte) int {
-	if len(p) == 1 && s.v.plain {
+	if len(p) == 1 && !s.v.slow {
 		return 1
 	}
 	if v, ok := s.cached(p); ok {

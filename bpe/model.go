@@ -32,7 +32,7 @@ func (v *Vocab) plainModel() bool {
 // initial appends the starting symbols of pre-token p to syms.
 func (s *state) initial(syms []uint32, p []byte) []uint32 {
 	v := s.v
-	if v.plain {
+	if !v.slow {
 		for _, b := range p {
 			syms = append(syms, v.byteID[b])
 		}

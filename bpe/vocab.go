@@ -27,8 +27,9 @@ type Vocab struct {
 	specials []Special
 	window   int
 
-	// plain is plainModel(), kept for the hot path.
-	plain bool
+	// slow is !plainModel(), kept for the hot path: the zero value is
+	// plain byte-level BPE.
+	slow bool
 	model modelOpts
 	pipe  *pipeline // a bundle's normalizer, pre-tokenizer and added tokens; nil for a pair
 	spell [][]byte  // a character-level bundle's tokens as written, by id
@@ -174,7 +175,7 @@ func Parse(vocabName string, vocabJSON []byte, mergesName string, merges []byte)
 	if err != nil {
 		return nil, err
 	}
-	v := &Vocab{name: vocabName, tokens: raws, ids: make(map[string]int, len(raws)), plain: true}
+	v := &Vocab{name: vocabName, tokens: raws, ids: make(map[string]int, len(raws))}
 	for id, t := range raws {
 		v.ids[string(t)] = id
 	}
