@@ -29,7 +29,7 @@ type Vocab struct {
 
 	// slow is !plainModel(), kept for the hot path: the zero value is
 	// plain byte-level BPE.
-	slow bool
+	slow  bool
 	model modelOpts
 	pipe  *pipeline // a bundle's normalizer, pre-tokenizer and added tokens; nil for a pair
 	spell [][]byte  // a character-level bundle's tokens as written, by id
