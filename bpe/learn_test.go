@@ -125,7 +125,7 @@ func checkEncodes(t *testing.T, c *WordCount, got *Learned) {
 	t.Helper()
 	before, after := int64(0), int64(0)
 	old := c.Encoder()
-	e, err := NewEncoder(got.Vocab, Options{SplitPattern: patternOf(old)})
+	e, err := NewEncoder(got.Vocab, Options{SplitPattern: splitPattern(old)})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -140,13 +140,6 @@ func checkEncodes(t *testing.T, c *WordCount, got *Learned) {
 	if before-after != saved {
 		t.Fatalf("re-encoding saves %d tokens (%d to %d); the learner counted %d", before-after, before, after, saved)
 	}
-}
-
-func patternOf(e *Encoder) string {
-	if e.re == nil {
-		return ""
-	}
-	return e.re.re.String()
 }
 
 // randomCorpus makes texts over a small alphabet, so that pairs repeat,
@@ -501,4 +494,68 @@ func BenchmarkLearn(b *testing.B) {
 			Learn(fresh, LearnOptions{Merges: 2000})
 		}
 	})
+}
+
+// Each new token's uses, checked against encoding every word plainly.
+func TestUses(t *testing.T) {
+	c := countText(gpt2(t, Options{}), demoTexts(t)...)
+	l, err := Learn(c, LearnOptions{Merges: 120})
+	if err != nil {
+		t.Fatal(err)
+	}
+	uses, err := l.Uses(c, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	e, _ := NewEncoder(l.Vocab, Options{})
+	occurs := map[int]int64{}
+	holders := map[int]map[string]int64{}
+	c.Each(func(w string, n int64) {
+		for _, id := range e.EncodePiece([]byte(w)) {
+			if id >= l.Base.Size() {
+				occurs[id] += n
+				if holders[id] == nil {
+					holders[id] = map[string]int64{}
+				}
+				holders[id][w] = n
+			}
+		}
+	})
+	used := 0
+	for i, u := range uses {
+		if u.ID != l.New[i].ID || occurs[u.ID] != u.Occurs {
+			t.Fatalf("token %d: %+v, want id %d occurring %d times", i, u, l.New[i].ID, occurs[u.ID])
+		}
+		if len(u.Words) > 3 || len(u.Words) != min(3, len(holders[u.ID])) {
+			t.Fatalf("token %q: %d words, %d hold it", u.Token, len(u.Words), len(holders[u.ID]))
+		}
+		for k, w := range u.Words {
+			if holders[u.ID][w.Word] != w.Count {
+				t.Fatalf("token %q: %q counted %d", u.Token, w.Word, w.Count)
+			}
+			for h, n := range holders[u.ID] {
+				if n > u.Words[len(u.Words)-1].Count && !hasWord(u.Words, h) {
+					t.Fatalf("token %q: %q (%d) is more frequent than the words listed %v", u.Token, h, n, u.Words)
+				}
+			}
+			if k > 0 && w.Count > u.Words[k-1].Count {
+				t.Fatalf("token %q: words not by count %v", u.Token, u.Words)
+			}
+		}
+		if u.Occurs > 0 {
+			used++
+		}
+	}
+	if used == 0 {
+		t.Fatal("no new token is used")
+	}
+}
+
+func hasWord(us []WordUse, w string) bool {
+	for _, u := range us {
+		if u.Word == w {
+			return true
+		}
+	}
+	return false
 }
