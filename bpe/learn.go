@@ -82,7 +82,8 @@ func ByteVocab() *Vocab {
 // never merged: each token has one merge, so the encoder, which applies
 // merges by rank, segments the learning words exactly as the learner did.
 // Learn stops early when no pair occurs opt.MinCount times. It fails when
-// words is empty or opt.Merges is negative.
+// words is empty, opt.Merges is negative, or the base is not plain
+// byte-level BPE without a bundle's pipeline.
 func Learn(words *WordCount, opt LearnOptions) (*Learned, error) {
 	if opt.Merges < 0 {
 		return nil, fmt.Errorf("learning %d merges: the number of merges cannot be negative", opt.Merges)
@@ -94,6 +95,9 @@ func Learn(words *WordCount, opt LearnOptions) (*Learned, error) {
 		opt.MinCount = 2
 	}
 	base := words.e.Vocab()
+	if base.slow || base.pipe != nil {
+		return nil, fmt.Errorf("vocabulary %s: learning extends a byte-level vocabulary pair (a bundle's own normalizer, pre-tokenizer and model settings are not carried over yet)", base.name)
+	}
 	l := newLearner(base, words)
 	l.run(opt)
 	return &Learned{Vocab: l.vocab(base), Base: base, New: l.learned}, nil

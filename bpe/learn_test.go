@@ -559,3 +559,28 @@ func hasWord(us []WordUse, w string) bool {
 	}
 	return false
 }
+
+// A bundle's pipeline is not carried over, so learning on one is refused
+// rather than giving a vocabulary that splits differently.
+func TestLearnRefusesBundle(t *testing.T) {
+	var b bytes.Buffer
+	if err := WriteBundle(&b, learnFresh(t, 50).Vocab, ""); err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range []string{"written", "metaspace-32k"} {
+		v, err := ParseBundle(name, b.Bytes(), "", nil)
+		if name != "written" {
+			v, _ = loadTestBundle(t, name)
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		e, err := NewEncoder(v, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := Learn(countText(e, "some text some text"), LearnOptions{Merges: 3}); err == nil {
+			t.Fatalf("%s: learning on a bundle was not refused", name)
+		}
+	}
+}

@@ -179,3 +179,44 @@ func TestWriteErrors(t *testing.T) {
 		t.Fatal("a failing bundle writer was not reported")
 	}
 }
+
+// A written bundle loads through the bundle loader and counts every text
+// as the written pair does, with the GPT-2 rule and with a split pattern
+// of its own.
+func TestWriteBundleLoads(t *testing.T) {
+	l := learnedDemo(t, 200)
+	texts := append(demoTexts(t), goldenTexts(t)...)
+	for _, pattern := range []string{"", `\S+|\s+`, `(?i:'s|'t)|[^\r\n\p{L}\p{N}]?\p{L}+|\p{N}{1,3}| ?[^\s\p{L}\p{N}]+[\r\n]*|\s*[\r\n]+|\s+(?!\S)|\s+`} {
+		var b, vj, mt bytes.Buffer
+		if err := WriteBundle(&b, l.Vocab, pattern); err != nil {
+			t.Fatal(err)
+		}
+		if err := WritePair(&vj, &mt, l.Vocab); err != nil {
+			t.Fatal(err)
+		}
+		bv, err := ParseBundle("tokenizer.json", b.Bytes(), "", nil)
+		if err != nil {
+			t.Fatalf("pattern %q: the bundle does not load: %v", pattern, err)
+		}
+		pv, err := Parse("vocab.json", vj.Bytes(), "merges.txt", mt.Bytes())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if bv.Size() != pv.Size() || bv.Info().Merges != pv.Info().Merges {
+			t.Fatalf("bundle %d tokens %d merges, pair %d and %d", bv.Size(), bv.Info().Merges, pv.Size(), pv.Info().Merges)
+		}
+		be, err := NewEncoder(bv, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		pe, err := NewEncoder(pv, Options{SplitPattern: pattern})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, text := range texts {
+			if got, want := be.Encode([]byte(text)), pe.Encode([]byte(text)); !equalInts(got, want) {
+				t.Fatalf("pattern %q: the bundle gives %d ids, the pair %d, on %.40q", pattern, len(got), len(want), text)
+			}
+		}
+	}
+}
