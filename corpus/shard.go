@@ -58,18 +58,24 @@ func (s Shard) Owns(source string, record int) bool {
 }
 
 // Wants reports whether reading in can yield an item of s. It is false
-// only for an input whose format, by Options.Format or by extension, is one
-// document a file (text, Markdown, code, HTML, or a binary type), which
-// yields items of record 0 alone, and whose source hashes to another
-// share; such a file need not be opened at all. Inputs whose format is
-// sniffed, and standard input, are always wanted.
+// only for an input that is one document a file (WholeFile) and whose
+// source hashes to another share; such a file need not be opened at all.
 func (s Shard) Wants(in Input, opt Options) bool {
-	if s.Whole() || in.Path == "-" || s.Owns(in.Path, 0) {
-		return true
+	return s.Whole() || s.Owns(in.Path, 0) || !WholeFile(in.Path, opt)
+}
+
+// WholeFile reports whether the input at path, read with opt, yields items
+// of record 0 alone: its format, by Options.Format or by extension (after
+// a compression suffix), is one document a file (text, Markdown, code,
+// HTML) or a binary type. Inputs whose format is sniffed, and standard
+// input, may hold records.
+func WholeFile(path string, opt Options) bool {
+	if path == "-" {
+		return false
 	}
 	format := opt.Format
 	if format == "" {
-		name := strings.ToLower(filepath.Base(in.Path))
+		name := strings.ToLower(filepath.Base(path))
 		for _, z := range []string{".gz", ".zst", ".zstd"} {
 			if strings.HasSuffix(name, z) {
 				name = strings.TrimSuffix(name, z)
@@ -80,9 +86,9 @@ func (s Shard) Wants(in Input, opt Options) bool {
 	}
 	switch format {
 	case FormatText, FormatMarkdown, FormatCode, FormatHTML, "binary":
-		return false
+		return true
 	}
-	return true
+	return false
 }
 
 // FNV-1a, 64 bits (the published offset basis and prime).

@@ -1,0 +1,286 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path"
+	"reflect"
+	"strings"
+
+	"github.com/apache/beam/sdks/v2/go/pkg/beam"
+	"github.com/apache/beam/sdks/v2/go/pkg/beam/io/fileio"
+	"github.com/apache/beam/sdks/v2/go/pkg/beam/io/filesystem"
+	"github.com/apache/beam/sdks/v2/go/pkg/beam/register"
+
+	// The file systems a pattern may name: local paths always; gs:// and
+	// s3:// where the runner's workers hold credentials for them.
+	_ "github.com/apache/beam/sdks/v2/go/pkg/beam/io/filesystem/gcs"
+	_ "github.com/apache/beam/sdks/v2/go/pkg/beam/io/filesystem/local"
+	_ "github.com/apache/beam/sdks/v2/go/pkg/beam/io/filesystem/s3"
+
+	"morsel/bpe"
+	"morsel/corpus"
+	"morsel/report"
+	"morsel/report/partial"
+)
+
+// Config is what a run weighs and how; it travels to the workers inside
+// the DoFns, so its fields are exported.
+type Config struct {
+	Inputs  []string // file patterns, local or gs:// or s3://
+	Output  string   // where the report goes; "-" is the standard output of the worker that writes it
+	Format  string   // table, json, csv, md, or partial
+	Command string   // survey
+	Field   string
+	Column  string
+	As      string
+	Hidden  bool
+	// SplitAbove is the size above which a file of records is read by
+	// several workers, each weighing its own share of the records
+	// (corpus.Shard); 0 never splits.
+	SplitAbove int64
+}
+
+func (c Config) options() corpus.Options {
+	return corpus.Options{Field: c.Field, Column: c.Column, Format: c.As}
+}
+
+// Unit is one file, or one share of the records of a big file, to weigh.
+type Unit struct {
+	Path string
+	Size int64
+	K, N int // the share of the file's records; 0 and 0 for all of them
+}
+
+func init() {
+	register.DoFn2x0[fileio.FileMetadata, func(Unit)](&splitFn{})
+	register.Emitter1[Unit]()
+	register.DoFn3x1[context.Context, Unit, func([]byte), error](&weighFn{})
+	register.Emitter1[[]byte]()
+	register.Combiner3[partial.Partial, []byte, []byte](&mergeFn{})
+	register.DoFn2x1[context.Context, []byte, error](&writeFn{})
+	beam.RegisterCoder(reflect.TypeOf(partial.Partial{}), encodePartial, decodePartial)
+}
+
+func encodePartial(p partial.Partial) ([]byte, error) {
+	var b bytes.Buffer
+	err := p.Write(&b)
+	return b.Bytes(), err
+}
+
+func decodePartial(b []byte) (partial.Partial, error) {
+	p, err := partial.Read(bytes.NewReader(b), "partial")
+	if err != nil {
+		return partial.Partial{}, err
+	}
+	return *p, nil
+}
+
+// Build adds the pipeline to s: match the patterns, weigh every file (big
+// files of records in shares), combine the partial reports, write the
+// report.
+func Build(s beam.Scope, c Config) {
+	pats := beam.CreateList(s, c.Inputs)
+	files := fileio.MatchAll(s, pats, fileio.MatchEmptyAllow())
+	units := beam.ParDo(s, &splitFn{Cfg: c}, files)
+	units = beam.Reshuffle(s, units)
+	parts := beam.ParDo(s, &weighFn{Cfg: c}, units)
+	merged := beam.Combine(s, &mergeFn{Cfg: c}, parts)
+	beam.ParDo0(s, &writeFn{Cfg: c}, merged)
+}
+
+// splitFn turns a matched file into the units that weigh it, leaving out
+// hidden files as a walk does.
+type splitFn struct{ Cfg Config }
+
+func (fn *splitFn) ProcessElement(md fileio.FileMetadata, emit func(Unit)) {
+	if !fn.Cfg.Hidden && strings.HasPrefix(path.Base(md.Path), ".") {
+		return
+	}
+	n := 1
+	if fn.Cfg.SplitAbove > 0 && md.Size > fn.Cfg.SplitAbove && !corpus.WholeFile(md.Path, fn.Cfg.options()) {
+		n = int((md.Size + fn.Cfg.SplitAbove - 1) / fn.Cfg.SplitAbove)
+	}
+	if n == 1 {
+		emit(Unit{Path: md.Path, Size: md.Size})
+		return
+	}
+	for k := 1; k <= n; k++ {
+		emit(Unit{Path: md.Path, Size: md.Size, K: k, N: n})
+	}
+}
+
+// weighFn weighs the units of a bundle and emits their partial report
+// when the bundle ends.
+type weighFn struct {
+	Cfg Config
+	enc *bpe.Encoder
+	p   *partial.Partial
+}
+
+func (fn *weighFn) Setup() error {
+	enc, err := bpe.NewEncoder(bpe.Default(), bpe.Options{})
+	fn.enc = enc
+	return err
+}
+
+func (fn *weighFn) StartBundle(_ context.Context, _ func([]byte)) {
+	fn.p = newPartial(fn.Cfg, fn.enc)
+}
+
+func (fn *weighFn) ProcessElement(ctx context.Context, u Unit, _ func([]byte)) error {
+	share := corpus.Shard{K: u.K, N: u.N}
+	fs, err := filesystem.New(ctx, u.Path)
+	if err != nil {
+		return err
+	}
+	defer fs.Close()
+	seq := 0
+	add := func(it corpus.Item) error {
+		k := partial.Key{Src: u.Path, Seq: seq}
+		seq++
+		if it.Skip != nil {
+			if share.Owns(it.Skip.Source, it.Skip.Record) {
+				s := it.Skip
+				fn.p.Items = append(fn.p.Items, partial.Item{Key: k, Record: s.Record,
+					Skip: &partial.Skip{Reason: s.Reason, Detail: s.Detail, Failed: s.Failed}})
+			}
+			return nil
+		}
+		d := it.Doc
+		if !share.Owns(d.Source, d.Record) {
+			if d.Stream != nil {
+				d.Stream.Close()
+			}
+			return nil
+		}
+		item := partial.Item{Key: k, Record: d.Record, Format: d.Format}
+		w, err := report.Weigh(fn.enc, d)
+		if err != nil {
+			item.Err = err.Error()
+		} else if item.Result, err = json.Marshal(w); err != nil {
+			return err
+		}
+		fn.p.Items = append(fn.p.Items, item)
+		return nil
+	}
+	rc, err := fs.OpenRead(ctx, u.Path)
+	if err != nil {
+		return add(corpus.Item{Skip: &corpus.Skip{Source: u.Path, Reason: corpus.ReasonUnreadable, Detail: err.Error(), Failed: true}})
+	}
+	defer rc.Close()
+	return corpus.ReadStream(u.Path, u.Size, rc, fn.Cfg.options(), add)
+}
+
+func (fn *weighFn) FinishBundle(_ context.Context, emit func([]byte)) error {
+	b, err := encodePartial(*fn.p)
+	if err != nil {
+		return err
+	}
+	emit(b)
+	fn.p = nil
+	return nil
+}
+
+// newPartial starts an empty partial of this run.
+func newPartial(c Config, enc *bpe.Encoder) *partial.Partial {
+	in, _ := json.Marshal(struct {
+		Inputs            []string
+		Field, Column, As string
+		Hidden            bool
+	}{c.Inputs, c.Field, c.Column, c.As, c.Hidden})
+	return partial.New(c.Command, 1, 1, string(in), map[string]string{"vocabulary": enc.Vocab().Info().Name})
+}
+
+// mergeFn combines the bundles' partial reports into one.
+type mergeFn struct{ Cfg Config }
+
+func (fn *mergeFn) CreateAccumulator() partial.Partial {
+	enc, _ := bpe.NewEncoder(bpe.Default(), bpe.Options{})
+	return *newPartial(fn.Cfg, enc)
+}
+
+func (fn *mergeFn) AddInput(a partial.Partial, b []byte) (partial.Partial, error) {
+	q, err := decodePartial(b)
+	if err != nil {
+		return a, err
+	}
+	return fn.MergeAccumulators(a, q)
+}
+
+func (fn *mergeFn) MergeAccumulators(a, b partial.Partial) (partial.Partial, error) {
+	err := a.Combine(&b)
+	return a, err
+}
+
+func (fn *mergeFn) ExtractOutput(a partial.Partial) ([]byte, error) {
+	a.Sort()
+	return encodePartial(a)
+}
+
+// writeFn renders the merged partial and writes the report.
+type writeFn struct{ Cfg Config }
+
+func (fn *writeFn) ProcessElement(ctx context.Context, b []byte) error {
+	var out io.Writer = os.Stdout
+	if fn.Cfg.Output != "-" && fn.Cfg.Output != "" {
+		fs, err := filesystem.New(ctx, fn.Cfg.Output)
+		if err != nil {
+			return err
+		}
+		defer fs.Close()
+		wc, err := fs.OpenWrite(ctx, fn.Cfg.Output)
+		if err != nil {
+			return err
+		}
+		defer wc.Close()
+		out = wc
+	}
+	if fn.Cfg.Format == "partial" {
+		_, err := out.Write(b)
+		return err
+	}
+	p, err := decodePartial(b)
+	if err != nil {
+		return err
+	}
+	enc, err := bpe.NewEncoder(bpe.Default(), bpe.Options{})
+	if err != nil {
+		return err
+	}
+	sv := report.NewSurveyor(enc.Vocab().Info())
+	for _, it := range p.Items {
+		ci, w, failed, err := replay(it)
+		if err != nil {
+			return err
+		}
+		sv.Add(ci, w, failed)
+	}
+	f, err := report.ParseFormat(fn.Cfg.Format, report.Table, report.JSON, report.CSV, report.Markdown)
+	if err != nil {
+		return err
+	}
+	return report.WriteSurvey(out, f, sv.Finish(), 50)
+}
+
+// replay turns a partial's item back into the walk item, weight and work
+// error that a single run's aggregation takes; err is for a result that
+// does not decode.
+func replay(it partial.Item) (ci corpus.Item, w report.Weight, failed, err error) {
+	if it.Skip != nil {
+		return corpus.Item{Skip: &corpus.Skip{Source: it.Src, Record: it.Record, Reason: it.Skip.Reason, Detail: it.Skip.Detail, Failed: it.Skip.Failed}}, w, nil, nil
+	}
+	d := &corpus.Document{Source: it.Src, Record: it.Record, Format: it.Format}
+	if it.Err != "" {
+		return corpus.Item{Doc: d}, w, errors.New(it.Err), nil
+	}
+	if err := json.Unmarshal(it.Result, &w); err != nil {
+		return ci, w, nil, fmt.Errorf("%s: %w", report.Where(it.Src, it.Record), err)
+	}
+	return corpus.Item{Doc: d}, w, nil, nil
+}

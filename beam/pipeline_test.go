@@ -1,0 +1,140 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"flag"
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/apache/beam/sdks/v2/go/pkg/beam"
+	"github.com/apache/beam/sdks/v2/go/pkg/beam/runners/prism"
+)
+
+func TestMain(m *testing.M) {
+	flag.Parse()
+	beam.Init()
+	os.Exit(m.Run())
+}
+
+// morselCLI builds the command-line tool from the parent module once.
+var morselCLI = func() func(t *testing.T) string {
+	var bin string
+	return func(t *testing.T) string {
+		t.Helper()
+		if bin != "" {
+			return bin
+		}
+		dir, err := os.MkdirTemp("", "morsel-cli")
+		if err != nil {
+			t.Fatal(err)
+		}
+		out := filepath.Join(dir, "morsel")
+		cmd := exec.Command("go", "build", "-o", out, "./cmd/morsel")
+		cmd.Dir = ".."
+		if b, err := cmd.CombinedOutput(); err != nil {
+			t.Fatalf("building morsel: %v\n%s", err, b)
+		}
+		bin = out
+		return bin
+	}
+}()
+
+// cli runs morsel with args and returns its standard output.
+func cli(t *testing.T, args ...string) []byte {
+	t.Helper()
+	var out, errb bytes.Buffer
+	cmd := exec.Command(morselCLI(t), append(args, "-q")...)
+	cmd.Stdout, cmd.Stderr = &out, &errb
+	if err := cmd.Run(); err != nil {
+		if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != 1 { // 1: some input could not be read
+			t.Fatalf("morsel %s: %v\n%s", strings.Join(args, " "), err, errb.String())
+		}
+	}
+	return out.Bytes()
+}
+
+// runBeam runs the pipeline on prism, in process, and returns the report.
+func runBeam(t *testing.T, c Config) []byte {
+	t.Helper()
+	c.Output = filepath.Join(t.TempDir(), "report")
+	p, s := beam.NewPipelineWithRoot()
+	Build(s, c)
+	if _, err := prism.Execute(context.Background(), p); err != nil {
+		t.Fatalf("pipeline: %v", err)
+	}
+	b, err := os.ReadFile(c.Output)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
+}
+
+// The pipeline's report is morsel survey's, byte for byte, on the demo.
+func TestSurveyDemoMatchesCLI(t *testing.T) {
+	for _, f := range []string{"json", "table", "csv", "md"} {
+		want := cli(t, "survey", "../testdata/demo", "--format", f)
+		got := runBeam(t, Config{Inputs: []string{"../testdata/demo/*"}, Format: f, Command: "survey", Field: "text", Column: "text"})
+		if !bytes.Equal(got, want) {
+			t.Errorf("--format %s: the pipeline's report differs from morsel survey's:\n%s", f, firstDiff(got, want))
+		}
+	}
+}
+
+// A big file of records is weighed in shares by several workers, and bad
+// records, binary and empty files are reported as a single run reports
+// them.
+func TestSurveySplitFilesMatchCLI(t *testing.T) {
+	dir := t.TempDir()
+	var big bytes.Buffer
+	for i := 1; i <= 3000; i++ {
+		switch {
+		case i%97 == 0:
+			big.WriteString("{not json\n")
+		case i%89 == 0:
+			fmt.Fprintf(&big, "{\"text\":\"\"}\n")
+		default:
+			fmt.Fprintf(&big, "{\"text\":\"ticket %d: the mooring line of buoy %d chafed at %d metres\"}\n", i, i%13, i%400)
+		}
+	}
+	files := map[string][]byte{
+		"tickets.jsonl": big.Bytes(),
+		"rows.csv":      []byte("id,text\n1,uno\n2\n3,tres\n"),
+		"blob.png":      []byte("\x89PNG\r\n"),
+		"empty.txt":     nil,
+		"notes.md":      []byte("# Mooring notes\n\nThe chain was re-tensioned."),
+		".hidden.txt":   []byte("left out"),
+	}
+	for name, b := range files {
+		if err := os.WriteFile(filepath.Join(dir, name), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	want := cli(t, "survey", dir, "--format", "json")
+	got := runBeam(t, Config{Inputs: []string{dir + "/*"}, Format: "json", Command: "survey", Field: "text", Column: "text", SplitAbove: 20000})
+	if !bytes.Equal(got, want) {
+		t.Errorf("the pipeline's report differs from morsel survey's:\n%s", firstDiff(got, want))
+	}
+}
+
+// firstDiff shows the first line where got and want differ.
+func firstDiff(got, want []byte) string {
+	g, w := strings.Split(string(got), "\n"), strings.Split(string(want), "\n")
+	for i := 0; i < len(g) || i < len(w); i++ {
+		var a, b string
+		if i < len(g) {
+			a = g[i]
+		}
+		if i < len(w) {
+			b = w[i]
+		}
+		if a != b {
+			return fmt.Sprintf("line %d:\n  pipeline: %q\n  survey:   %q", i+1, a, b)
+		}
+	}
+	return "(same lines)"
+}
