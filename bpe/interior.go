@@ -7,8 +7,8 @@ package bpe
 // followed by ASCII white space, whatever comes before or after the text,
 // so the text is cut at the first and last such place and only the head
 // and tail are encoded again with each frame. With another split pattern,
-// or special strings that hold white space, no place is known safe and
-// each frame encodes the whole text.
+// a bundle's pipeline, or special strings that hold white space, no place
+// is known safe and each frame encodes the whole text.
 type Interior struct {
 	e         *Encoder
 	text      []byte
@@ -19,7 +19,7 @@ type Interior struct {
 // Interior counts the interior of text for Interior.Count.
 func (e *Encoder) Interior(text []byte) Interior {
 	in := Interior{e: e, text: text, head: 1, end: 0}
-	if e.re != nil || e.specialsHoldSpace() {
+	if e.re != nil || e.v.pipe != nil || e.specialsHoldSpace() {
 		return in
 	}
 	head, end := firstCut(text), safeCut(text)

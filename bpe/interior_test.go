@@ -1,6 +1,9 @@
 package bpe
 
-import "testing"
+import (
+	"bytes"
+	"testing"
+)
 
 // The count of a framed text from its interior equals the count of the
 // joined text, whatever the frame.
@@ -12,8 +15,20 @@ func FuzzInteriorCount(f *testing.F) {
 	plain := gpt2(f, Options{})
 	honor := gpt2(f, Options{Specials: SpecialsHonor})
 	other := gpt2(f, Options{SplitPattern: `\S+|\s+`})
+	var b bytes.Buffer
+	if err := WriteBundle(&b, Default(), ""); err != nil {
+		f.Fatal(err)
+	}
+	bv, err := ParseBundle("tokenizer.json", b.Bytes(), "", nil)
+	if err != nil {
+		f.Fatal(err)
+	}
+	bundle, err := NewEncoder(bv, Options{})
+	if err != nil {
+		f.Fatal(err)
+	}
 	f.Fuzz(func(t *testing.T, before, text, after []byte) {
-		for _, e := range []*Encoder{plain, honor, other} {
+		for _, e := range []*Encoder{plain, honor, other, bundle} {
 			in := e.Interior(text)
 			if got, want := in.Count(before, after), e.Count(join(before, text, after)); got != want {
 				t.Fatalf("%q + %q + %q: %d tokens from the interior, %d joined", before, text, after, got, want)

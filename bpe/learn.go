@@ -83,7 +83,8 @@ func ByteVocab() *Vocab {
 // merges by rank, segments the learning words exactly as the learner did.
 // Learn stops early when no pair occurs opt.MinCount times. It fails when
 // words is empty, opt.Merges is negative, or the base is not plain
-// byte-level BPE without a bundle's pipeline.
+// byte-level BPE. A bundle's normalizer, pre-tokenizer, added tokens and
+// template carry over to the new vocabulary.
 func Learn(words *WordCount, opt LearnOptions) (*Learned, error) {
 	if opt.Merges < 0 {
 		return nil, fmt.Errorf("learning %d merges: the number of merges cannot be negative", opt.Merges)
@@ -95,8 +96,8 @@ func Learn(words *WordCount, opt LearnOptions) (*Learned, error) {
 		opt.MinCount = 2
 	}
 	base := words.e.Vocab()
-	if base.slow || base.pipe != nil {
-		return nil, fmt.Errorf("vocabulary %s: learning extends a byte-level vocabulary pair (a bundle's own normalizer, pre-tokenizer and model settings are not carried over yet)", base.name)
+	if base.slow || (base.pipe != nil && !base.pipe.byteLevel) {
+		return nil, fmt.Errorf("vocabulary %s: learning extends plain byte-level BPE only (no byte fallback, character-level symbols, subword prefix or suffix, or ignore_merges)", base.name)
 	}
 	l := newLearner(base, words)
 	l.run(opt)
@@ -277,6 +278,8 @@ func (l *learner) vocab(base *Vocab) *Vocab {
 		nMerges:  base.nMerges + len(l.learned),
 		specials: append([]Special(nil), base.specials...),
 		window:   base.window,
+		model:    base.model,
+		pipe:     base.pipe,
 	}
 	base.merges.each(func(k, rm uint64) { v.merges.put(k, rm) })
 	for r, m := range l.learned {

@@ -560,27 +560,75 @@ func hasWord(us []WordUse, w string) bool {
 	return false
 }
 
-// A bundle's pipeline is not carried over, so learning on one is refused
-// rather than giving a vocabulary that splits differently.
-func TestLearnRefusesBundle(t *testing.T) {
-	var b bytes.Buffer
-	if err := WriteBundle(&b, learnFresh(t, 50).Vocab, ""); err != nil {
+// A vocabulary that is not plain byte-level BPE is refused.
+func TestLearnRefusesCharacterLevel(t *testing.T) {
+	v, _ := loadTestBundle(t, "metaspace-32k")
+	e, err := NewEncoder(v, Options{})
+	if err != nil {
 		t.Fatal(err)
 	}
-	for _, name := range []string{"written", "metaspace-32k"} {
-		v, err := ParseBundle(name, b.Bytes(), "", nil)
-		if name != "written" {
-			v, _ = loadTestBundle(t, name)
+	if _, err := Learn(countText(e, "some text some text"), LearnOptions{Merges: 3}); err == nil {
+		t.Fatal("learning on a character-level bundle was not refused")
+	}
+}
+
+// On top of a byte-level bundle (qwen3: NFC, its own split pattern, added
+// tokens outside the model's vocabulary) the learned vocabulary keeps the
+// bundle's pipeline: the base's ids come back on every line that no new
+// token touches, the learner's savings are the re-encoded ones, and the
+// written bundle loads and encodes as the learned vocabulary does.
+func TestExtendBundle(t *testing.T) {
+	base, _ := loadTestBundle(t, "qwen3")
+	be, err := NewEncoder(base, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := countText(be, demoTexts(t)...)
+	got, err := Learn(c, LearnOptions{Merges: 100})
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkEncodes(t, c, got)
+	ext, err := NewEncoder(got.Vocab, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b bytes.Buffer
+	if err := WriteBundle(&b, got.Vocab, ""); err != nil {
+		t.Fatal(err)
+	}
+	if err := WritePair(&bytes.Buffer{}, &bytes.Buffer{}, got.Vocab); err == nil {
+		t.Fatal("a vocabulary with a bundle's pipeline was written as a pair")
+	}
+	back, err := ParseBundle("tokenizer.json", b.Bytes(), "", nil)
+	if err != nil {
+		t.Fatalf("the written bundle does not load: %v", err)
+	}
+	we, err := NewEncoder(back, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	touched, kept := 0, 0
+	for _, text := range append(demoTexts(t), goldenTexts(t)...) {
+		for _, line := range strings.SplitAfter(text, "\n") {
+			old, now := be.Encode([]byte(line)), ext.Encode([]byte(line))
+			if w := we.Encode([]byte(line)); !equalInts(w, now) {
+				t.Fatalf("%q: the written bundle gives %v, the learned vocabulary %v", line, w, now)
+			}
+			if newIn(now, base.Size()) {
+				touched++
+				if len(now) >= len(old) {
+					t.Fatalf("%q: %d tokens under qwen3, %d extended", line, len(old), len(now))
+				}
+				continue
+			}
+			kept++
+			if !equalInts(old, now) {
+				t.Fatalf("%q: no new token, yet %v under qwen3 and %v extended", line, old, now)
+			}
 		}
-		if err != nil {
-			t.Fatal(err)
-		}
-		e, err := NewEncoder(v, Options{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if _, err := Learn(countText(e, "some text some text"), LearnOptions{Merges: 3}); err == nil {
-			t.Fatalf("%s: learning on a bundle was not refused", name)
-		}
+	}
+	if touched == 0 || kept == 0 {
+		t.Fatalf("%d lines touched, %d not: the test tests nothing", touched, kept)
 	}
 }

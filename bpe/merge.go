@@ -30,6 +30,7 @@ type state struct {
 	ints       []int
 	u32        []uint32
 	spanFn     func(start, end int, special bool)
+	pieceFn    func(p []byte)
 	cur        int
 	err        error
 	nbuf, pbuf [][]byte

@@ -22,6 +22,9 @@ type pipeline struct {
 	// replacement character that follows another character, since no token
 	// holds the replacement anywhere but in a leading run (checked at load).
 	cutBefore bool
+	// written holds the bundle's components as its file wrote them, so
+	// that a vocabulary learned on top of it can be written with them.
+	written map[string][]byte
 }
 
 // sinkMode says what the model does with a pre-token.
@@ -30,6 +33,7 @@ const (
 	sinkInts
 	sinkU32
 	sinkSpans
+	sinkPieces
 )
 
 // sink runs the model on one pre-token.
@@ -41,6 +45,8 @@ func (s *state) sink(p []byte, al []int32) {
 		s.ints = appendPiece(s, s.ints, p)
 	case sinkU32:
 		s.u32 = appendPiece(s, s.u32, p)
+	case sinkPieces:
+		s.pieceFn(p)
 	case sinkSpans:
 		// A piece that covers no original byte (a prepended marker alone)
 		// joins the next one, so that the spans tile the text.

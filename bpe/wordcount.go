@@ -24,8 +24,18 @@ func (c *WordCount) Encoder() *Encoder { return c.e }
 
 // Add counts the pre-tokens of text. Special-token strings are split as
 // the encoder's special mode says; a special token the encoder honours is
-// not a word and is left out.
+// not a word and is left out. Under a bundle, the words are the pre-tokens
+// of the normalized text, and its added tokens are left out.
 func (c *WordCount) Add(text []byte) {
+	if c.e.v.pipe != nil {
+		s := c.e.get()
+		defer c.e.put(s)
+		s.mode, s.pieceFn = sinkPieces, func(p []byte) { c.add(p, 1) }
+		var st Stats
+		c.e.runBundle(s, text, &st, func(uint32, int, int) {})
+		s.pieceFn = nil
+		return
+	}
 	c.e.Split(text, func(start, end int, special bool) {
 		if !special {
 			c.add(text[start:end], 1)

@@ -8,12 +8,16 @@ import (
 	"io"
 )
 
-// WritePair writes v as a vocabulary pair that LoadFiles reads back
-// unchanged: a JSON object of every token, spelled in the byte alphabet, to
+// WritePair writes v, a vocabulary with no bundle pipeline, as a
+// vocabulary pair that LoadFiles reads back unchanged: a JSON object of every token, spelled in the byte alphabet, to
 // its id, in id order, one a line, to vocabJSON; and the merges in rank
 // order, one "left right" a line after a version line, to merges. It
-// returns the first write error.
+// fails for a vocabulary learned on a bundle, and returns the first write
+// error.
 func WritePair(vocabJSON, merges io.Writer, v *Vocab) error {
+	if v.pipe != nil {
+		return fmt.Errorf("vocabulary %s: a pair cannot hold a bundle's normalizer, pre-tokenizer and added tokens; write a bundle", v.name)
+	}
 	if err := writeVocabJSON(vocabJSON, v, "", false); err != nil {
 		return fmt.Errorf("writing the vocabulary: %w", err)
 	}
@@ -40,12 +44,23 @@ func writeVocabJSON(out io.Writer, v *Vocab, indent string, bundle bool) error {
 	for _, s := range v.specials {
 		special[s.ID] = true
 	}
+	added := map[uint32]bool{}
+	if v.pipe != nil {
+		for _, id := range v.pipe.addedIDs {
+			added[id] = true
+		}
+	}
 	w := bufio.NewWriter(out)
 	w.WriteString("{")
+	first := true
 	for id, t := range v.tokens {
-		if id > 0 {
+		if added[uint32(id)] || (v.pipe != nil && t == nil) {
+			continue // the bundle's added tokens go in its own list
+		}
+		if !first {
 			w.WriteByte(',')
 		}
+		first = false
 		w.WriteString("\n" + indent + "  ")
 		key := SpellBytes(t)
 		if bundle && special[id] {
@@ -71,7 +86,10 @@ func jsonString(s string) []byte {
 // a byte-level BPE model with v's tokens and ranked merges, its special
 // tokens as added tokens, and the pre-tokenizer that splits by pattern (""
 // is the GPT-2 rule, which the bundle states as its byte-level
-// pre-tokenizer's own pattern). It returns the first write error.
+// pre-tokenizer's own pattern). A vocabulary learned on a bundle is
+// written with that bundle's normalizer, pre-tokenizer, added tokens,
+// post-processor and decoder as they were, and pattern is not used. It
+// returns the first write error.
 func WriteBundle(out io.Writer, v *Vocab, pattern string) error {
 	type added struct {
 		ID         int    `json:"id"`
@@ -100,16 +118,22 @@ func WriteBundle(out io.Writer, v *Vocab, pattern string) error {
 		b, _ := json.Marshal(val) // plain maps and structs always marshal
 		fmt.Fprintf(w, "  %q: %s,\n", key, b)
 	}
+	comps := map[string]any{"added_tokens": adds, "normalizer": nil, "pre_tokenizer": pre, "post_processor": nil, "decoder": byteLevel(true)}
+	if v.pipe != nil {
+		for k := range comps {
+			if raw, ok := v.pipe.written[k]; ok {
+				comps[k] = json.RawMessage(raw)
+			}
+		}
+	}
 	w := bufio.NewWriter(out)
 	w.WriteString("{\n")
 	head(w, "version", "1.0")
 	head(w, "truncation", nil)
 	head(w, "padding", nil)
-	head(w, "added_tokens", adds)
-	head(w, "normalizer", nil)
-	head(w, "pre_tokenizer", pre)
-	head(w, "post_processor", nil)
-	head(w, "decoder", byteLevel(true))
+	for _, k := range []string{"added_tokens", "normalizer", "pre_tokenizer", "post_processor", "decoder"} {
+		head(w, k, comps[k])
+	}
 	w.WriteString(`  "model": {
     "type": "BPE",
     "dropout": null,
@@ -142,4 +166,16 @@ func WriteBundle(out io.Writer, v *Vocab, pattern string) error {
 		return fmt.Errorf("writing the bundle: %w", err)
 	}
 	return nil
+}
+
+// keepComponents copies the components of a bundle that a writer needs
+// again, apart from the file's bytes that they point into.
+func keepComponents(comps map[string]json.RawMessage) map[string][]byte {
+	out := map[string][]byte{}
+	for _, k := range []string{"added_tokens", "normalizer", "pre_tokenizer", "post_processor", "decoder"} {
+		if r, ok := comps[k]; ok {
+			out[k] = bytes.Clone(r)
+		}
+	}
+	return out
 }
