@@ -47,7 +47,7 @@ for i in $(seq "$runs"); do
   echo "run $i: learn ${mt}s ${mm}KB, spm_train ${st}s ${sm}KB"
   mo_t+=("$mt"); mo_m+=("$mm"); spm_t+=("$st"); spm_m+=("$sm"); ratios+=("$(echo "$mt / $st" | bc -l)")
 done
-printf 'morsel learn   median %7.2f s  peak %5d MB\n' "$(printf '%s\n' "${mo_t[@]}" | median)" "$(( $(printf '%s\n' "${mo_m[@]}" | median) / 1024 ))"
+printf 'bpe.Learn      median %7.2f s  peak %5d MB\n' "$(printf '%s\n' "${mo_t[@]}" | median)" "$(( $(printf '%s\n' "${mo_m[@]}" | median) / 1024 ))"
 printf 'spm_train      median %7.2f s  peak %5d MB\n' "$(printf '%s\n' "${spm_t[@]}" | median)" "$(( $(printf '%s\n' "${spm_m[@]}" | median) / 1024 ))"
 printf 'ratio learn / spm_train, median of %d paired runs: %.3f\n' "$runs" "$(printf '%s\n' "${ratios[@]}" | median)"
 "$dir/learnbench" -merges "$merges" "$text"
