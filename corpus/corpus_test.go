@@ -689,3 +689,43 @@ func TestSkipString(t *testing.T) {
 		t.Errorf("String() = %q", got)
 	}
 }
+
+// readFile reads one file as Read does, collecting its items.
+func readFile(t *testing.T, path string, opt Options) []Item {
+	t.Helper()
+	fi, err := os.Stat(path)
+	size := int64(-1)
+	if err == nil {
+		size = fi.Size()
+	}
+	var items []Item
+	if err := Read(Input{Path: path, Size: size}, opt, func(it Item) error {
+		items = append(items, it)
+		return nil
+	}); err != nil {
+		t.Fatalf("Read: %v", err)
+	}
+	return items
+}
+
+// A compressed text above StreamAbove is read through its decompressor
+// after Read has returned, so the decompressor must stay open until the
+// stream is closed.
+func TestCompressedStreamReadAfterReturn(t *testing.T) {
+	body := strings.Repeat("The keeper trims the wick at dusk. ", 4000) // 140 KB
+	dir := t.TempDir()
+	for _, c := range []struct {
+		name string
+		pack func(*testing.T, []byte) []byte
+	}{{"a.txt.zst", zst}, {"a.txt.gz", gz}} {
+		p := filepath.Join(dir, c.name)
+		packed := c.pack(t, []byte(body))
+		if err := os.WriteFile(p, packed, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		opt := Options{StreamAbove: 1 << 10}
+		check(t, show(t, dir, readFile(t, p, opt)), []string{fmt.Sprintf("%s:0 text %q", c.name, body)})
+		opt.Stdin = bytes.NewReader(packed)
+		check(t, show(t, dir, readBytes(t, packed, opt)), []string{fmt.Sprintf("-:0 text %q", body)})
+	}
+}

@@ -106,10 +106,13 @@ func (r *reader) run() error {
 		}
 		f = file
 	}
-	owned := false // set when a Stream took over f
+	// closers close the decompressor and then the file. A Stream takes
+	// them over, since it keeps reading through them after run returns.
+	closers := multiCloser{f}
+	owned := false // set when a Stream took over the closers
 	defer func() {
 		if !owned {
-			f.Close()
+			closers.Close()
 		}
 	}()
 
@@ -159,7 +162,7 @@ func (r *reader) run() error {
 		if err != nil {
 			return r.readFailed(0, "gzip", err)
 		}
-		defer zr.Close()
+		closers = append(multiCloser{zr}, closers...)
 		body = zr
 	case compZstd:
 		if _, err := br.Peek(1); err == io.EOF {
@@ -170,7 +173,7 @@ func (r *reader) run() error {
 		if err != nil {
 			return r.readFailed(0, "zstd", err)
 		}
-		defer zr.Close()
+		closers = append(multiCloser{zstdCloser{zr}}, closers...)
 		body = zr
 	}
 	if comp != compNone {
@@ -236,7 +239,7 @@ func (r *reader) run() error {
 		}
 	}
 	owned = true
-	s := &stream{r: io.MultiReader(bytes.NewReader(text), in), c: f, src: r.in.Path}
+	s := &stream{r: io.MultiReader(bytes.NewReader(text), in), c: closers, src: r.in.Path}
 	return r.doc(&Document{Record: 0, Format: format, Stream: s, Size: size})
 }
 
@@ -257,6 +260,25 @@ func (s *stream) Read(p []byte) (int, error) {
 }
 
 func (s *stream) Close() error { return s.c.Close() }
+
+// multiCloser closes each of its closers in order and returns the first
+// error.
+type multiCloser []io.Closer
+
+func (m multiCloser) Close() error {
+	var first error
+	for _, c := range m {
+		if err := c.Close(); err != nil && first == nil {
+			first = err
+		}
+	}
+	return first
+}
+
+// zstdCloser gives a zstd decoder the io.Closer interface.
+type zstdCloser struct{ d *zstd.Decoder }
+
+func (z zstdCloser) Close() error { z.d.Close(); return nil }
 
 // binaryReason returns why head looks binary, or "" when it looks like
 // text: a NUL byte, or more than 30% of its bytes in invalid UTF-8
