@@ -104,8 +104,11 @@ const (
 	// ReasonDuplicate: a file or directory reached a second time through a
 	// symbolic link or a repeated argument; counted once. Not failed.
 	ReasonDuplicate = "duplicate"
-	// ReasonSpecial: a device, socket or named pipe met inside a directory
-	// walk. Named pipes given by path are read. Not failed.
+	// ReasonSpecial: a device, socket or named pipe, or a file of a kernel
+	// file system such as /proc or /sys, which may block or never end.
+	// Such files are never opened for reading (standard input, "-", is
+	// read). Not failed when met inside a directory walk; failed when named
+	// as an argument or matched by a glob.
 	ReasonSpecial = "special"
 	// ReasonTruncated: a compressed stream or JSON document that ends early.
 	// Records read before the cut are still emitted. Failed.
@@ -240,6 +243,11 @@ func (o Options) withDefaults() Options {
 type Input struct {
 	Path string
 	Size int64
+	// Named is true when the path was an argument or matched a glob,
+	// rather than met in a directory walk: a file of a kernel file system
+	// that is named is a failure to read, one met in a walk a deliberate
+	// skip.
+	Named bool
 }
 
 func lineDetail(line int, msg string) string {

@@ -12,6 +12,7 @@ import (
 	"strings"
 	"syscall"
 	"testing"
+	"time"
 
 	"github.com/klauspost/compress/zstd"
 )
@@ -727,5 +728,76 @@ func TestCompressedStreamReadAfterReturn(t *testing.T) {
 		check(t, show(t, dir, readFile(t, p, opt)), []string{fmt.Sprintf("%s:0 text %q", c.name, body)})
 		opt.Stdin = bytes.NewReader(packed)
 		check(t, show(t, dir, readBytes(t, packed, opt)), []string{fmt.Sprintf("-:0 text %q", body)})
+	}
+}
+
+// listAndRead lists paths and reads every input as the report's walk does,
+// failing the test if that takes more than a few seconds (a blocked open or
+// read would otherwise hang it).
+func listAndRead(t *testing.T, paths []string, opt Options) []Item {
+	t.Helper()
+	done := make(chan []Item, 1)
+	go func() {
+		ins, skips := List(paths, opt)
+		var items []Item
+		for i := range skips {
+			items = append(items, Item{Skip: &skips[i]})
+		}
+		for _, in := range ins {
+			Read(in, opt, func(it Item) error {
+				if it.Doc != nil && it.Doc.Stream != nil {
+					b, _ := io.ReadAll(it.Doc.Stream)
+					it.Doc.Stream.Close()
+					it.Doc.Text, it.Doc.Stream = b, nil
+				}
+				items = append(items, it)
+				return nil
+			})
+		}
+		done <- items
+	}()
+	select {
+	case items := <-done:
+		return items
+	case <-time.After(10 * time.Second):
+		t.Fatalf("reading %v did not finish", paths)
+		return nil
+	}
+}
+
+// A named pipe with no writer, named as an argument or matched by a glob,
+// is skipped without being opened; so is a link to a kernel file that
+// waits for data. Standard input is still read.
+func TestSpecialFilesNeverBlock(t *testing.T) {
+	dir := t.TempDir()
+	writeFiles(t, dir, map[string]string{"a.txt": "alpha"})
+	pipe := filepath.Join(dir, "pipe.txt")
+	if err := syscall.Mkfifo(pipe, 0o644); err != nil {
+		t.Skip("no named pipes here:", err)
+	}
+	opt := Options{Stdin: strings.NewReader("from stdin")}
+	check(t, show(t, dir, listAndRead(t, []string{pipe, filepath.Join(dir, "*.txt"), "-"}, opt)), []string{
+		`pipe.txt:0 !special`, // named
+		`pipe.txt:0 !special`, // matched by the glob
+		`a.txt:0 text "alpha"`,
+		`-:0 text "from stdin"`,
+	})
+	// An input listed as a regular file that is a pipe by the time it is
+	// read.
+	check(t, show(t, dir, readFile(t, pipe, Options{})), []string{`pipe.txt:0 ~special`})
+
+	if _, err := os.Stat("/proc/kmsg"); err == nil {
+		kdir := t.TempDir()
+		if err := os.Symlink("/proc/kmsg", filepath.Join(kdir, "kmsg.txt")); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.Symlink("/proc/self/status", filepath.Join(kdir, "status")); err != nil {
+			t.Fatal(err)
+		}
+		check(t, show(t, kdir, listAndRead(t, []string{kdir}, Options{})), []string{
+			`kmsg.txt:0 ~special`,
+			`status:0 ~special`,
+		})
+		check(t, show(t, "", listAndRead(t, []string{"/proc/self/status"}, Options{})), []string{`/proc/self/status:0 !special`})
 	}
 }

@@ -204,16 +204,19 @@ func (l *lister) visit(p, root, real string, lfi fs.FileInfo, explicit bool, anc
 			return
 		}
 		l.seen[real] = p
-		l.add(Input{Path: p, Size: fi.Size()})
+		l.add(Input{Path: p, Size: fi.Size(), Named: explicit})
 	default:
 		if !l.wanted(p, root) {
 			return
 		}
+		// A named pipe or device may never end or never deliver a byte;
+		// only regular files and standard input ("-") are read. A path the
+		// user named is a failure, one met in a walk a deliberate skip.
+		detail := "not a regular file (" + specialKind(fi.Mode()) + ")"
 		if explicit {
-			l.add(Input{Path: p, Size: -1})
-			return
+			detail += "; pass its contents on standard input as -"
 		}
-		l.skip(p, ReasonSpecial, "not a regular file ("+fi.Mode().Type().String()+")", false)
+		l.skip(p, ReasonSpecial, detail, explicit)
 	}
 }
 
@@ -287,4 +290,21 @@ func matchParts(pat, name []string) bool {
 		pat, name = pat[1:], name[1:]
 	}
 	return len(name) == 0
+}
+
+// specialKind names the kind of a file that is not regular.
+func specialKind(m fs.FileMode) string {
+	switch {
+	case m&fs.ModeNamedPipe != 0:
+		return "a named pipe"
+	case m&fs.ModeSocket != 0:
+		return "a socket"
+	case m&fs.ModeCharDevice != 0:
+		return "a character device"
+	case m&fs.ModeDevice != 0:
+		return "a block device"
+	case m&fs.ModeIrregular != 0:
+		return "an irregular file"
+	}
+	return m.Type().String()
 }

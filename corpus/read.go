@@ -8,7 +8,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 	"strings"
 	"syscall"
@@ -100,8 +99,11 @@ func (r *reader) run() error {
 	if r.in.Path == "-" {
 		f = io.NopCloser(r.opt.Stdin)
 	} else {
-		file, err := os.Open(r.in.Path)
+		file, err := openRegular(r.in.Path)
 		if err != nil {
+			if errors.Is(err, errSpecial) {
+				return r.skip(0, ReasonSpecial, err.Error(), r.in.Named)
+			}
 			return r.readFailed(0, "", err)
 		}
 		f = file
