@@ -9,13 +9,14 @@ import (
 	"io"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"morsel/internal/textfile"
 )
 
 // jsonl reads one record per line.
 func (r *reader) jsonl(in *bufio.Reader) error {
-	path := strings.Split(r.opt.Field, ".")
+	path := newJSONPath(strings.Split(r.opt.Field, "."))
 	var buf []byte
 	line, records := 0, 0
 	tooLarge := false
@@ -69,8 +70,9 @@ func (r *reader) jsonl(in *bufio.Reader) error {
 
 // record checks one JSON record and emits its document or skip; where
 // turns a message into a Detail naming the record's place.
-func (r *reader) record(n int, format string, rec []byte, path []string, where func(string) string) error {
-	if !json.Valid(rec) {
+func (r *reader) record(n int, format string, rec []byte, path jsonPath, where func(string) string) error {
+	text, reason, msg, valid := recordText(rec, path)
+	if !valid {
 		var v any
 		err := json.Unmarshal(rec, &v)
 		msg := "invalid JSON"
@@ -79,11 +81,33 @@ func (r *reader) record(n int, format string, rec []byte, path []string, where f
 		}
 		return r.skip(n, ReasonMalformed, where(msg), true)
 	}
-	text, reason, msg := fieldText(rec, path)
 	if reason != "" {
 		return r.skip(n, reason, where(msg), reason != ReasonEmpty)
 	}
 	return r.doc(&Document{Record: n, Format: format, Text: text, Size: int64(len(text))})
+}
+
+// recordText checks that rec is valid JSON and finds its text by the rules
+// in the package comment, returning the text or a reason and a message. A
+// string where the path leads, the common case, is found and decoded in
+// one pass over the record; anything else is left to fieldText.
+func recordText(rec []byte, path jsonPath) (text []byte, reason, msg string, valid bool) {
+	val, plain, valid := findValue(rec, path)
+	if !valid {
+		return nil, "", "", false
+	}
+	if rec[0] == '"' {
+		val = rec // a record that is a string is its own text
+		plain = bytes.IndexByte(rec, '\\') < 0 && isASCII(rec)
+	}
+	if len(val) == 0 || val[0] != '"' {
+		text, reason, msg = fieldText(rec, path.names)
+		return text, reason, msg, true
+	}
+	if text = stringText(val, plain); len(text) == 0 {
+		return nil, ReasonEmpty, fmt.Sprintf("field %q is empty", strings.Join(path.names, ".")), true
+	}
+	return text, "", "", true
 }
 
 // fieldText finds the text of a valid JSON record by the rules in the
@@ -231,7 +255,7 @@ func joinMessages(v []byte) ([]byte, error) {
 
 // json reads a JSON document: an array of records, or one record.
 func (r *reader) json(in *bufio.Reader) error {
-	path := strings.Split(r.opt.Field, ".")
+	path := newJSONPath(strings.Split(r.opt.Field, "."))
 	// Skip a byte order mark and white space to see the first byte.
 	if b, _ := in.Peek(3); bytes.Equal(b, bom) {
 		in.Discard(3)
@@ -310,4 +334,13 @@ func jsonPrefixOK(b []byte) bool {
 			return errors.Is(err, io.ErrUnexpectedEOF)
 		}
 	}
+}
+
+func isASCII(b []byte) bool {
+	for _, c := range b {
+		if c >= utf8.RuneSelf {
+			return false
+		}
+	}
+	return true
 }
