@@ -155,6 +155,11 @@ type Document struct {
 	// Size is the number of bytes of text when known (the file size for
 	// plain files), -1 if not known.
 	Size int64
+	// Note, when set, says that the input was read otherwise than its
+	// format suggests: a JSON, JSON Lines or CSV file without the text
+	// field or column, read as one text document, say. A report shows it
+	// once for the file.
+	Note string
 }
 
 // Skip is an input or record that was not counted, and why.

@@ -20,7 +20,7 @@ func referenceText(rec []byte, path []string) (text []byte, reason string, valid
 
 // scannedText is the text of a record as record finds it.
 func scannedText(rec []byte, path []string) (text []byte, reason string, valid bool) {
-	text, reason, msg, valid := recordText(rec, newJSONPath(path))
+	text, reason, msg, valid, _ := recordText(rec, newJSONPath(path))
 	if !valid {
 		return nil, "", false
 	}

@@ -24,8 +24,7 @@ const sniffSize = 8 << 10
 // input order. Problems with the input become Skips; Read returns only the
 // first error fn returns, which stops it.
 func Read(in Input, opt Options, fn func(Item) error) error {
-	opt = opt.withDefaults()
-	r := &reader{in: in, opt: opt, fn: fn}
+	r := &reader{in: in, opt: opt.withDefaults(), fn: fn, fieldAsked: opt.Field != "", columnAsked: opt.Column != ""}
 	return r.run()
 }
 
@@ -36,6 +35,17 @@ type reader struct {
 	// src records errors from below the decompressor and parser, so that a
 	// cut stream is told apart from bad syntax.
 	src *errReader
+	// closers close the decompressor and then the file. A Stream takes
+	// them over (owned), since it keeps reading through them after Read
+	// returns.
+	closers multiCloser
+	owned   bool
+	// size is the number of bytes of text the input holds when known (an
+	// uncompressed file's size), else -1.
+	size int64
+	// fieldAsked and columnAsked tell whether Options named the field or
+	// column, rather than leaving the default.
+	fieldAsked, columnAsked bool
 }
 
 func (r *reader) doc(d *Document) error {
@@ -108,13 +118,10 @@ func (r *reader) run() error {
 		}
 		f = file
 	}
-	// closers close the decompressor and then the file. A Stream takes
-	// them over, since it keeps reading through them after run returns.
-	closers := multiCloser{f}
-	owned := false // set when a Stream took over the closers
+	r.closers = multiCloser{f}
 	defer func() {
-		if !owned {
-			closers.Close()
+		if !r.owned {
+			r.closers.Close()
 		}
 	}()
 
@@ -164,7 +171,7 @@ func (r *reader) run() error {
 		if err != nil {
 			return r.readFailed(0, "gzip", err)
 		}
-		closers = append(multiCloser{zr}, closers...)
+		r.closers = append(multiCloser{zr}, r.closers...)
 		body = zr
 	case compZstd:
 		if _, err := br.Peek(1); err == io.EOF {
@@ -175,7 +182,7 @@ func (r *reader) run() error {
 		if err != nil {
 			return r.readFailed(0, "zstd", err)
 		}
-		closers = append(multiCloser{zstdCloser{zr}}, closers...)
+		r.closers = append(multiCloser{zstdCloser{zr}}, r.closers...)
 		body = zr
 	}
 	if comp != compNone {
@@ -221,15 +228,25 @@ func (r *reader) run() error {
 	if comp == compNone && r.in.Size > 0 {
 		size = r.in.Size
 	}
+	r.size = size
+	return r.text(in, format, size, "")
+}
+
+// text emits what src holds as one document of the given format, held
+// whole up to Options.StreamAbove and streamed beyond it. size is the
+// number of bytes src holds when known (an uncompressed file's size), else
+// -1. note becomes the Document's Note.
+func (r *reader) text(src io.Reader, format string, size int64, note string) error {
 	limit := r.opt.StreamAbove
 	var text []byte
 	if limit < 0 || size < 0 || size <= limit {
 		// Hold up to the limit; stream only what turns out larger.
-		src := io.Reader(in)
+		held := src
 		if limit >= 0 {
-			src = io.LimitReader(in, limit+1)
+			held = io.LimitReader(src, limit+1)
 		}
-		text, err = readSized(src, size)
+		var err error
+		text, err = readSized(held, size)
 		if err == nil && (limit < 0 || int64(len(text)) <= limit) {
 			err = r.src.err
 		}
@@ -237,12 +254,12 @@ func (r *reader) run() error {
 			return r.readFailed(0, "", err)
 		}
 		if limit < 0 || int64(len(text)) <= limit {
-			return r.doc(&Document{Record: 0, Format: format, Text: text, Size: int64(len(text))})
+			return r.doc(&Document{Record: 0, Format: format, Text: text, Size: int64(len(text)), Note: note})
 		}
 	}
-	owned = true
-	s := &stream{r: io.MultiReader(bytes.NewReader(text), in), c: closers, src: r.in.Path}
-	return r.doc(&Document{Record: 0, Format: format, Stream: s, Size: size})
+	r.owned = true
+	s := &stream{r: io.MultiReader(bytes.NewReader(text), src), c: r.closers, src: r.in.Path}
+	return r.doc(&Document{Record: 0, Format: format, Stream: s, Size: size, Note: note})
 }
 
 // stream is a Document.Stream: it reads the rest of an input and closes

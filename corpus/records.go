@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"sort"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -16,12 +17,21 @@ import (
 
 // jsonl reads one record per line.
 func (r *reader) jsonl(in *bufio.Reader) error {
-	path := newJSONPath(strings.Split(r.opt.Field, "."))
+	rs := &records{r: r, format: FormatJSONL, path: newJSONPath(strings.Split(r.opt.Field, ".")),
+		where: lineDetail}
 	var buf []byte
+	// prefix keeps the bytes read until the first record is judged, to
+	// read the file as one text document if that record says so.
+	prefix, keep := []byte(nil), true
 	line, records := 0, 0
 	tooLarge := false
 	for {
 		chunk, err := in.ReadSlice('\n')
+		if keep {
+			if prefix = append(prefix, chunk...); int64(len(prefix)) > r.opt.MaxRecord {
+				prefix, keep = nil, false
+			}
+		}
 		if !tooLarge {
 			if int64(len(buf)+len(chunk)) > r.opt.MaxRecord {
 				tooLarge, buf = true, buf[:0]
@@ -45,14 +55,27 @@ func (r *reader) jsonl(in *bufio.Reader) error {
 		}
 		if tooLarge {
 			records++
+			keep = false
+			if e := rs.flush(); e != nil {
+				return e
+			}
+			rs.others = true
 			if e := r.skip(line, ReasonTooLarge, lineDetail(line, fmt.Sprintf("longer than %d bytes", r.opt.MaxRecord)), true); e != nil {
 				return e
 			}
 		} else if rec = bytes.TrimSpace(rec); len(rec) > 0 {
 			records++
-			if e := r.record(line, FormatJSONL, rec, path, func(msg string) string { return lineDetail(line, msg) }); e != nil {
+			e := rs.add(line, rec)
+			if e == errAsText && keep {
+				return r.text(io.MultiReader(bytes.NewReader(prefix), in), FormatJSONL, r.size, rs.textNote(rec))
+			}
+			if e == errAsText { // too long to read again: one document a record after all
+				e = r.skip(line, ReasonNoField, lineDetail(line, fmt.Sprintf("no field %q", r.opt.Field)), true)
+			}
+			if e != nil {
 				return e
 			}
+			prefix, keep = nil, false
 		}
 		buf, tooLarge = buf[:0], false
 		if err == io.EOF {
@@ -65,13 +88,68 @@ func (r *reader) jsonl(in *bufio.Reader) error {
 	if records == 0 {
 		return r.skip(0, ReasonEmpty, "no records", false)
 	}
-	return nil
+	return rs.finish()
 }
 
-// record checks one JSON record and emits its document or skip; where
-// turns a message into a Detail naming the record's place.
-func (r *reader) record(n int, format string, rec []byte, path jsonPath, where func(string) string) error {
-	text, reason, msg, valid := recordText(rec, path)
+// textNote is the Note of a file read as one text document because its
+// first record, rec, has no text field.
+func (rs *records) textNote(rec []byte) string {
+	noun := "record"
+	if rs.format == FormatJSON {
+		noun = "value"
+	}
+	return fmt.Sprintf("read as one text document: the first %s has no field %q (%s)",
+		noun, strings.Join(rs.path.names, "."), fieldsAt(rec, rs.path.names))
+}
+
+// records turns a file's JSON records into documents and skips. It judges
+// the file by its first record: when that has no value where the text
+// field's path leads and the field was not asked for, the whole file is
+// one text document. When the field was asked for, records without it are
+// held back while no other item comes between them, so that a file none of
+// whose records has the field gives one skip, which names the fields the
+// first record has, instead of one skip a record.
+type records struct {
+	r      *reader
+	format string
+	path   jsonPath
+	// where turns a message into a Detail naming record n's place.
+	where func(n int, msg string) string
+	seen  bool // a record has been judged
+	// held are runs of record numbers without the field, all with the
+	// message heldMsg; heldN counts them; heldFields is what the first of
+	// them has.
+	held       [][2]int
+	heldN      int
+	heldMsg    string
+	heldFields string
+	// others is set once an item other than a held record was emitted.
+	others bool
+}
+
+// errAsText is returned by records.add when the file is to be read as one
+// text document instead.
+var errAsText = errors.New("read as text")
+
+// add checks record n and emits its document or skip. It returns errAsText
+// for a first record that says the file is text.
+func (rs *records) add(n int, rec []byte) error {
+	text, reason, msg, valid, absent := recordText(rec, rs.path)
+	first := !rs.seen
+	rs.seen = true
+	if absent {
+		if first && !rs.r.fieldAsked {
+			return errAsText
+		}
+		if rs.r.fieldAsked {
+			return rs.hold(n, rec, msg)
+		}
+	}
+	if err := rs.flush(); err != nil {
+		return err
+	}
+	rs.others = true
+	r := rs.r
 	if !valid {
 		var v any
 		err := json.Unmarshal(rec, &v)
@@ -79,22 +157,147 @@ func (r *reader) record(n int, format string, rec []byte, path jsonPath, where f
 		if err != nil {
 			msg = err.Error()
 		}
-		return r.skip(n, ReasonMalformed, where(msg), true)
+		return r.skip(n, ReasonMalformed, rs.where(n, msg), true)
 	}
 	if reason != "" {
-		return r.skip(n, reason, where(msg), reason != ReasonEmpty)
+		return r.skip(n, reason, rs.where(n, msg), reason != ReasonEmpty)
 	}
-	return r.doc(&Document{Record: n, Format: format, Text: text, Size: int64(len(text))})
+	return r.doc(&Document{Record: n, Format: rs.format, Text: text, Size: int64(len(text))})
+}
+
+func (rs *records) hold(n int, rec []byte, msg string) error {
+	if rs.heldN > 0 && msg != rs.heldMsg {
+		if err := rs.flush(); err != nil {
+			return err
+		}
+	}
+	if rs.heldN == 0 {
+		rs.heldMsg, rs.heldFields = msg, fieldsAt(rec, rs.path.names)
+	}
+	if k := len(rs.held) - 1; k >= 0 && rs.held[k][1] == n-1 {
+		rs.held[k][1] = n
+	} else {
+		rs.held = append(rs.held, [2]int{n, n})
+	}
+	rs.heldN++
+	return nil
+}
+
+// flush emits the held records one skip each: another item came after
+// them, so some record of the file is not like them.
+func (rs *records) flush() error {
+	for _, run := range rs.held {
+		for n := run[0]; n <= run[1]; n++ {
+			if err := rs.r.skip(n, ReasonNoField, rs.where(n, rs.heldMsg), true); err != nil {
+				return err
+			}
+		}
+	}
+	rs.held, rs.heldN = rs.held[:0], 0
+	return nil
+}
+
+// finish ends the file: records held to its end become one skip for the
+// file when nothing else came before them, else one skip each.
+func (rs *records) finish() error {
+	if rs.heldN == 0 {
+		return nil
+	}
+	if rs.others {
+		return rs.flush()
+	}
+	noun := "record"
+	if rs.format == FormatJSON {
+		noun = "element"
+	}
+	detail := fmt.Sprintf("none of the %d %ss has field %q (the first %s: %s)", rs.heldN, noun, strings.Join(rs.path.names, "."), noun, rs.heldFields)
+	rs.held, rs.heldN = rs.held[:0], 0
+	return rs.r.skip(0, ReasonNoField, detail, true)
+}
+
+// fieldsAt says what a record holds where the path stops: "it has fields
+// ..." for an object without the next part, "its "meta" is a number" for
+// a value that is not an object or array.
+func fieldsAt(rec []byte, path []string) string {
+	where := "it"
+	v := json.RawMessage(rec)
+	for i, part := range path {
+		v = bytes.TrimSpace(v)
+		if len(v) == 0 {
+			break
+		}
+		if i > 0 {
+			where = "its " + strconv.Quote(strings.Join(path[:i], "."))
+		}
+		switch v[0] {
+		case '{':
+			var obj map[string]json.RawMessage
+			if json.Unmarshal(v, &obj) != nil {
+				return where + " does not parse"
+			}
+			next, ok := obj[part]
+			if !ok {
+				return where + " has " + listNames(obj)
+			}
+			v = next
+		case '[':
+			var arr []json.RawMessage
+			if json.Unmarshal(v, &arr) != nil {
+				return where + " does not parse"
+			}
+			k, err := strconv.Atoi(part)
+			if err != nil || k < 0 || k >= len(arr) {
+				return fmt.Sprintf("%s is an array of %d", where, len(arr))
+			}
+			v = arr[k]
+		default:
+			return where + " is " + kind(v)
+		}
+	}
+	return where + " has it"
+}
+
+// maxNamesListed bounds the field or column names a skip lists.
+const maxNamesListed = 20
+
+func listNames(obj map[string]json.RawMessage) string {
+	if len(obj) == 0 {
+		return "no fields"
+	}
+	names := make([]string, 0, len(obj))
+	for k := range obj {
+		names = append(names, k)
+	}
+	sort.Strings(names)
+	return "fields " + joinNames(names)
+}
+
+// joinNames lists names, quoted, up to maxNamesListed of them.
+func joinNames(names []string) string {
+	var b strings.Builder
+	for i, n := range names {
+		if i == maxNamesListed {
+			fmt.Fprintf(&b, " and %d more", len(names)-i)
+			break
+		}
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		b.WriteString(strconv.Quote(n))
+	}
+	return b.String()
 }
 
 // recordText checks that rec is valid JSON and finds its text by the rules
 // in the package comment, returning the text or a reason and a message. A
 // string where the path leads, the common case, is found and decoded in
 // one pass over the record; anything else is left to fieldText.
-func recordText(rec []byte, path jsonPath) (text []byte, reason, msg string, valid bool) {
+// absent is set when the record is an object or array where the path
+// leads to no value at all (not even null).
+func recordText(rec []byte, path jsonPath) (text []byte, reason, msg string, valid, absent bool) {
 	val, plain, valid := findValue(rec, path)
 	if !valid {
-		return nil, "", "", false
+		return nil, "", "", false, false
 	}
 	if rec[0] == '"' {
 		val = rec // a record that is a string is its own text
@@ -102,12 +305,12 @@ func recordText(rec []byte, path jsonPath) (text []byte, reason, msg string, val
 	}
 	if len(val) == 0 || val[0] != '"' {
 		text, reason, msg = fieldText(rec, path.names)
-		return text, reason, msg, true
+		return text, reason, msg, true, val == nil && (rec[0] == '{' || rec[0] == '[')
 	}
 	if text = stringText(val, plain); len(text) == 0 {
-		return nil, ReasonEmpty, fmt.Sprintf("field %q is empty", strings.Join(path.names, ".")), true
+		return nil, ReasonEmpty, fmt.Sprintf("field %q is empty", strings.Join(path.names, ".")), true, false
 	}
-	return text, "", "", true
+	return text, "", "", true, false
 }
 
 // fieldText finds the text of a valid JSON record by the rules in the
@@ -255,10 +458,26 @@ func joinMessages(v []byte) ([]byte, error) {
 
 // json reads a JSON document: an array of records, or one record.
 func (r *reader) json(in *bufio.Reader) error {
-	path := newJSONPath(strings.Split(r.opt.Field, "."))
+	rs := &records{r: r, format: FormatJSON, path: newJSONPath(strings.Split(r.opt.Field, ".")),
+		where: func(n int, msg string) string {
+			if n == 0 {
+				return msg
+			}
+			return "element " + strconv.Itoa(n) + ": " + msg
+		}}
+	// k keeps the bytes read until the first value is judged, to read the
+	// file as one text document if that value says so.
+	k := &keeper{r: in, max: r.opt.MaxRecord, keep: true}
+	asText := func(raw []byte) error {
+		if !k.keep {
+			return r.skip(0, ReasonNoField, fmt.Sprintf("no field %q", r.opt.Field), true)
+		}
+		return r.text(io.MultiReader(bytes.NewReader(k.buf), in), FormatJSON, r.size, rs.textNote(raw))
+	}
 	// Skip a byte order mark and white space to see the first byte.
 	if b, _ := in.Peek(3); bytes.Equal(b, bom) {
 		in.Discard(3)
+		k.buf = append(k.buf, bom...)
 	}
 	first := byte(0)
 	for {
@@ -271,8 +490,9 @@ func (r *reader) json(in *bufio.Reader) error {
 			first = c
 			break
 		}
+		k.buf = append(k.buf, c)
 	}
-	dec := json.NewDecoder(in)
+	dec := json.NewDecoder(k)
 	fail := func(n int, where string, err error) error {
 		if r.src.err != nil {
 			return r.readFailed(n, where, r.src.err)
@@ -293,7 +513,13 @@ func (r *reader) json(in *bufio.Reader) error {
 		if _, err := dec.Token(); err != io.EOF {
 			return r.skip(0, ReasonMalformed, fmt.Sprintf("data after the top-level value at byte %d (JSON Lines should be named .jsonl)", dec.InputOffset()), true)
 		}
-		return r.record(0, FormatJSON, raw, path, func(msg string) string { return msg })
+		if _, _, msg, _, absent := recordText(raw, rs.path); absent {
+			if !r.fieldAsked {
+				return asText(raw)
+			}
+			return r.skip(0, ReasonNoField, msg+" ("+fieldsAt(raw, rs.path.names)+")", true)
+		}
+		return rs.add(0, raw)
 	}
 	if _, err := dec.Token(); err != nil {
 		return fail(0, "array", err)
@@ -305,8 +531,12 @@ func (r *reader) json(in *bufio.Reader) error {
 		if err := dec.Decode(&raw); err != nil {
 			return fail(n, "element "+strconv.Itoa(n), err)
 		}
-		el := n
-		if e := r.record(n, FormatJSON, raw, path, func(msg string) string { return "element " + strconv.Itoa(el) + ": " + msg }); e != nil {
+		e := rs.add(n, raw)
+		if e == errAsText {
+			return asText(raw)
+		}
+		k.stop()
+		if e != nil {
 			return e
 		}
 	}
@@ -319,8 +549,29 @@ func (r *reader) json(in *bufio.Reader) error {
 	if n == 0 {
 		return r.skip(0, ReasonEmpty, "empty array", false)
 	}
-	return nil
+	return rs.finish()
 }
+
+// keeper reads from r and, while keep is set, keeps what it read in buf,
+// up to max bytes (past which it stops keeping).
+type keeper struct {
+	r    io.Reader
+	buf  []byte
+	max  int64
+	keep bool
+}
+
+func (k *keeper) Read(p []byte) (int, error) {
+	n, err := k.r.Read(p)
+	if k.keep {
+		if k.buf = append(k.buf, p[:n]...); int64(len(k.buf)) > k.max {
+			k.stop()
+		}
+	}
+	return n, err
+}
+
+func (k *keeper) stop() { k.buf, k.keep = nil, false }
 
 // jsonPrefixOK reports whether b, possibly cut short, tokenizes as JSON.
 func jsonPrefixOK(b []byte) bool {
