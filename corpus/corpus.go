@@ -32,10 +32,22 @@
 //     Record 0. The array is decoded one element at a time.
 //   - "csv", "tsv": one document per data row, taken from the column whose
 //     header is Options.Column (exact match, else case-insensitive). Record is
-//     the 1-based physical line where the row starts, the header being line
-//     1. Quoting follows RFC 4180; as encoding/csv does, a CRLF inside a
-//     quoted field becomes LF. TSV uses the same rules with a tab separator
-//     and lenient quotes.
+//     the 1-based row (the first after the header is 1) and Line the 1-based
+//     line where it starts, the header being line 1. Quoting follows RFC
+//     4180; as encoding/csv does, a CRLF inside a quoted field becomes LF.
+//     TSV uses the same rules with a tab separator and lenient quotes. A row
+//     that spans lines and fails (a quote that is never closed, say) is
+//     skipped and reading goes on from the line after the one where it
+//     started.
+//
+// A JSON or JSON Lines file whose first record (or array element, or only
+// value) is an object or array with nothing at Options.Field, or a CSV or
+// TSV file whose header has no Options.Column, is read as one text document
+// with a Document.Note saying so, when Options.Field or Options.Column is
+// left empty. When it was given, such a CSV file is one "no-field" skip that
+// lists the header, and JSON records without the field that are not
+// followed by any other record are one "no-field" skip for the file, which
+// says what the first of them holds.
 //
 // A leading UTF-8 byte order mark is ignored by the json, jsonl, csv and tsv
 // readers and kept in text documents.
@@ -62,9 +74,10 @@
 //
 // JSON Lines is read line by line and CSV row by row; a JSON array element by
 // element. Plain text up to Options.StreamAbove is held whole, larger files
-// are streamed. A JSON Lines line or an HTML text run longer than
-// Options.MaxRecord is skipped as "too-large". A single CSV row or JSON
-// element is held whole while it is read.
+// are streamed. A JSON Lines line, a CSV or TSV row or an HTML text run
+// longer than Options.MaxRecord is skipped as "too-large" (a CSV row holds
+// its lines twice while it is read, to read them again should it fail). A
+// single JSON element is held whole while it is read.
 package corpus
 
 import (
@@ -92,7 +105,8 @@ const (
 	// not parse. Failed; the rest of a JSON Lines or CSV file is still read.
 	ReasonMalformed = "malformed"
 	// ReasonNoField: a JSON record without Options.Field (or with null
-	// there), or a CSV header without Options.Column. Failed.
+	// there), a JSON file none of whose records has it, or a CSV header
+	// without Options.Column. Failed.
 	ReasonNoField = "no-field"
 	// ReasonNotText: a JSON field holding a number, boolean, object or an
 	// array that is not a list of messages. Failed.
@@ -119,8 +133,8 @@ const (
 	// ReasonRagged: a CSV/TSV row whose field count differs from the
 	// header's. Failed; the rest of the file is still read.
 	ReasonRagged = "ragged"
-	// ReasonTooLarge: a JSON Lines line or HTML text run longer than
-	// Options.MaxRecord. Failed.
+	// ReasonTooLarge: a JSON Lines line, CSV or TSV row or HTML text run
+	// longer than Options.MaxRecord. Failed.
 	ReasonTooLarge = "too-large"
 )
 
@@ -141,9 +155,12 @@ type Document struct {
 	// Source is the path as walked, "-" for standard input.
 	Source string
 	// Record is 0 for a whole file, the 1-based line for JSON Lines, the
-	// 1-based physical line where the row starts for CSV/TSV (the header is
-	// line 1), or the 1-based element index for a JSON array.
+	// 1-based row for CSV/TSV (the first row after the header is 1), or
+	// the 1-based element index for a JSON array.
 	Record int
+	// Line is, for a CSV/TSV row, the 1-based line where the row starts
+	// (the header is line 1; a quoted field may span lines); else 0.
+	Line int
 	// Format is one of the Format constants; compression is not named.
 	Format string
 	// Text is the text; nil when Stream is set.
@@ -167,6 +184,8 @@ type Skip struct {
 	Source string
 	// Record is 0 for a whole input, else as in Document.Record.
 	Record int
+	// Line is as in Document.Line.
+	Line int
 	// Reason is one of the Reason constants.
 	Reason string
 	// Detail is human text, e.g. "line 12: invalid character '}' ...".
@@ -193,9 +212,11 @@ type Item struct {
 // Options controls List and Read. The zero value is ready to use.
 type Options struct {
 	// Field is the JSON/JSON Lines field holding the text, a dotted path
-	// for nesting; default "text".
+	// for nesting; default "text". Left empty, a file without it is read as
+	// text (see the package comment).
 	Field string
-	// Column is the CSV/TSV column holding the text; default "text".
+	// Column is the CSV/TSV column holding the text; default "text". Left
+	// empty, a file without it is read as text.
 	Column string
 	// Include keeps only files matching one of these globs; Exclude drops
 	// files and prunes directories matching one of them. A pattern matches
@@ -209,8 +230,8 @@ type Options struct {
 	// StreamAbove is the plain-text size above which a Document carries a
 	// Stream instead of Text; default 32 MiB, negative means never.
 	StreamAbove int64
-	// MaxRecord bounds a JSON Lines line or an HTML text run; default
-	// 256 MiB.
+	// MaxRecord bounds a JSON Lines line, a CSV or TSV row or an HTML text
+	// run; default 256 MiB.
 	MaxRecord int64
 	// Format forces one format (a Format constant) instead of choosing by
 	// extension or content.

@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"strconv"
 	"strings"
 	"syscall"
 	"testing"
@@ -18,8 +19,9 @@ import (
 )
 
 // show renders items compactly: "src:rec format text" for a document and
-// "src:rec !reason" (failed) or "src:rec ~reason" (deliberate) for a skip.
-// Paths are shown relative to base, streams are read in full.
+// "src:rec !reason" (failed) or "src:rec ~reason" (deliberate) for a skip,
+// with "@line" after the record for a CSV or TSV row. Paths are shown
+// relative to base, streams are read in full.
 func show(t *testing.T, base string, items []Item) []string {
 	t.Helper()
 	var out []string
@@ -37,7 +39,7 @@ func show(t *testing.T, base string, items []Item) []string {
 				d.Stream.Close()
 				text = b
 			}
-			out = append(out, fmt.Sprintf("%s:%d %s %q", rel(base, d.Source), d.Record, d.Format, text))
+			out = append(out, fmt.Sprintf("%s:%s %s %q", rel(base, d.Source), at(d.Record, d.Line), d.Format, text))
 			continue
 		}
 		s := it.Skip
@@ -45,9 +47,16 @@ func show(t *testing.T, base string, items []Item) []string {
 		if s.Failed {
 			mark = "!"
 		}
-		out = append(out, fmt.Sprintf("%s:%d %s%s", rel(base, s.Source), s.Record, mark, s.Reason))
+		out = append(out, fmt.Sprintf("%s:%s %s%s", rel(base, s.Source), at(s.Record, s.Line), mark, s.Reason))
 	}
 	return out
+}
+
+func at(record, line int) string {
+	if line == 0 {
+		return strconv.Itoa(record)
+	}
+	return fmt.Sprintf("%d@%d", record, line)
 }
 
 func rel(base, p string) string {
@@ -281,22 +290,22 @@ func TestCSVRFC4180(t *testing.T) {
 	}{
 		// Rule 3: an optional header line; rule 1: records end in CRLF.
 		{"header", "field_name,field_name,field_name\r\naaa,bbb,ccc\r\nzzz,yyy,xxx\r\n", "field_name",
-			[]string{`-:2 csv "aaa"`, `-:3 csv "zzz"`}},
+			[]string{`-:1@2 csv "aaa"`, `-:2@3 csv "zzz"`}},
 		// Rule 2: the last record may lack the line break.
 		{"no final break", "a,text,c\r\naaa,bbb,ccc\r\nzzz,yyy,xxx", "text",
-			[]string{`-:2 csv "bbb"`, `-:3 csv "yyy"`}},
+			[]string{`-:1@2 csv "bbb"`, `-:2@3 csv "yyy"`}},
 		// Rule 5: fields may be enclosed in double quotes.
 		{"quoted", "a,text,c\r\n\"aaa\",\"bbb\",\"ccc\"\r\nzzz,yyy,xxx\r\n", "text",
-			[]string{`-:2 csv "bbb"`, `-:3 csv "yyy"`}},
+			[]string{`-:1@2 csv "bbb"`, `-:2@3 csv "yyy"`}},
 		// Rule 6: quoted fields may hold CRLF (encoding/csv turns it into LF);
-		// the next record starts on physical line 4.
+		// the next record, row 2, starts on line 4.
 		{"embedded CRLF", "a,text,c\r\n\"aaa\",\"b\r\nbb\",\"ccc\"\r\nzzz,yyy,xxx\r\n", "text",
-			[]string{`-:2 csv "b\nbb"`, `-:4 csv "yyy"`}},
+			[]string{`-:1@2 csv "b\nbb"`, `-:2@4 csv "yyy"`}},
 		// Rule 7: a double quote inside a quoted field is doubled.
 		{"doubled quote", "a,text,c\r\n\"aaa\",\"b\"\"bb\",\"ccc\"\r\n", "text",
-			[]string{`-:2 csv "b\"bb"`}},
+			[]string{`-:1@2 csv "b\"bb"`}},
 		// Rule 4: spaces are part of a field.
-		{"spaces", "a,text\r\n1, padded \r\n", "text", []string{`-:2 csv " padded "`}},
+		{"spaces", "a,text\r\n1, padded \r\n", "text", []string{`-:1@2 csv " padded "`}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -308,21 +317,21 @@ func TestCSVRFC4180(t *testing.T) {
 func TestCSVBadRows(t *testing.T) {
 	in := "id,text\n1,first\n2,ragged,extra\n3\n4,\"bare \"quote\"\n5,\n6,\"multi\nline\"\n7,last\n"
 	check(t, show(t, "", readBytes(t, []byte(in), Options{Format: FormatCSV})), []string{
-		`-:2 csv "first"`,
-		`-:3 !ragged`,
-		`-:4 !ragged`,
-		`-:5 !malformed`,
-		`-:6 ~empty`,
-		`-:7 csv "multi\nline"`,
-		`-:9 csv "last"`,
+		`-:1@2 csv "first"`,
+		`-:2@3 !ragged`,
+		`-:3@4 !ragged`,
+		`-:4@5 !malformed`,
+		`-:5@6 ~empty`,
+		`-:6@7 csv "multi\nline"`,
+		`-:7@9 csv "last"`,
 	})
 	items := readBytes(t, []byte(in), Options{Format: FormatCSV})
-	if d := items[1].Skip.Detail; d != "line 3: 3 fields, the header has 2" {
+	if d := items[1].Skip.Detail; d != "row 2 (line 3): 3 fields, the header has 2" {
 		t.Errorf("ragged detail = %q", d)
 	}
-	check(t, show(t, "", readBytes(t, []byte("id,body\n1,x\n"), Options{Format: FormatCSV})), []string{`-:0 !no-field`})
+	check(t, show(t, "", readBytes(t, []byte("id,body\n1,x\n"), Options{Format: FormatCSV, Column: "text"})), []string{`-:0 !no-field`})
 	check(t, show(t, "", readBytes(t, []byte("id,TEXT\n"), Options{Format: FormatCSV})), []string{`-:0 ~empty`})
-	check(t, show(t, "", readBytes(t, []byte("id\ttext\n1\tsay \"hi\"\n"), Options{Format: FormatTSV})), []string{`-:2 tsv "say \"hi\""`})
+	check(t, show(t, "", readBytes(t, []byte("id\ttext\n1\tsay \"hi\"\n"), Options{Format: FormatTSV})), []string{`-:1@2 tsv "say \"hi\""`})
 }
 
 func TestHTMLVisibleText(t *testing.T) {
@@ -450,14 +459,14 @@ func TestBadInputsWalkOn(t *testing.T) {
 		`e-malformed.jsonl:1 jsonl "ok"`,
 		`e-malformed.jsonl:2 !malformed`,
 		`e-malformed.jsonl:3 jsonl "after"`,
-		`f-ragged.csv:2 !ragged`,
-		`f-ragged.csv:3 csv "fine"`,
+		`f-ragged.csv:1@2 !ragged`,
+		`f-ragged.csv:2@3 csv "fine"`,
 		`g-corrupt.gz:0 !corrupt`,
 		`h-image.png:0 ~binary`,
 		`i-dangling.txt:0 !unreadable`,
 		`j-loop-a:0 !symlink-loop`,
 		`j-loop-b:0 !symlink-loop`,
-		`z-good.csv:2 csv "good row"`,
+		`z-good.csv:1@2 csv "good row"`,
 		`missing.txt:0 !unreadable`,
 	}
 	check(t, rest, want)
@@ -500,8 +509,8 @@ func TestWalkOrderAndFilters(t *testing.T) {
 			`notes/a.jsonl:1 jsonl "Crate 7 holds lanterns."`,
 			`notes/a.jsonl:2 jsonl "Crate 8 holds rope."`,
 			`notes/b.md:0 markdown "# Field notes\n\nThe lighthouse keeper counts gulls.\n"`,
-			`notes/c.csv:2 csv "Buoy painted red"`,
-			`notes/c.csv:3 csv "Buoy painted \"green\""`,
+			`notes/c.csv:1@2 csv "Buoy painted red"`,
+			`notes/c.csv:2@3 csv "Buoy painted \"green\""`,
 			`tool.go:0 code "package main\n\nfunc main() {}\n"`,
 		}},
 		{"hidden", []string{base}, Options{Hidden: true, Include: []string{"*.txt"}}, []string{
@@ -581,7 +590,7 @@ func TestCompressedRoundTrip(t *testing.T) {
 	}
 	// Standard input is sniffed for compression too.
 	check(t, show(t, "", readBytes(t, zst(t, []byte(files["rows.csv"])), Options{})),
-		[]string{`-:2 csv "two\nlines"`, `-:4 csv "plain"`})
+		[]string{`-:1@2 csv "two\nlines"`, `-:2@4 csv "plain"`})
 	check(t, show(t, "", readBytes(t, gz(t, []byte(files["notes.jsonl"])), Options{})),
 		[]string{`-:1 jsonl "Crate 7 holds lanterns."`, `-:2 jsonl "Crate 8 holds rope."`})
 }

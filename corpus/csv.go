@@ -37,67 +37,80 @@ func columnIndex(header []string, column string) int {
 }
 
 // csv reads one document per data row from the column named by
-// Options.Column.
-func (r *reader) csv(in *bufio.Reader, comma rune) error {
+// Options.Column. Rows are numbered from 1 after the header; Line is where
+// each starts.
+func (r *reader) csv(in *bufio.Reader, comma byte) error {
 	format := FormatCSV
 	if comma == '\t' {
 		format = FormatTSV
 	}
+	var lead []byte
 	if b, _ := in.Peek(3); bytes.Equal(b, bom) {
 		in.Discard(3)
+		lead = bom
 	}
-	cr := newCSV(in, comma)
-	header, err := cr.Read()
+	rr := newRowReader(in, comma, r.opt.MaxRecord)
+	rr.keepAll = true // the header's bytes, should the file be text
+	_, err := rr.next()
+	rr.keepAll = false
 	if err == io.EOF {
 		if r.src.err != nil {
 			return r.readFailed(0, "header", r.src.err)
 		}
 		return r.skip(0, ReasonEmpty, "no header", false)
 	}
-	if err != nil {
-		return r.csvFailed(1, err)
+	var re *rowError
+	if errors.As(err, &re) {
+		return r.skipAt(0, 1, re.reason, "header: "+re.Error(), true)
 	}
-	header = append([]string(nil), header...)
+	if err != nil {
+		return r.readFailed(0, "header", err)
+	}
+	header := make([]string, rr.fields())
+	for i := range header {
+		header[i] = string(rr.field(i))
+	}
 	col := columnIndex(header, r.opt.Column)
 	if col < 0 {
+		if !r.columnAsked {
+			// Not a table of texts: the whole file is one text document.
+			raw := append(append([]byte(nil), lead...), rr.raw...)
+			note := fmt.Sprintf("read as one text document: the header has no column %q (it has %s)", r.opt.Column, joinNames(header))
+			return r.text(io.MultiReader(bytes.NewReader(raw), bytes.NewReader(rr.back), in), format, r.size, note)
+		}
 		return r.skip(0, ReasonNoField, fmt.Sprintf("line 1: no column %q in header (%s)", r.opt.Column, strings.Join(header, ", ")), true)
 	}
 	rows := 0
 	for {
-		before := cr.InputOffset()
-		row, err := cr.Read()
+		line, err := rr.next()
 		if err == io.EOF {
 			break
 		}
 		rows++
+		if errors.As(err, &re) {
+			if e := r.skipAt(rows, re.line, re.reason, rowDetail(rows, re.line, re.msg), true); e != nil {
+				return e
+			}
+			continue
+		}
 		if err != nil {
-			var pe *csv.ParseError
-			if !errors.As(err, &pe) || r.src.err != nil {
-				return r.csvFailed(0, err)
-			}
-			if e := r.skip(pe.StartLine, ReasonMalformed, lineDetail(pe.StartLine, pe.Err.Error()), true); e != nil {
-				return e
-			}
-			if cr.InputOffset() == before {
-				break
-			}
-			continue
+			return r.readFailed(rows, rowDetail(rows, line, "read"), err)
 		}
-		line, _ := cr.FieldPos(0)
-		if len(row) != len(header) {
-			if e := r.skip(line, ReasonRagged, lineDetail(line, fmt.Sprintf("%d fields, the header has %d", len(row), len(header))), true); e != nil {
+		if rr.fields() != len(header) {
+			if e := r.skipAt(rows, line, ReasonRagged, rowDetail(rows, line, fmt.Sprintf("%d fields, the header has %d", rr.fields(), len(header))), true); e != nil {
 				return e
 			}
 			continue
 		}
-		if row[col] == "" {
-			if e := r.skip(line, ReasonEmpty, lineDetail(line, fmt.Sprintf("column %q is empty", header[col])), false); e != nil {
+		field := rr.field(col)
+		if len(field) == 0 {
+			if e := r.skipAt(rows, line, ReasonEmpty, rowDetail(rows, line, fmt.Sprintf("column %q is empty", header[col])), false); e != nil {
 				return e
 			}
 			continue
 		}
-		text := []byte(row[col])
-		if e := r.doc(&Document{Record: line, Format: format, Text: text, Size: int64(len(text))}); e != nil {
+		text := append([]byte(nil), field...)
+		if e := r.doc(&Document{Record: rows, Line: line, Format: format, Text: text, Size: int64(len(text))}); e != nil {
 			return e
 		}
 	}
@@ -110,18 +123,9 @@ func (r *reader) csv(in *bufio.Reader, comma rune) error {
 	return nil
 }
 
-func (r *reader) csvFailed(line int, err error) error {
-	var pe *csv.ParseError
-	if errors.As(err, &pe) && r.src.err == nil {
-		return r.skip(pe.StartLine, ReasonMalformed, lineDetail(pe.StartLine, pe.Err.Error()), true)
-	}
-	if r.src.err != nil {
-		err = r.src.err
-	}
-	if line == 0 {
-		return r.readFailed(0, "", err)
-	}
-	return r.readFailed(line, "line "+strconv.Itoa(line), err)
+// rowDetail names a row and the line where it starts.
+func rowDetail(row, line int, msg string) string {
+	return "row " + strconv.Itoa(row) + " (line " + strconv.Itoa(line) + "): " + msg
 }
 
 // sniffDelimited returns "tsv" or "csv" when the first line of head is a

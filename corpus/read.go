@@ -57,6 +57,12 @@ func (r *reader) skip(record int, reason, detail string, failed bool) error {
 	return r.fn(Item{Skip: &Skip{Source: r.in.Path, Record: record, Reason: reason, Detail: detail, Failed: failed}})
 }
 
+// skipAt is skip for a CSV or TSV row, which also gives the line where the
+// row starts.
+func (r *reader) skipAt(record, line int, reason, detail string, failed bool) error {
+	return r.fn(Item{Skip: &Skip{Source: r.in.Path, Record: record, Line: line, Reason: reason, Detail: detail, Failed: failed}})
+}
+
 // readFailed reports an error from reading the input itself.
 func (r *reader) readFailed(record int, where string, err error) error {
 	reason := ReasonUnreadable
