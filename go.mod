@@ -3,6 +3,7 @@ module morsel
 go 1.26.8
 
 require (
+	github.com/cespare/xxhash/v2 v2.3.0
 	github.com/dlclark/regexp2 v1.12.0
 	github.com/klauspost/compress v1.20.4
 	github.com/olekukonko/tablewriter v1.1.5
@@ -16,7 +17,6 @@ require (
 )
 
 require (
-	github.com/cespare/xxhash/v2 v2.3.0 // indirect
 	github.com/clipperhouse/displaywidth v0.10.0 // indirect
 	github.com/clipperhouse/uax29/v2 v2.6.0 // indirect
 	github.com/fatih/color v1.18.0 // indirect

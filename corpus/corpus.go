@@ -134,7 +134,8 @@ const (
 	// header's. Failed; the rest of the file is still read.
 	ReasonRagged = "ragged"
 	// ReasonTooLarge: a JSON Lines line, CSV or TSV row or HTML text run
-	// longer than Options.MaxRecord. Failed.
+	// longer than Options.MaxRecord, or a document whose text is longer
+	// than Options.MaxDocument. Failed.
 	ReasonTooLarge = "too-large"
 )
 
@@ -172,6 +173,10 @@ type Document struct {
 	// Size is the number of bytes of text when known (the file size for
 	// plain files), -1 if not known.
 	Size int64
+	// Hash is the XXH64 hash (seed 0) of the text, by which identical
+	// documents can be grouped. It is set when Text is, and for a Stream
+	// once the stream has been read to its end.
+	Hash uint64
 	// Note, when set, says that the input was read otherwise than its
 	// format suggests: a JSON, JSON Lines or CSV file without the text
 	// field or column, read as one text document, say. A report shows it
@@ -233,6 +238,10 @@ type Options struct {
 	// MaxRecord bounds a JSON Lines line, a CSV or TSV row or an HTML text
 	// run; default 256 MiB.
 	MaxRecord int64
+	// MaxDocument bounds the text of one document: a longer one is
+	// skipped as "too-large" (a Stream fails with ErrDocumentTooLarge
+	// once past it); default 256 MiB.
+	MaxDocument int64
 	// Format forces one format (a Format constant) instead of choosing by
 	// extension or content.
 	Format string
@@ -246,6 +255,9 @@ const DefaultStreamAbove = 32 << 20
 // DefaultMaxRecord is the default Options.MaxRecord.
 const DefaultMaxRecord = 256 << 20
 
+// DefaultMaxDocument is the default Options.MaxDocument.
+const DefaultMaxDocument = 256 << 20
+
 func (o Options) withDefaults() Options {
 	if o.Field == "" {
 		o.Field = "text"
@@ -258,6 +270,9 @@ func (o Options) withDefaults() Options {
 	}
 	if o.MaxRecord <= 0 {
 		o.MaxRecord = DefaultMaxRecord
+	}
+	if o.MaxDocument <= 0 {
+		o.MaxDocument = DefaultMaxDocument
 	}
 	if o.Stdin == nil {
 		o.Stdin = os.Stdin

@@ -347,7 +347,7 @@ func TestHTMLVisibleText(t *testing.T) {
 		{`<p>in<b>line</b> <i>words</i></p><template><p>never</p></template><noscript>off</noscript>`, "inline words"},
 	}
 	for _, tt := range tests {
-		got, err := visibleText(strings.NewReader(tt.in), 1<<20)
+		got, err := visibleText(strings.NewReader(tt.in), 1<<20, 1<<20)
 		if err != nil {
 			t.Fatalf("visibleText(%q): %v", tt.in, err)
 		}

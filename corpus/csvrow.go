@@ -75,6 +75,9 @@ func (r *rowReader) readLine(keep bool) ([]byte, error) {
 		} else {
 			line, r.back = r.back[:i+1], r.back[i+1:]
 		}
+		if len(r.back) == 0 {
+			r.back = nil // let what was given back go
+		}
 	} else {
 		r.line += r.gap
 		r.gap = 0
@@ -246,10 +249,14 @@ func (r *rowReader) fail(start int, msg string) error {
 // after the first the next ones read.
 func (r *rowReader) giveBack(start int, reason, msg string) error {
 	rest := r.raw[r.rawStart:]
-	if len(rest) > 0 {
+	if len(r.back) == 0 {
+		r.back = rest // raw's memory is back's now
+	} else {
 		// rest is read again before what was left of back.
-		r.back = append(append([]byte(nil), rest...), r.back...)
+		r.back = append(rest[:len(rest):len(rest)], r.back...)
 	}
+	// The row's memory goes now, not when the next long row replaces it.
+	r.raw, r.buf = nil, nil
 	given := bytes.Count(rest, []byte{'\n'})
 	if len(rest) > 0 && rest[len(rest)-1] != '\n' {
 		given++

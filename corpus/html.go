@@ -70,7 +70,7 @@ func (w *textWriter) lineBreak() {
 
 // visibleText returns the visible text of an HTML document, following the
 // rules in the package comment.
-func visibleText(in io.Reader, maxBuf int) ([]byte, error) {
+func visibleText(in io.Reader, maxBuf int, maxOut int64) ([]byte, error) {
 	z := html.NewTokenizer(in)
 	z.SetMaxBuf(maxBuf)
 	var w textWriter
@@ -91,6 +91,9 @@ func visibleText(in io.Reader, maxBuf int) ([]byte, error) {
 		case html.TextToken:
 			if dropped == 0 {
 				w.text(z.Text(), pre > 0)
+				if int64(len(w.out)) > maxOut {
+					return nil, ErrDocumentTooLarge
+				}
 			}
 		case html.StartTagToken, html.SelfClosingTagToken, html.EndTagToken:
 			name, _ := z.TagName()
@@ -128,9 +131,12 @@ func (r *reader) html(in *bufio.Reader) error {
 	if int64(max) != r.opt.MaxRecord {
 		max = 1 << 30
 	}
-	text, err := visibleText(in, max)
+	text, err := visibleText(in, max, r.opt.MaxDocument)
 	if err == nil {
 		err = r.src.err
+	}
+	if errors.Is(err, ErrDocumentTooLarge) {
+		return r.skip(0, ReasonTooLarge, tooLargeDetail(r.opt.MaxDocument), true)
 	}
 	if err != nil {
 		if errors.Is(err, html.ErrBufferExceeded) {

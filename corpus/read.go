@@ -13,6 +13,7 @@ import (
 	"syscall"
 	"unicode/utf8"
 
+	"github.com/cespare/xxhash/v2"
 	"github.com/klauspost/compress/zstd"
 )
 
@@ -50,7 +51,21 @@ type reader struct {
 
 func (r *reader) doc(d *Document) error {
 	d.Source = r.in.Path
+	if d.Stream == nil {
+		if int64(len(d.Text)) > r.opt.MaxDocument {
+			return r.skipAt(d.Record, d.Line, ReasonTooLarge, tooLargeDetail(r.opt.MaxDocument), true)
+		}
+		d.Hash = xxhash.Sum64(d.Text)
+	}
 	return r.fn(Item{Doc: d})
+}
+
+// ErrDocumentTooLarge is the error a Document.Stream returns, wrapped, once
+// its text has run past Options.MaxDocument.
+var ErrDocumentTooLarge = errors.New("document too large")
+
+func tooLargeDetail(max int64) string {
+	return fmt.Sprintf("the text is longer than %d bytes, the largest document read (MaxDocument)", max)
 }
 
 func (r *reader) skip(record int, reason, detail string, failed bool) error {
@@ -243,6 +258,9 @@ func (r *reader) run() error {
 // number of bytes src holds when known (an uncompressed file's size), else
 // -1. note becomes the Document's Note.
 func (r *reader) text(src io.Reader, format string, size int64, note string) error {
+	if size > r.opt.MaxDocument {
+		return r.skip(0, ReasonTooLarge, tooLargeDetail(r.opt.MaxDocument), true)
+	}
 	limit := r.opt.StreamAbove
 	var text []byte
 	if limit < 0 || size < 0 || size <= limit {
@@ -264,8 +282,10 @@ func (r *reader) text(src io.Reader, format string, size int64, note string) err
 		}
 	}
 	r.owned = true
-	s := &stream{r: io.MultiReader(bytes.NewReader(text), src), c: r.closers, src: r.in.Path}
-	return r.doc(&Document{Record: 0, Format: format, Stream: s, Size: size, Note: note})
+	d := &Document{Record: 0, Format: format, Size: size, Note: note}
+	d.Stream = &stream{r: io.MultiReader(bytes.NewReader(text), src), c: r.closers, src: r.in.Path,
+		doc: d, hash: xxhash.New(), max: r.opt.MaxDocument}
+	return r.doc(d)
 }
 
 // stream is a Document.Stream: it reads the rest of an input and closes
@@ -274,11 +294,22 @@ type stream struct {
 	r   io.Reader
 	c   io.Closer
 	src string
+	// doc gets its Hash from hash once the stream is read to its end.
+	doc  *Document
+	hash *xxhash.Digest
+	// n counts the bytes read; past max the stream fails.
+	n, max int64
 }
 
 func (s *stream) Read(p []byte) (int, error) {
 	n, err := s.r.Read(p)
-	if err != nil && err != io.EOF {
+	s.hash.Write(p[:n])
+	if s.n += int64(n); s.n > s.max {
+		return n, fmt.Errorf("%s: %w: %s", s.src, ErrDocumentTooLarge, tooLargeDetail(s.max))
+	}
+	if err == io.EOF {
+		s.doc.Hash = s.hash.Sum64()
+	} else if err != nil {
 		err = fmt.Errorf("%s: %w", s.src, err)
 	}
 	return n, err
