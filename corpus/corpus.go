@@ -115,6 +115,9 @@ const (
 	// walked above it (not failed: its files are counted once), or a link
 	// chain that loops and so cannot be opened at all (failed).
 	ReasonSymlinkLoop = "symlink-loop"
+	// ReasonNoMatch: an Options.Include pattern that matched no file
+	// listed; Source is the pattern. Failed.
+	ReasonNoMatch = "no-match"
 	// ReasonDuplicate: a file or directory reached a second time through a
 	// symbolic link or a repeated argument; counted once. Not failed.
 	ReasonDuplicate = "duplicate"

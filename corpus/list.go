@@ -2,6 +2,7 @@ package corpus
 
 import (
 	"errors"
+	"fmt"
 	"io/fs"
 	"os"
 	"path"
@@ -43,14 +44,44 @@ type lister struct {
 	out  []entry
 	seen map[string]string // real path -> path as walked
 	only string            // a "**" glob the walked files must match
+	// matched[i] is set once Include[i] has matched a file.
+	matched []bool
 }
 
 func list(paths []string, opt Options) []entry {
-	l := &lister{opt: opt, seen: map[string]string{}}
+	l := &lister{opt: opt, seen: map[string]string{}, matched: make([]bool, len(opt.Include))}
 	for _, p := range paths {
 		l.arg(p)
 	}
+	for i, ok := range l.matched {
+		if !ok && CheckPatterns(Options{Include: opt.Include[i : i+1]}) == nil {
+			l.skip(opt.Include[i], ReasonNoMatch, "no file matches the include pattern", true)
+		}
+	}
 	return l.out
+}
+
+// ErrBadPattern is wrapped by the error CheckPatterns returns.
+var ErrBadPattern = path.ErrBadPattern
+
+// CheckPatterns returns an error wrapping ErrBadPattern, naming the
+// pattern, when an Include or Exclude pattern is malformed (such a pattern
+// would match nothing). A caller checks this before listing, to report a
+// usage error.
+func CheckPatterns(opt Options) error {
+	for _, set := range []struct {
+		name     string
+		patterns []string
+	}{{"include", opt.Include}, {"exclude", opt.Exclude}} {
+		for _, pat := range set.patterns {
+			for _, part := range strings.Split(filepath.ToSlash(pat), "/") {
+				if _, err := path.Match(part, ""); err != nil {
+					return fmt.Errorf("%s pattern %q: %w", set.name, pat, err)
+				}
+			}
+		}
+	}
+	return nil
 }
 
 func (l *lister) add(in Input) { l.out = append(l.out, entry{in: &in}) }
@@ -239,8 +270,16 @@ func (l *lister) wanted(p, root string) bool {
 	if l.only != "" && !matchGlob(l.only, path.Clean(filepath.ToSlash(p))) {
 		return false
 	}
-	if len(l.opt.Include) > 0 && !matchAny(l.opt.Include, c) {
-		return false
+	if len(l.opt.Include) > 0 {
+		hit := false
+		for i, pat := range l.opt.Include {
+			if matchAny([]string{pat}, c) {
+				l.matched[i], hit = true, true
+			}
+		}
+		if !hit {
+			return false
+		}
 	}
 	return !matchAny(l.opt.Exclude, c)
 }
