@@ -129,10 +129,14 @@ func rowDetail(row, line int, msg string) string {
 }
 
 // sniffDelimited returns "tsv" or "csv" when the first line of head is a
-// header of two or more fields naming column and every following complete
-// line has as many fields; "" otherwise.
+// header of two or more fields naming column, and the rows after it parse
+// with most of them (and at least one) as many fields as the header; ""
+// otherwise. As a file named .csv is read, a ragged row does not make the
+// input text; and when head fills the window, its last row may be cut
+// (inside a quoted field that spans lines, say) and is not judged.
 func sniffDelimited(head []byte, column string) string {
-	if len(head) >= sniffSize {
+	full := len(head) >= sniffSize
+	if full {
 		if i := bytes.LastIndexByte(head, '\n'); i >= 0 {
 			head = head[:i+1]
 		}
@@ -144,19 +148,25 @@ func sniffDelimited(head []byte, column string) string {
 			continue
 		}
 		n, ok := len(header), true
-		rows := 0
+		rows, even := 0, 0
 		for {
 			row, err := cr.Read()
 			if err == io.EOF {
 				break
 			}
-			if err != nil || len(row) != n {
-				ok = false
+			if err != nil {
+				// Only the window's cut may fail: the last row.
+				if _, next := cr.Read(); !full || next != io.EOF {
+					ok = false
+				}
 				break
 			}
 			rows++
+			if len(row) == n {
+				even++
+			}
 		}
-		if ok && rows > 0 {
+		if ok && even > 0 && 2*even >= rows {
 			if comma == '\t' {
 				return FormatTSV
 			}

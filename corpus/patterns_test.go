@@ -2,7 +2,9 @@ package corpus
 
 import (
 	"errors"
+	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -26,5 +28,27 @@ func TestIncludePatterns(t *testing.T) {
 	}
 	if len(skips) != 1 || skips[0].Reason != ReasonNoMatch || skips[0].Source != "*.pdf" || !skips[0].Failed {
 		t.Errorf("skips %+v, want one failed no-match for *.pdf", skips)
+	}
+}
+
+// Standard input is read as CSV as a file named .csv is: a ragged row, or
+// a quoted field cut by the end of the sniffed window, does not make it
+// text.
+func TestStdinCSVLikeAFile(t *testing.T) {
+	long := "\"" + strings.Repeat("a long note that spans the sniffing window\n", 250) + "\""
+	for _, in := range []string{
+		"id,text\n1,first\n2,second,extra\n3,third\n",
+		"id,text\n1,first\n2," + long + "\n3,third\n",
+	} {
+		dir := t.TempDir()
+		p := filepath.Join(dir, "rows.csv")
+		if err := os.WriteFile(p, []byte(in), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		want := show(t, dir, readFile(t, p, Options{}))
+		for i := range want {
+			want[i] = "-" + strings.TrimPrefix(want[i], "rows.csv")
+		}
+		check(t, show(t, "", readBytes(t, []byte(in), Options{})), want)
 	}
 }
