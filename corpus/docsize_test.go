@@ -1,7 +1,9 @@
 package corpus
 
 import (
+	"bytes"
 	"errors"
+	"fmt"
 	"io"
 	"os"
 	"path/filepath"
@@ -82,5 +84,47 @@ func TestMaxDocument(t *testing.T) {
 	}
 	if len(items) != 1 {
 		t.Errorf("%d items", len(items))
+	}
+}
+
+// ReadStream keeps its decompressor open for a streamed document too.
+func TestReadStreamCompressedStream(t *testing.T) {
+	body := strings.Repeat("The keeper trims the wick at dusk. ", 4000)
+	for _, c := range []struct {
+		name string
+		pack func(*testing.T, []byte) []byte
+	}{{"gs://b/a.txt.zst", zst}, {"gs://b/a.txt.gz", gz}} {
+		var items []Item
+		err := ReadStream(c.name, -1, bytes.NewReader(c.pack(t, []byte(body))), Options{StreamAbove: 1 << 10},
+			func(it Item) error { items = append(items, it); return nil })
+		if err != nil {
+			t.Fatal(err)
+		}
+		check(t, show(t, "", items), []string{fmt.Sprintf("%s:0 text %q", c.name, body)})
+	}
+}
+
+// A bad gzip header is named once, and a cut gzip stream is truncated
+// whether its text was held or streamed.
+func TestGzipErrorsAlike(t *testing.T) {
+	items := readBytes(t, []byte("\x1f\x8bnot gzip at all"), Options{})
+	if d := items[0].Skip.Detail; strings.Count(d, "gzip:") != 1 {
+		t.Errorf("detail %q names gzip other than once", d)
+	}
+	var stop bytes.Buffer
+	for range 3000 {
+		fmt.Fprintf(&stop, "%d the tide turned at the harbour wall\n", stop.Len())
+	}
+	packed := gz(t, stop.Bytes())
+	cut := packed[:len(packed)/2]
+	held := readBytes(t, cut, Options{})
+	if s := held[0].Skip; s == nil || s.Reason != ReasonTruncated {
+		t.Fatalf("held: %+v", held[0])
+	}
+	streamed := readBytes(t, cut, Options{StreamAbove: 100})
+	_, err := io.ReadAll(streamed[0].Doc.Stream)
+	streamed[0].Doc.Stream.Close()
+	if ReasonOf(err) != ReasonTruncated {
+		t.Errorf("streamed: %v gives %q", err, ReasonOf(err))
 	}
 }

@@ -25,8 +25,11 @@ const sniffSize = 8 << 10
 // input order. Problems with the input become Skips; Read returns only the
 // first error fn returns, which stops it.
 func Read(in Input, opt Options, fn func(Item) error) error {
-	r := &reader{in: in, opt: opt.withDefaults(), fn: fn, fieldAsked: opt.Field != "", columnAsked: opt.Column != ""}
-	return r.run()
+	return newReader(in, opt, fn).run()
+}
+
+func newReader(in Input, opt Options, fn func(Item) error) *reader {
+	return &reader{in: in, opt: opt.withDefaults(), fn: fn, fieldAsked: opt.Field != "", columnAsked: opt.Column != ""}
 }
 
 type reader struct {
@@ -47,6 +50,9 @@ type reader struct {
 	// fieldAsked and columnAsked tell whether Options named the field or
 	// column, rather than leaving the default.
 	fieldAsked, columnAsked bool
+	// stdinCloser, when set, is closed as the file would be once "-" is
+	// read (ReadStream's decompressor).
+	stdinCloser io.Closer
 }
 
 func (r *reader) doc(d *Document) error {
@@ -80,20 +86,32 @@ func (r *reader) skipAt(record, line int, reason, detail string, failed bool) er
 
 // readFailed reports an error from reading the input itself.
 func (r *reader) readFailed(record int, where string, err error) error {
-	reason := ReasonUnreadable
-	switch {
-	case errors.Is(err, io.ErrUnexpectedEOF):
-		reason = ReasonTruncated
-	case errors.Is(err, gzip.ErrHeader), errors.Is(err, gzip.ErrChecksum), isZstdErr(err):
-		reason = ReasonCorrupt
-	case errors.Is(err, syscall.ELOOP):
-		reason = ReasonSymlinkLoop
-	}
 	msg := err.Error()
-	if where != "" {
+	// Errors of compress/gzip and zstd name their package already.
+	if where != "" && !strings.HasPrefix(msg, where+":") {
 		msg = where + ": " + msg
 	}
-	return r.skip(record, reason, msg, true)
+	return r.skip(record, ReasonOf(err), msg, true)
+}
+
+// ReasonOf returns the Reason for an error met reading an input, as Read
+// gives it in a Skip: ReasonTruncated for a stream that ends early,
+// ReasonCorrupt for a bad compressed header or checksum, ReasonTooLarge
+// for ErrDocumentTooLarge, ReasonSymlinkLoop, else ReasonUnreadable. A
+// consumer of Document.Stream uses it so that a read error gives the same
+// reason whether the document was held or streamed.
+func ReasonOf(err error) string {
+	switch {
+	case errors.Is(err, io.ErrUnexpectedEOF):
+		return ReasonTruncated
+	case errors.Is(err, ErrDocumentTooLarge):
+		return ReasonTooLarge
+	case errors.Is(err, gzip.ErrHeader), errors.Is(err, gzip.ErrChecksum), isZstdErr(err):
+		return ReasonCorrupt
+	case errors.Is(err, syscall.ELOOP):
+		return ReasonSymlinkLoop
+	}
+	return ReasonUnreadable
 }
 
 func isZstdErr(err error) bool {
@@ -129,6 +147,12 @@ func (r *reader) run() error {
 	var f io.ReadCloser
 	if r.in.Path == "-" {
 		f = io.NopCloser(r.opt.Stdin)
+		if r.stdinCloser != nil {
+			f = struct {
+				io.Reader
+				io.Closer
+			}{r.opt.Stdin, r.stdinCloser}
+		}
 	} else {
 		file, err := openRegular(r.in.Path)
 		if err != nil {

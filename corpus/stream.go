@@ -29,6 +29,9 @@ func ReadStream(name string, size int64, r io.Reader, opt Options, fn func(Item)
 	}
 	base := strings.ToLower(filepath.Base(name))
 	var body io.Reader = r
+	// closer closes the decompressor once Read is done with it, or once
+	// a Document.Stream that reads through it is closed.
+	var closer io.Closer
 	switch {
 	case strings.HasSuffix(base, ".gz"):
 		base = strings.TrimSuffix(base, ".gz")
@@ -37,28 +40,37 @@ func ReadStream(name string, size int64, r io.Reader, opt Options, fn func(Item)
 			return skip(ReasonEmpty, "no bytes", false)
 		}
 		if err != nil {
-			return skip(ReasonCorrupt, "gzip: "+err.Error(), true)
+			msg := err.Error()
+			if !strings.HasPrefix(msg, "gzip:") {
+				msg = "gzip: " + msg
+			}
+			return skip(ReasonCorrupt, msg, true)
 		}
-		defer zr.Close()
+		closer = zr
 		body, size = zr, -1
 	case strings.HasSuffix(base, ".zst"), strings.HasSuffix(base, ".zstd"):
 		base = strings.TrimSuffix(strings.TrimSuffix(base, ".zstd"), ".zst")
 		zr, err := zstd.NewReader(r, zstd.WithDecoderConcurrency(1), zstd.WithDecoderLowmem(true),
 			zstd.WithDecoderMaxMemory(1<<30))
 		if err != nil {
-			return skip(ReasonCorrupt, "zstd: "+err.Error(), true)
+			return skip(ReasonCorrupt, err.Error(), true)
 		}
-		defer zr.Close()
+		closer = zstdCloser{zr}
 		body, size = zr, -1
 	}
 	if opt.Format == "" {
 		opt.Format = formatByExt(filepath.Ext(base))
 	}
 	if opt.Format == "binary" {
+		if closer != nil {
+			closer.Close()
+		}
 		return skip(ReasonBinary, "binary file type "+filepath.Ext(base), false)
 	}
 	// Read treats "-" as a stream it must not open, and takes its bytes
 	// from Options.Stdin; the names are put back on the way out.
 	opt.Stdin = body
-	return Read(Input{Path: "-", Size: size}, opt, named)
+	rd := newReader(Input{Path: "-", Size: size}, opt, named)
+	rd.stdinCloser = closer
+	return rd.run()
 }
