@@ -242,20 +242,8 @@ func (s *findScanner) object(level int, onPath bool) bool {
 		if !s.value(level+1, onPath && keyIs(key, plain, s.path.names[level])) {
 			return false
 		}
-		s.space()
-		if s.i >= len(s.b) {
-			return false
-		}
-		switch s.b[s.i] {
-		case ',':
-			s.i++
-			s.space()
-		case '}':
-			s.i++
-			s.depth--
-			return true
-		default:
-			return false
+		if more, ok := s.next('}'); !more {
+			return ok
 		}
 	}
 }
@@ -279,22 +267,30 @@ func (s *findScanner) array(level int, onPath bool) bool {
 		if !s.value(level+1, k == want) {
 			return false
 		}
-		s.space()
-		if s.i >= len(s.b) {
-			return false
-		}
-		switch s.b[s.i] {
-		case ',':
-			s.i++
-			s.space()
-		case ']':
-			s.i++
-			s.depth--
-			return true
-		default:
-			return false
+		if more, ok := s.next(']'); !more {
+			return ok
 		}
 	}
+}
+
+// next reads what follows a member or element: a comma, after which it
+// reports more, or the closing byte, which ends the container (ok).
+func (s *findScanner) next(close byte) (more, ok bool) {
+	s.space()
+	if s.i >= len(s.b) {
+		return false, false
+	}
+	switch s.b[s.i] {
+	case ',':
+		s.i++
+		s.space()
+		return true, true
+	case close:
+		s.i++
+		s.depth--
+		return false, true
+	}
+	return false, false
 }
 
 // keyIs reports whether the raw contents of a member name decode to name.
