@@ -353,14 +353,16 @@ function main() {
   console.log(`make-golden: wrote ${cases.length} cases, ${total} ids with ${LIBRARY} ${libVersion} to ${outFile}`);
 }
 
-// allBundles lists BUNDLES and every small bundle in testdata/bundles/
-// (its golden named after the file).
+// SMALL_BUNDLES are the bundles of testdata/bundles/ (written by
+// make-bundles.py) whose components this library implements as the
+// tokenizers library does. precompiled.json is not among them: this
+// library's Precompiled normalizer applies NFKC and a few replacements
+// instead of the bundle's character map, so bpe checks that one against
+// Debian's sentencepiece.
+const SMALL_BUNDLES = ["words"];
+
 function allBundles() {
-  const dir = join(root, "testdata", "bundles");
-  const small = existsSync(dir)
-    ? readdirSync(dir).filter((f) => f.endsWith(".json") && !f.endsWith("_config.json")).sort().map((f) => [f.replace(/\.json$/, ""), join(dir, f)])
-    : [];
-  return [...BUNDLES, ...small];
+  return [...BUNDLES, ...SMALL_BUNDLES.map((n) => [n, join(root, "testdata", "bundles", n + ".json")])];
 }
 
 main();
