@@ -126,7 +126,19 @@ type bundleSpec struct {
 	vocab      []vocabEntry
 	merges     []mergeEntry
 	vocabLines []int // line of each vocabulary entry, for errors
+
+	// digested: read from the cache, where the vocabulary's keys are raw
+	// bytes already checked and the merges come resolved, by rank.
+	digested bool
+	triples  []mergeTriple
+	nMerges  int
+	raws     [][]byte // each vocabulary key's raw bytes, once built
+	byteLvl  bool
 }
+
+// mergeTriple is a resolved merge: its rank, its pair and the token it
+// makes.
+type mergeTriple struct{ rank, a, b, merged uint32 }
 
 type vocabEntry struct {
 	key []byte
@@ -230,7 +242,8 @@ func parseBundleJSON(name string, data []byte) (*bundleSpec, error) {
 func (b *bundleSpec) readVocab(j *jscan, at int) error {
 	j.pos = at
 	lines := lineCounter{data: j.data}
-	return j.object(func(key string, at int) error {
+	return j.objectBytes(func(key []byte, at int) error {
+		key = j.own(key)
 		n, nat, err := j.int()
 		if err != nil {
 			return j.errAt(nat, "model.vocab: token %q: the id must be a whole number", key)
@@ -239,7 +252,7 @@ func (b *bundleSpec) readVocab(j *jscan, at int) error {
 		if n < 0 || n >= maxTokenID {
 			return &posError{b.name, line, fmt.Sprintf("model.vocab: token %q has id %d, outside 0..%d", key, n, maxTokenID-1)}
 		}
-		b.vocab = append(b.vocab, vocabEntry{[]byte(key), int(n)})
+		b.vocab = append(b.vocab, vocabEntry{key, int(n)})
 		b.vocabLines = append(b.vocabLines, line)
 		return nil
 	})
@@ -261,7 +274,8 @@ func (b *bundleSpec) readMerges(j *jscan, at int) error {
 			if sp <= 0 || sp == len(s)-1 || bytes.IndexByte(s[sp+1:], ' ') >= 0 {
 				return &posError{b.name, line, fmt.Sprintf("model.merges[%d]: a merge is two tokens separated by one space, not %q", i, s)}
 			}
-			b.merges = append(b.merges, mergeEntry{bytes.Clone(s[:sp]), bytes.Clone(s[sp+1:]), line})
+			s = j.own(s)
+			b.merges = append(b.merges, mergeEntry{s[:sp:sp], s[sp+1:], line})
 		case '[':
 			var parts [][]byte
 			err := j.array(func(k, _ int) error {
@@ -269,7 +283,7 @@ func (b *bundleSpec) readMerges(j *jscan, at int) error {
 				if err != nil {
 					return err
 				}
-				parts = append(parts, bytes.Clone(s))
+				parts = append(parts, j.own(s))
 				return nil
 			})
 			if err != nil {
@@ -311,12 +325,13 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 	if err != nil {
 		return nil, err
 	}
+	b.byteLvl = byteLevel
 	norm, err := compileNormalizer(name, comp("normalizer"))
 	if err != nil {
 		return nil, err
 	}
 	raw := func(key []byte) []byte {
-		if byteLevel {
+		if byteLevel && !b.digested {
 			r, _ := unspell(string(key))
 			return r
 		}
@@ -347,25 +362,48 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 	if len(b.vocab) == 0 {
 		return nil, &posError{name, 0, "model.vocab: no tokens"}
 	}
-	v := &Vocab{name: name, tokens: make([][]byte, size), ids: make(map[string]int, len(b.vocab))}
-	v.idOnce.Do(func() {})
+	v := &Vocab{name: name, tokens: make([][]byte, size)}
+	// A plain byte-level model never looks a token up by its bytes while
+	// encoding, so a bundle from the cache leaves that map to the first
+	// Vocab.ID: the biggest cost of a load.
+	lazyIDs := b.digested && byteLevel && !b.model.IgnoreMerges &&
+		(b.model.ContinuingSubwordPrefix == nil || *b.model.ContinuingSubwordPrefix == "") &&
+		(b.model.EndOfWordSuffix == nil || *b.model.EndOfWordSuffix == "")
+	if !lazyIDs {
+		v.ids = make(map[string]int, len(b.vocab))
+		v.idOnce.Do(func() {})
+	}
 	spell := make([][]byte, size)
-	seenKey := make(map[string]int, len(b.vocab))
+	if !b.digested {
+		b.raws = make([][]byte, len(b.vocab))
+	}
 	for i, e := range b.vocab {
-		if first, dup := seenKey[string(e.key)]; dup {
-			return nil, &posError{name, b.vocabLines[i], fmt.Sprintf("model.vocab: token %q appears twice (first on line %d)", e.key, b.vocabLines[first])}
+		if b.digested {
+			spell[e.id] = e.key
+			if !lazyIDs {
+				v.ids[string(e.key)] = e.id
+			}
+			v.tokens[e.id] = e.key
+			continue
 		}
-		seenKey[string(e.key)] = i
 		if spell[e.id] != nil {
 			return nil, &posError{name, b.vocabLines[i], fmt.Sprintf("model.vocab: id %d is given to %q and to %q", e.id, spell[e.id], e.key)}
 		}
 		spell[e.id] = e.key
 		r := raw(e.key)
 		if other, dup := v.ids[string(r)]; dup {
+			if bytes.Equal(spell[other], e.key) {
+				return nil, &posError{name, b.vocabLines[i], fmt.Sprintf("model.vocab: token %q appears twice", e.key)}
+			}
 			return nil, &posError{name, b.vocabLines[i], fmt.Sprintf("model.vocab: ids %d and %d spell the same bytes %q", other, e.id, r)}
 		}
 		v.ids[string(r)] = e.id
 		v.tokens[e.id] = r
+		b.raws[i] = r
+	}
+	lookup := v.ids
+	if lazyIDs {
+		lookup = v.someIDs(b.model.UnkToken, b.model.ByteFallback)
 	}
 	m := &v.model
 	m.charLevel = !byteLevel
@@ -379,7 +417,7 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 		m.suffix = string(raw([]byte(*s)))
 	}
 	if u := b.model.UnkToken; u != nil {
-		id, ok := v.ids[string(raw([]byte(*u)))]
+		id, ok := lookup[string(raw([]byte(*u)))]
 		if !ok {
 			return nil, &posError{name, 0, fmt.Sprintf("model: unk_token %q is not in the vocabulary", *u)}
 		}
@@ -391,7 +429,7 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 	if b.model.ByteFallback {
 		m.fallback = true
 		for c := 0; c < 256; c++ {
-			if id, ok := v.ids[fmt.Sprintf("<0x%02X>", c)]; ok {
+			if id, ok := lookup[fmt.Sprintf("<0x%02X>", c)]; ok {
 				m.fallbackID[c] = uint32(id)
 				v.tokens[id] = []byte{byte(c)}
 			}
@@ -399,7 +437,7 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 	}
 	if byteLevel {
 		for c := 0; c < 256; c++ {
-			id, ok := v.ids[string([]byte{byte(c)})]
+			id, ok := lookup[string([]byte{byte(c)})]
 			if !ok {
 				return nil, &posError{name, 0, fmt.Sprintf("model.vocab lacks the one-byte token for byte 0x%02X (%q); a byte-level vocabulary needs all 256", c, string(byteToRune[c]))}
 			}
@@ -455,6 +493,14 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 }
 
 func (b *bundleSpec) buildMerges(v *Vocab, raw func([]byte) []byte) error {
+	if b.digested {
+		v.merges = newU64Table(len(b.triples))
+		for _, t := range b.triples {
+			v.merges.put(pairKey(t.a, t.b), uint64(t.rank)<<32|uint64(t.merged))
+		}
+		v.nMerges = b.nMerges
+		return nil
+	}
 	v.merges = newU64Table(len(b.merges))
 	prefix := []byte(v.model.prefix)
 	var buf []byte
@@ -479,6 +525,35 @@ func (b *bundleSpec) buildMerges(v *Vocab, raw func([]byte) []byte) error {
 	}
 	v.nMerges = len(b.merges)
 	return nil
+}
+
+// someIDs returns the ids of the tokens that a load looks up by their
+// bytes (one-byte tokens, byte-fallback tokens, the unk token), found in
+// one pass over the vocabulary.
+func (v *Vocab) someIDs(unk *string, fallback bool) map[string]int {
+	want := map[string]bool{}
+	longest := 1
+	if unk != nil {
+		want[*unk] = true
+		longest = max(longest, len(*unk))
+	}
+	if fallback {
+		for c := 0; c < 256; c++ {
+			want[fmt.Sprintf("<0x%02X>", c)] = true
+		}
+		longest = max(longest, 6)
+	}
+	out := make(map[string]int, 256+len(want))
+	for id, t := range v.tokens {
+		switch {
+		case t == nil || len(t) > longest:
+		case len(t) == 1:
+			out[string(t)] = id
+		case want[string(t)]:
+			out[string(t)] = id
+		}
+	}
+	return out
 }
 
 // findSpecialsBundle lists a bundle's special added tokens.

@@ -100,6 +100,7 @@ func TestConfigWindow(t *testing.T) {
 
 // A vocabulary file must be a regular file.
 func TestLoadBundleNotRegular(t *testing.T) {
+	t.Setenv("MORSEL_CACHE_DIR", t.TempDir())
 	if _, err := os.Stat("/dev/zero"); err != nil {
 		t.Skip("no /dev/zero")
 	}

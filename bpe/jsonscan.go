@@ -1,6 +1,7 @@
 package bpe
 
 import (
+	"bytes"
 	"morsel/internal/textfile"
 
 	"fmt"
@@ -229,9 +230,25 @@ func isJSONDelim(c byte) bool {
 	return false
 }
 
+// own returns b if it is a slice of the data (a string with no escapes),
+// else a copy of it: bytes that outlive the next read.
+func (j *jscan) own(b []byte) []byte {
+	if len(b) > 0 {
+		if at := cap(j.data) - cap(b); at >= 0 && at < len(j.data) && &j.data[at] == &b[0] {
+			return b
+		}
+	}
+	return bytes.Clone(b)
+}
+
 // object calls fn for each key of the object at the current position;
 // fn must consume the value.
 func (j *jscan) object(fn func(key string, at int) error) error {
+	return j.objectBytes(func(key []byte, at int) error { return fn(string(key), at) })
+}
+
+// objectBytes is object with the key as bytes, valid until the next read.
+func (j *jscan) objectBytes(fn func(key []byte, at int) error) error {
 	if err := j.expect('{', "an object"); err != nil {
 		return err
 	}
@@ -246,11 +263,10 @@ func (j *jscan) object(fn func(key string, at int) error) error {
 		if err != nil {
 			return err
 		}
-		key := string(k)
 		if err := j.expect(':', "':'"); err != nil {
 			return err
 		}
-		if err := fn(key, at); err != nil {
+		if err := fn(k, at); err != nil {
 			return err
 		}
 		switch j.peek() {

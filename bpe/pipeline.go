@@ -168,7 +168,7 @@ func metaspaceCut(v *Vocab, p *pipeline) bool {
 		return false
 	}
 	r := []byte(p.metaspace)
-	if _, ok := v.ids[string(r)]; !ok {
+	if _, ok := v.ID(r); !ok {
 		return false
 	}
 	for id := range v.tokens {
