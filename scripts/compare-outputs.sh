@@ -27,7 +27,8 @@ trap 'rm -rf "$work"' EXIT
 runs=0 diffs=0
 
 # one NAME ARGS...: run both builds with ARGS (the string @EMIT@ names a
-# file per build) and compare standard output, the emitted file and the exit status.
+# file per build; standard input is $STDIN, else empty) and compare
+# standard output, the emitted file and the exit status.
 one() {
   local name=$1
   shift
@@ -38,7 +39,7 @@ one() {
     local args=() a
     for a in "$@"; do args+=("${a//@EMIT@/$work/$b.emit}"); done
     rm -f "$work/$b.emit"
-    "$bin" "${args[@]}" >"$work/$b.out" 2>"$work/$b.err" </dev/null
+    "$bin" "${args[@]}" >"$work/$b.out" 2>"$work/$b.err" <"${STDIN:-/dev/null}"
     echo $? >"$work/$b.rc"
     [ -f "$work/$b.emit" ] || : >"$work/$b.emit"
   done
@@ -61,7 +62,14 @@ one() {
 
 one "pieces table" pieces "Bathyphorus quillandri, QX-7731-Rb 龘"
 for f in table json csv md; do
-  one "pieces $f stdin-file" pieces --file $demo/memo-ja-kirisaki-shipping.txt --format $f
+  one "pieces $f file" pieces --file $demo/memo-ja-kirisaki-shipping.txt --format $f
+done
+tickets=$demo/support-tickets-2024-q4.jsonl
+STDIN=$demo/notiz-de-werkstattbesuch-nordvellen.txt one "pieces json stdin" pieces --format json
+for cmd in survey fit quote fragments ration; do
+  extra=()
+  case $cmd in fit | ration) extra=(--targets $targets --target harbor-small) ;; quote) extra=(--targets $targets) ;; esac
+  STDIN=$tickets one "$cmd json stdin" $cmd --format json "${extra[@]}" -
 done
 for c in "$@"; do
   for f in table json csv md html; do
