@@ -6,7 +6,8 @@ import (
 	"github.com/spf13/cobra"
 
 	"morsel/corpus"
-	"morsel/report"
+	"morsel/report/fit"
+	"morsel/report/render"
 )
 
 func init() { extraCommands = append(extraCommands, newFit) }
@@ -37,7 +38,7 @@ overflows, else 0.`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
 			boundMemory()
-			f, err := sh.outFormat("fit", report.Table, report.JSON, report.CSV, report.Markdown, report.HTML)
+			f, err := sh.outFormat("fit", render.Table, render.JSON, render.CSV, render.Markdown, render.HTML)
 			if err != nil {
 				return err
 			}
@@ -45,31 +46,28 @@ overflows, else 0.`,
 			if err != nil {
 				return err
 			}
-			fitter := &report.Fitter{Enc: rq.enc, Frame: rq.frame, Window: rq.window, Answer: rq.answer, Overhead: rq.overhead}
-			fc := report.NewFitCollector(fitter, rq.target)
-			err = report.Walk(args, cf.options(), sh.workers, sh.progress(), fitter.Fit,
-				func(it corpus.Item, d report.FitDoc, err error) error {
-					fc.Add(it, d, err)
-					return nil
-				})
+			fitter := &fit.Fitter{Enc: rq.enc, Frame: rq.frame, Window: rq.window, Answer: rq.answer, Overhead: rq.overhead}
+			fc := fit.NewCollector(fitter, rq.target)
+			skipped, err := walkDocs(sh, &cf, args, fitter.Fit, collector[fit.Doc]{
+				add:    func(_ *corpus.Document, d fit.Doc) error { fc.Add(d); return nil },
+				tokens: func(d fit.Doc) int { return d.Tokens },
+			})
 			if err != nil {
 				return err
 			}
-			r := fc.Finish()
-			write := func() error { return report.WriteFit(sh.stdout, f, r) }
-			if f == report.HTML {
-				write = func() error { return report.WriteFitHTML(sh.stdout, r, 0) }
+			r := fc.Finish(skipped)
+			write := func() error { return fit.Write(sh.stdout, f, r) }
+			if f == render.HTML {
+				write = func() error { return fit.WriteHTML(sh.stdout, r, 0) }
 			}
 			if err := write(); err != nil {
 				return err
 			}
-			if err := sh.skipStatus(r.Skipped); err != nil {
-				return err
-			}
+			var check error
 			if r.Totals.Overflow > 0 {
-				return &checkFailed{fmt.Sprintf("%s of %s document(s) overflow the %s-token window", report.Num(r.Totals.Overflow), report.Num(r.Totals.Documents), report.Num(r.Window))}
+				check = &checkFailed{fmt.Sprintf("%s of %s document(s) overflow the %s-token window", render.Num(r.Totals.Overflow), render.Num(r.Totals.Documents), render.Num(r.Window))}
 			}
-			return nil
+			return sh.finish(r.Skipped, check)
 		},
 	}
 	addCorpusFlags(c, &cf)

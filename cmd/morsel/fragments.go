@@ -7,7 +7,8 @@ import (
 	"github.com/spf13/cobra"
 
 	"morsel/corpus"
-	"morsel/report"
+	"morsel/report/fragments"
+	"morsel/report/render"
 )
 
 func init() { extraCommands = append(extraCommands, newFragments) }
@@ -40,7 +41,7 @@ flag when it reaches --min-pieces.`,
   morsel fragments exports/tickets.jsonl --min-pieces 4 --min-count 5 --top 20 --format json`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
-			f, err := sh.outFormat("fragments", report.Table, report.JSON, report.CSV, report.Markdown, report.HTML)
+			f, err := sh.outFormat("fragments", render.Table, render.JSON, render.CSV, render.Markdown, render.HTML)
 			if err != nil {
 				return err
 			}
@@ -53,13 +54,13 @@ flag when it reaches --min-pieces.`,
 			if top < 0 || docRows < 0 {
 				return usagef("fragments", "--top and --doc-rows take 0 (all) or more")
 			}
-			var terms []report.Term
+			var terms []fragments.Term
 			if termsFile != "" {
 				fh, err := os.Open(termsFile)
 				if err != nil {
 					return &inputError{fmt.Errorf("glossary: %w", err)}
 				}
-				terms, err = report.ParseGlossary(termsFile, fh)
+				terms, err = fragments.ParseGlossary(termsFile, fh)
 				fh.Close()
 				if err != nil {
 					return &inputError{fmt.Errorf("glossary: %w", err)}
@@ -70,28 +71,26 @@ flag when it reaches --min-pieces.`,
 				return err
 			}
 			paceGrowingHeap()
-			fr := report.NewFragmenter(enc, terms)
-			prog := sh.progress()
-			err = report.Walk(args, cf.options(), sh.workers, prog, fr.Scan,
-				func(it corpus.Item, dw *report.DocWords, err error) error {
-					if prog != nil && dw != nil {
-						prog.Tokens(dw.Tokens)
-					}
-					fr.Add(it, dw, err)
+			fr := fragments.NewFragmenter(enc, terms)
+			skipped, err := walkDocs(sh, &cf, args, fr.Scan, collector[*fragments.DocWords]{
+				add: func(d *corpus.Document, dw *fragments.DocWords) error {
+					fr.AddWords(d.Source, d.Record, dw)
 					return nil
-				})
+				},
+				tokens: func(dw *fragments.DocWords) int { return dw.Tokens },
+			})
 			if err != nil {
 				return err
 			}
-			r := fr.Finish(report.FragmentOptions{MinPieces: minPieces, MinCount: minCount, Top: top})
-			write := func() error { return report.WriteFragments(sh.stdout, f, r, docRows) }
-			if f == report.HTML {
-				write = func() error { return report.WriteFragmentsHTML(sh.stdout, r, docRows) }
+			r := fr.Finish(fragments.Options{MinPieces: minPieces, MinCount: minCount, Top: top}, skipped)
+			write := func() error { return fragments.Write(sh.stdout, f, r, docRows) }
+			if f == render.HTML {
+				write = func() error { return fragments.WriteHTML(sh.stdout, r, docRows) }
 			}
 			if err := write(); err != nil {
 				return err
 			}
-			return sh.skipStatus(r.Skipped)
+			return sh.finish(r.Skipped, nil)
 		},
 	}
 	addCorpusFlags(c, &cf)

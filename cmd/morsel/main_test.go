@@ -130,7 +130,7 @@ type surveyJSON struct {
 	} `json:"totals"`
 }
 
-func survey(t *testing.T, args ...string) (surveyJSON, string, int) {
+func runSurvey(t *testing.T, args ...string) (surveyJSON, string, int) {
 	t.Helper()
 	out, errs, code := run(t, "", append([]string{"survey", "--format", "json"}, args...)...)
 	var s surveyJSON
@@ -143,7 +143,7 @@ func survey(t *testing.T, args ...string) (surveyJSON, string, int) {
 // The survey's totals equal the sum of what pieces counts for the same
 // texts, document by document.
 func TestSurveyTotalsMatchPieces(t *testing.T) {
-	s, _, code := survey(t, "../../testdata/demo")
+	s, _, code := runSurvey(t, "../../testdata/demo")
 	if code != 0 {
 		t.Fatalf("exit %d", code)
 	}
@@ -210,7 +210,7 @@ func TestSurveyBadInputs(t *testing.T) {
 	w("rows.csv", []byte("id,text\n1,first row\n2,second,extra\n3,third row\n"))
 	os.Symlink("loop-b", filepath.Join(dir, "loop-a"))
 	os.Symlink("loop-a", filepath.Join(dir, "loop-b"))
-	s, _, code := survey(t, dir, filepath.Join(dir, "missing.txt"))
+	s, _, code := runSurvey(t, dir, filepath.Join(dir, "missing.txt"))
 	if code != 1 {
 		t.Fatalf("exit %d, want 1", code)
 	}
@@ -260,7 +260,7 @@ func TestSurveyStreamedFile(t *testing.T) {
 	para := []byte("Salt spray dulled the QX-7731-Rb housing; the crew logged 3.5 mm of pitting.\n\n")
 	big := bytes.Repeat(para, (corpus.DefaultStreamAbove/len(para))+1000)
 	os.WriteFile(filepath.Join(dir, "big.txt"), big, 0o644)
-	s, _, code := survey(t, dir)
+	s, _, code := runSurvey(t, dir)
 	if code != 0 || len(s.Documents) != 1 {
 		t.Fatalf("exit %d, %d documents", code, len(s.Documents))
 	}

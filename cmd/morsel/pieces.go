@@ -10,7 +10,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"morsel/bpe"
-	"morsel/report"
+	"morsel/report/render"
 )
 
 func newPieces(sh *shared) *cobra.Command {
@@ -28,7 +28,7 @@ standard input when neither is given.`,
   morsel pieces --file note.txt --format json
   echo "QX-7731-Rb" | morsel pieces`,
 		RunE: func(c *cobra.Command, args []string) error {
-			f, err := sh.outFormat("pieces", report.Table, report.JSON, report.CSV, report.Markdown)
+			f, err := sh.outFormat("pieces", render.Table, render.JSON, render.CSV, render.Markdown)
 			if err != nil {
 				return err
 			}
@@ -74,34 +74,34 @@ type piecesJSON struct {
 	Bytes  int      `json:"bytes"`
 }
 
-func writePieces(w io.Writer, f report.Format, v *bpe.Vocab, ids []int, nbytes int) error {
-	if f == report.JSON {
+func writePieces(w io.Writer, f render.Format, v *bpe.Vocab, ids []int, nbytes int) error {
+	if f == render.JSON {
 		out := piecesJSON{Tokens: len(ids), IDs: ids, Pieces: []string{}, Hex: []string{}, Bytes: nbytes}
 		if out.IDs == nil {
 			out.IDs = []int{}
 		}
 		for _, id := range ids {
 			raw, _ := v.Token(id)
-			out.Pieces = append(out.Pieces, report.PieceText(raw))
+			out.Pieces = append(out.Pieces, render.PieceText(raw))
 			out.Hex = append(out.Hex, hex.EncodeToString(raw))
 		}
-		return report.WriteJSON(w, out)
+		return render.WriteJSON(w, out)
 	}
-	g := &report.Grid{Header: []string{"#", "id", "piece", "bytes"}, Right: []int{0, 1, 3}}
+	g := &render.Grid{Header: []string{"#", "id", "piece", "bytes"}, Right: []int{0, 1, 3}}
 	for i, id := range ids {
 		raw, _ := v.Token(id)
-		g.AddRow(fmt.Sprint(i), fmt.Sprint(id), report.Readable(raw), fmt.Sprint(len(raw)))
+		g.AddRow(fmt.Sprint(i), fmt.Sprint(id), render.Readable(raw), fmt.Sprint(len(raw)))
 	}
-	sum := &report.Grid{Header: []string{"tokens", "bytes", "bytes per token"}, Right: []int{0, 1, 2}}
-	sum.AddRow(report.Num(len(ids)), report.Num(nbytes), report.Ratio(float64(nbytes), float64(len(ids))))
+	sum := &render.Grid{Header: []string{"tokens", "bytes", "bytes per token"}, Right: []int{0, 1, 2}}
+	sum.AddRow(render.Num(len(ids)), render.Num(nbytes), render.Ratio(float64(nbytes), float64(len(ids))))
 	info := v.Info()
-	about := fmt.Sprintf("vocabulary %s: %s tokens, %s merges, %d special", info.Name, report.Num(info.Size), report.Num(info.Merges), len(info.Specials))
+	about := fmt.Sprintf("vocabulary %s: %s tokens, %s merges, %d special", info.Name, render.Num(info.Size), render.Num(info.Merges), len(info.Specials))
 	if info.Window > 0 {
-		about += fmt.Sprintf(", %s-token window", report.Num(info.Window))
+		about += fmt.Sprintf(", %s-token window", render.Num(info.Window))
 	}
 	sum.Notes = append(sum.Notes, about)
-	if f == report.CSV {
+	if f == render.CSV {
 		return g.WriteCSV(w)
 	}
-	return report.WriteGrids(w, f, g, sum)
+	return render.WriteGrids(w, f, g, sum)
 }

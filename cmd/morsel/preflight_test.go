@@ -13,6 +13,9 @@ import (
 
 	"morsel/bpe"
 	"morsel/report"
+	"morsel/report/fit"
+	"morsel/report/ration"
+	"morsel/report/request"
 )
 
 const (
@@ -52,7 +55,7 @@ func TestFitExitAndMargins(t *testing.T) {
 	if code != exitCheck {
 		t.Fatalf("exit %d, want 3 (the demo has documents over 1,024 tokens); stderr %s", code, serr)
 	}
-	var r report.FitReport
+	var r fit.Report
 	if err := json.Unmarshal([]byte(out), &r); err != nil {
 		t.Fatalf("%v\n%s", err, out)
 	}
@@ -72,7 +75,7 @@ func TestFitExitAndMargins(t *testing.T) {
 	}
 	// The input is the assembled request, counted whole.
 	enc, _ := bpe.NewEncoder(bpe.Default(), bpe.Options{})
-	frame, err := report.LoadFrame(demoFrame)
+	frame, err := request.LoadFrame(demoFrame)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -120,7 +123,7 @@ func TestRationEmit(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, serr)
 	}
-	var rep report.RationReport
+	var rep ration.Report
 	if err := json.Unmarshal([]byte(out), &rep); err != nil {
 		t.Fatal(err)
 	}
@@ -130,13 +133,13 @@ func TestRationEmit(t *testing.T) {
 	}
 	defer f.Close()
 	enc, _ := bpe.NewEncoder(bpe.Default(), bpe.Options{})
-	frame, _ := report.LoadFrame(demoFrame)
+	frame, _ := request.LoadFrame(demoFrame)
 	docs := map[string][]byte{}
 	lines := 0
 	sc := bufio.NewScanner(f)
 	sc.Buffer(nil, 1<<24)
 	for sc.Scan() {
-		var c report.Chunk
+		var c ration.Chunk
 		if err := json.Unmarshal(sc.Bytes(), &c); err != nil {
 			t.Fatalf("line %d: %v", lines+1, err)
 		}

@@ -5,7 +5,11 @@ import (
 
 	"morsel/bpe"
 	"morsel/corpus"
-	"morsel/report"
+	"morsel/report/quote"
+	"morsel/report/ration"
+	"morsel/report/render"
+	"morsel/report/request"
+	"morsel/report/walk"
 )
 
 func init() { extraCommands = append(extraCommands, newQuote) }
@@ -15,7 +19,7 @@ func newQuote(sh *shared) *cobra.Command {
 	var tf targetFlags
 	var rf requestFlags
 	var answer int
-	var ration, batch bool
+	var cut, batch bool
 	c := &cobra.Command{
 		Use:   "quote PATH... [--target NAME...]",
 		Short: "Estimate the bill per document and in total, for one or more targets side by side",
@@ -42,7 +46,7 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
 			boundMemory()
-			f, err := sh.outFormat("quote", report.Table, report.JSON, report.CSV, report.Markdown, report.HTML)
+			f, err := sh.outFormat("quote", render.Table, render.JSON, render.CSV, render.Markdown, render.HTML)
 			if err != nil {
 				return err
 			}
@@ -66,7 +70,7 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 				return usagef("quote", "--window, --overhead and --answer-tokens take 0 or more tokens")
 			}
 			encs := map[[2]string]*bpe.Encoder{}
-			var ps []*report.Pricer
+			var ps []*quote.Pricer
 			for _, t := range targets {
 				if !t.Set["price_in"] || !t.Set["price_out"] {
 					return usagef("quote", "%s: target %q has no price_in or price_out", t.Where(), t.Name)
@@ -87,7 +91,7 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 					}
 					encs[key] = enc
 				}
-				p := &report.Pricer{Target: t, Enc: enc, Window: t.Window, Answer: t.Answer, Overhead: rf.overhead, Ration: ration, Batch: batch, Generic: sh.genericSplit(enc)}
+				p := &quote.Pricer{Target: t, Enc: enc, Window: t.Window, Answer: t.Answer, Overhead: rf.overhead, Ration: cut, Batch: batch, Generic: sh.genericSplit(enc)}
 				if flags.Changed("window") {
 					p.Window = rf.window
 				}
@@ -105,35 +109,40 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 					return err
 				}
 				if flags.Changed("answer-tokens") {
-					p.Answer = report.Answer{Tokens: answer}
+					p.Answer = request.Answer{Tokens: answer}
 				}
 				ps = append(ps, p)
 			}
-			qc := report.NewQuoteCollector(ps)
-			err = report.Walk(args, cf.options(), sh.workers, sh.progress(),
-				func(d *corpus.Document) (report.QuoteDoc, error) {
-					text, err := report.Text(d)
-					if err != nil {
-						return report.QuoteDoc{}, err
+			qc := quote.NewCollector(ps)
+			work := func(d *corpus.Document) (quote.Doc, error) {
+				text, err := walk.Text(d)
+				if err != nil {
+					return quote.Doc{}, err
+				}
+				return quote.Price(ps, d.Source, d.Record, text)
+			}
+			skipped, err := walkDocs(sh, &cf, args, work, collector[quote.Doc]{
+				add:    func(_ *corpus.Document, d quote.Doc) error { qc.Add(d); return nil },
+				failed: ration.FailedDoc,
+				tokens: func(d quote.Doc) int {
+					if len(d.Targets) == 0 {
+						return 0
 					}
-					return report.QuoteText(ps, d.Source, d.Record, text)
+					return d.Targets[0].InputTokens // the first target's requests
 				},
-				func(it corpus.Item, d report.QuoteDoc, err error) error {
-					qc.Add(it, d, err)
-					return nil
-				})
+			})
 			if err != nil {
 				return err
 			}
-			q := qc.Finish()
-			write := func() error { return report.WriteQuote(sh.stdout, f, q) }
-			if f == report.HTML {
-				write = func() error { return report.WriteQuoteHTML(sh.stdout, q, 0) }
+			q := qc.Finish(skipped)
+			write := func() error { return quote.Write(sh.stdout, f, q) }
+			if f == render.HTML {
+				write = func() error { return quote.WriteHTML(sh.stdout, q, 0) }
 			}
 			if err := write(); err != nil {
 				return err
 			}
-			return sh.skipStatus(q.Skipped)
+			return sh.finish(q.Skipped, nil)
 		},
 	}
 	addCorpusFlags(c, &cf)
@@ -143,7 +152,7 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 	f.IntVar(&rf.window, "window", 0, "context window in tokens for every target, instead of each target's")
 	f.IntVar(&rf.overhead, "overhead", 0, "fixed tokens added to every request")
 	f.IntVar(&answer, "answer-tokens", 0, "answer tokens per request for every target, instead of each target's")
-	f.BoolVar(&ration, "ration", false, "cut documents whose request overflows the window, and price every chunk as a request")
+	f.BoolVar(&cut, "ration", false, "cut documents whose request overflows the window, and price every chunk as a request")
 	f.BoolVar(&batch, "batch", false, "take each target's batch_discount off")
 	return c
 }

@@ -9,7 +9,8 @@ import (
 	"github.com/spf13/cobra"
 
 	"morsel/corpus"
-	"morsel/report"
+	"morsel/report/ration"
+	"morsel/report/render"
 )
 
 func init() { extraCommands = append(extraCommands, newRation) }
@@ -50,7 +51,7 @@ because the budget cannot hold the frame and one character, else 0.`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
 			boundMemory()
-			f, err := sh.outFormat("ration", report.Table, report.JSON, report.CSV, report.Markdown)
+			f, err := sh.outFormat("ration", render.Table, render.JSON, render.CSV, render.Markdown)
 			if err != nil {
 				return err
 			}
@@ -67,7 +68,7 @@ because the budget cannot hold the frame and one character, else 0.`,
 			if overlap < 0 || 2*overlap >= budget {
 				return usagef("ration", "--overlap %d: want 0 or more and less than half the %d-token budget", overlap, budget)
 			}
-			r := &report.Rationer{Enc: rq.enc, Frame: rq.frame, Budget: budget, Overlap: overlap, Overhead: rq.overhead, Generic: sh.genericSplit(rq.enc)}
+			r := &ration.Rationer{Enc: rq.enc, Frame: rq.frame, Budget: budget, Overlap: overlap, Overhead: rq.overhead, Generic: sh.genericSplit(rq.enc)}
 			var out *bufio.Writer
 			var jl *json.Encoder
 			if emit != "" {
@@ -80,20 +81,23 @@ because the budget cannot hold the frame and one character, else 0.`,
 				jl = json.NewEncoder(out)
 				jl.SetEscapeHTML(false)
 			}
-			rc := report.NewRationCollector(r, rq.target)
-			err = report.Walk(args, cf.options(), sh.workers, sh.progress(),
-				func(d *corpus.Document) (report.RationDoc, error) { return report.RationOf(r, d, jl != nil) },
-				func(it corpus.Item, d report.RationDoc, err error) error {
-					if jl != nil && err == nil {
+			rc := ration.NewCollector(r, rq.target)
+			work := func(d *corpus.Document) (ration.Doc, error) { return r.CutDocument(d, jl != nil) }
+			skipped, err := walkDocs(sh, &cf, args, work, collector[ration.Doc]{
+				add: func(_ *corpus.Document, d ration.Doc) error {
+					if jl != nil {
 						for i := range d.Plan {
 							if err := jl.Encode(&d.Plan[i]); err != nil {
 								return fmt.Errorf("--emit %s: %w", emit, err)
 							}
 						}
 					}
-					rc.Add(it, d, err)
+					rc.Add(d)
 					return nil
-				})
+				},
+				failed: ration.FailedDoc,
+				tokens: func(d ration.Doc) int { return d.Tokens },
+			})
 			if err != nil {
 				return err
 			}
@@ -102,17 +106,15 @@ because the budget cannot hold the frame and one character, else 0.`,
 					return fmt.Errorf("--emit %s: %w", emit, err)
 				}
 			}
-			rep := rc.Finish()
-			if err := report.WriteRation(sh.stdout, f, rep); err != nil {
+			rep := rc.Finish(skipped)
+			if err := ration.Write(sh.stdout, f, rep); err != nil {
 				return err
 			}
-			if err := sh.skipStatus(rep.Skipped); err != nil {
-				return err
-			}
+			var check error
 			if rep.Totals.NoRoom > 0 {
-				return &checkFailed{fmt.Sprintf("%s document(s) could not be cut within the %s-token budget", report.Num(rep.Totals.NoRoom), report.Num(budget))}
+				check = &checkFailed{fmt.Sprintf("%s document(s) could not be cut within the %s-token budget", render.Num(rep.Totals.NoRoom), render.Num(budget))}
 			}
-			return nil
+			return sh.finish(rep.Skipped, check)
 		},
 	}
 	addCorpusFlags(c, &cf)

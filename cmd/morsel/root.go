@@ -13,7 +13,8 @@ import (
 
 	"morsel/bpe"
 	"morsel/corpus"
-	"morsel/report"
+	"morsel/report/render"
+	"morsel/report/walk"
 )
 
 // shared holds the flags every command takes.
@@ -141,8 +142,8 @@ func (sh *shared) encoderFor(v *bpe.Vocab) (*bpe.Encoder, error) {
 }
 
 // outFormat checks --format against the formats a command offers.
-func (sh *shared) outFormat(cmd string, allowed ...report.Format) (report.Format, error) {
-	f, err := report.ParseFormat(sh.format, allowed...)
+func (sh *shared) outFormat(cmd string, allowed ...render.Format) (render.Format, error) {
+	f, err := render.ParseFormat(sh.format, allowed...)
 	if err != nil {
 		return "", usagef(cmd, "--format: %v", err)
 	}
@@ -162,11 +163,9 @@ type corpusFlags struct {
 	include, exclude []string
 	hidden           bool
 	as               string
-	stdin            io.Reader
 }
 
-// addCorpusFlags adds the document-walking flags to c. Standard input
-// ("-") is read from os.Stdin; set cf.stdin to read another reader.
+// addCorpusFlags adds the document-walking flags to c.
 func addCorpusFlags(c *cobra.Command, cf *corpusFlags) {
 	f := c.Flags()
 	f.StringVar(&cf.field, "field", "text", "JSON / JSON Lines field holding the text (dotted path for nesting)")
@@ -178,12 +177,12 @@ func addCorpusFlags(c *cobra.Command, cf *corpusFlags) {
 }
 
 func (cf *corpusFlags) options() corpus.Options {
-	return corpus.Options{Stdin: cf.stdin, Field: cf.field, Column: cf.column, Include: cf.include, Exclude: cf.exclude, Hidden: cf.hidden, Format: cf.as}
+	return corpus.Options{Field: cf.field, Column: cf.column, Include: cf.include, Exclude: cf.exclude, Hidden: cf.hidden, Format: cf.as}
 }
 
 // progress returns a progress bar on standard error when it is a terminal
 // and --quiet is not given, else nil.
-func (sh *shared) progress() report.Progress {
+func (sh *shared) progress() walk.Progress {
 	if sh.quiet {
 		return nil
 	}
@@ -221,7 +220,7 @@ func (b *bar) Plan(files int, bytes int64) {
 }
 
 func (b *bar) describe() {
-	b.pb.Describe(fmt.Sprintf("weighing %d/%d files, %s tokens", b.done, b.files, report.Num(b.tokens)))
+	b.pb.Describe(fmt.Sprintf("weighing %d/%d files, %s tokens", b.done, b.files, render.Num(b.tokens)))
 }
 
 func (b *bar) FileDone(n int64) {

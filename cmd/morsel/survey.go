@@ -5,6 +5,8 @@ import (
 
 	"morsel/corpus"
 	"morsel/report"
+	"morsel/report/render"
+	"morsel/report/survey"
 )
 
 func newSurvey(sh *shared) *cobra.Command {
@@ -29,7 +31,7 @@ be read; the report still covers all the rest.`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
 			boundMemory()
-			f, err := sh.outFormat("survey", report.Table, report.JSON, report.CSV, report.Markdown, report.HTML)
+			f, err := sh.outFormat("survey", render.Table, render.JSON, render.CSV, render.Markdown, render.HTML)
 			if err != nil {
 				return err
 			}
@@ -37,46 +39,40 @@ be read; the report still covers all the rest.`,
 			if err != nil {
 				return err
 			}
-			sv := report.NewSurveyor(enc.Vocab().Info())
-			prog := sh.progress()
-			work := func(d *corpus.Document) (report.Weight, error) { return report.Weigh(enc, d) }
-			var sampler *report.Sampler
-			if f == report.HTML {
-				sampler = report.NewSampler(enc, sampleOf)
+			sv := survey.NewSurveyor(enc.Vocab().Info())
+			work := func(d *corpus.Document) (survey.Weight, error) { return survey.Weigh(enc, d) }
+			var sampler *survey.Sampler
+			if f == render.HTML {
+				sampler = survey.NewSampler(enc, sampleOf)
 				work = sampler.Weigh
 			}
-			err = report.Walk(args, cf.options(), sh.workers, prog, work,
-				func(it corpus.Item, w report.Weight, err error) error {
-					if prog != nil {
-						prog.Tokens(w.Tokens)
-					}
-					sv.Add(it, w, err)
-					return nil
-				})
+			skipped, err := walkDocs(sh, &cf, args, work, collector[survey.Weight]{
+				add:    func(_ *corpus.Document, w survey.Weight) error { sv.Add(w); return nil },
+				tokens: func(w survey.Weight) int { return w.Tokens },
+			})
 			if err != nil {
 				return err
 			}
-			s := sv.Finish()
-			if f == report.HTML {
+			s := sv.Finish(skipped)
+			if f == render.HTML {
 				err = writeSurveyHTML(sh, s, sampler, sampleOf, rows)
 			} else {
-				err = report.WriteSurvey(sh.stdout, f, s, rows)
+				err = survey.Write(sh.stdout, f, s, rows)
 			}
 			if err != nil {
 				return err
 			}
-			return sh.skipStatus(s.Skipped)
+			return sh.finish(s.Skipped, nil)
 		},
 	}
 	addCorpusFlags(c, &cf)
-	cf.stdin = sh.stdin
 	c.Flags().IntVar(&rows, "rows", 50, "per-document rows in the table and html views (0: all)")
 	c.Flags().StringVar(&sampleOf, "sample", "", "with --format html: the document (SOURCE or SOURCE:RECORD) shown split into tokens (default: the one with the most tokens per word)")
 	return c
 }
 
 // writeSurveyHTML renders the survey page with its sample document.
-func writeSurveyHTML(sh *shared, s *report.Survey, sampler *report.Sampler, want string, rows int) error {
+func writeSurveyHTML(sh *shared, s *survey.Report, sampler *survey.Sampler, want string, rows int) error {
 	sample, err := sampler.Sample()
 	if err != nil {
 		sh.note("%v; the page is written without it", err)
@@ -84,7 +80,7 @@ func writeSurveyHTML(sh *shared, s *report.Survey, sampler *report.Sampler, want
 	if sample == nil && want != "" {
 		sh.note("--sample %s: no such document was counted; the page is written without a sample", want)
 	}
-	return report.WriteSurveyHTML(sh.stdout, s, sample, rows)
+	return survey.WriteHTML(sh.stdout, s, sample, rows)
 }
 
 // skipStatus returns the exit error for a report's skips: exit status 1

@@ -10,7 +10,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"morsel/bpe"
-	"morsel/report"
+	"morsel/report/request"
 )
 
 // defaultTargets is the targets file looked for in the working folder.
@@ -34,7 +34,7 @@ func addTargetFlags(c *cobra.Command, tf *targetFlags, many bool) {
 
 // load reads the targets file: --targets, else morsel.toml in the working
 // folder. required says whether a missing default file is an error.
-func (tf *targetFlags) load(cmd string, required bool) (*report.Targets, error) {
+func (tf *targetFlags) load(cmd string, required bool) (*request.Targets, error) {
 	path := tf.file
 	if path == "" {
 		path = defaultTargets
@@ -49,7 +49,7 @@ func (tf *targetFlags) load(cmd string, required bool) (*report.Targets, error) 
 	if err != nil {
 		return nil, &inputError{fmt.Errorf("reading targets: %w", err)}
 	}
-	ts, err := report.ParseTargets(path, data)
+	ts, err := request.ParseTargets(path, data)
 	if err != nil {
 		return nil, usagef(cmd, "%v", err)
 	}
@@ -57,7 +57,7 @@ func (tf *targetFlags) load(cmd string, required bool) (*report.Targets, error) 
 }
 
 // one returns the target --target names, or nil without --target.
-func (tf *targetFlags) one(cmd string) (*report.Target, error) {
+func (tf *targetFlags) one(cmd string) (*request.Target, error) {
 	if len(tf.names) == 0 {
 		return nil, nil
 	}
@@ -92,19 +92,19 @@ func addRequestFlags(c *cobra.Command, rf *requestFlags) {
 	f.IntVar(&rf.overhead, "overhead", 0, "fixed tokens added to every request for framing you know of (message markers, say)")
 }
 
-// request is what a command needs to weigh requests under one setting.
-type request struct {
+// settings is what a command needs to weigh requests under one setting.
+type settings struct {
 	enc      *bpe.Encoder
-	frame    *report.Frame
+	frame    *request.Frame
 	window   int
-	answer   report.Answer
+	answer   request.Answer
 	overhead int
 	target   string
 }
 
 // loadFrame reads and parses a frame file: a file that cannot be read is
 // an input error (exit status 1), one without {{document}} bad usage.
-func loadFrame(cmd, path string) (*report.Frame, error) {
+func loadFrame(cmd, path string) (*request.Frame, error) {
 	if path == "" {
 		return nil, nil
 	}
@@ -112,7 +112,7 @@ func loadFrame(cmd, path string) (*report.Frame, error) {
 	if err != nil {
 		return nil, &inputError{fmt.Errorf("reading frame: %w", err)}
 	}
-	f, err := report.ParseFrame(path, data)
+	f, err := request.ParseFrame(path, data)
 	if err != nil {
 		return nil, usagef(cmd, "--frame: %v", err)
 	}
@@ -121,7 +121,7 @@ func loadFrame(cmd, path string) (*report.Frame, error) {
 
 // request settles the request settings for cmd: the flags given, else the
 // target's fields, else the defaults.
-func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *requestFlags) (*request, error) {
+func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *requestFlags) (*settings, error) {
 	t, err := tf.one(cmd)
 	if err != nil {
 		return nil, err
@@ -130,7 +130,7 @@ func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *req
 	if rf.window < 0 || rf.reserve < 0 || rf.overhead < 0 {
 		return nil, usagef(cmd, "--window, --reserve and --overhead take 0 or more tokens")
 	}
-	rq := &request{overhead: rf.overhead, answer: report.Answer{Tokens: rf.reserve}}
+	rq := &settings{overhead: rf.overhead, answer: request.Answer{Tokens: rf.reserve}}
 	framePath := rf.frame
 	if t != nil {
 		rq.target = t.Name

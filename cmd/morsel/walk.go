@@ -1,0 +1,67 @@
+package main
+
+import (
+	"morsel/corpus"
+	"morsel/report"
+	"morsel/report/walk"
+)
+
+// collector folds the items of one walk into an analysis, in input order:
+// each document's result goes to add, each input or record the walk left
+// out and each document whose work failed to the list of skips.
+type collector[R any] struct {
+	// add takes one document's result; an error stops the walk.
+	add func(d *corpus.Document, r R) error
+	// failed makes the skip for a document whose work failed with err
+	// (report.FailedDoc when nil).
+	failed func(d *corpus.Document, err error) report.Skipped
+	// tokens gives the tokens a result counted, for the progress bar.
+	tokens func(r R) int
+
+	prog    walk.Progress
+	skipped []report.Skipped
+}
+
+func (c *collector[R]) emit(it corpus.Item, r R, err error) error {
+	switch {
+	case it.Skip != nil:
+		c.skipped = append(c.skipped, report.SkipOf(it.Skip))
+	case err != nil:
+		failed := c.failed
+		if failed == nil {
+			failed = report.FailedDoc
+		}
+		c.skipped = append(c.skipped, failed(it.Doc, err))
+	default:
+		if c.prog != nil && c.tokens != nil {
+			c.prog.Tokens(c.tokens(r))
+		}
+		return c.add(it.Doc, r)
+	}
+	return nil
+}
+
+// walkDocs walks paths as the corpus flags say (standard input "-" read
+// from the command's own), does work on every document on --workers
+// workers with a progress bar on a terminal, and folds the results with c.
+// It returns what was skipped, in input order.
+func walkDocs[R any](sh *shared, cf *corpusFlags, paths []string, work func(*corpus.Document) (R, error), c collector[R]) ([]report.Skipped, error) {
+	opt := cf.options()
+	opt.Stdin = sh.stdin
+	c.prog = sh.progress()
+	c.skipped = []report.Skipped{}
+	if err := walk.Walk(paths, opt, sh.workers, c.prog, work, c.emit); err != nil {
+		return nil, err
+	}
+	return c.skipped, nil
+}
+
+// finish returns a walking command's exit error: an input error (exit
+// status 1) when any input could not be read, else check, the command's
+// own check (nil when it passed).
+func (sh *shared) finish(skips []report.Skipped, check error) error {
+	if err := sh.skipStatus(skips); err != nil {
+		return err
+	}
+	return check
+}

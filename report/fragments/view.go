@@ -1,0 +1,125 @@
+package fragments
+
+import (
+	"fmt"
+	"io"
+	"sort"
+	"strings"
+
+	"morsel/report"
+	"morsel/report/render"
+)
+
+// readableRaw joins the readable forms of pieces with single spaces (a
+// space inside a piece shows as "␣", so the joins are unambiguous).
+
+func readableRaw(pieces [][]byte) string {
+	parts := make([]string, len(pieces))
+	for i, p := range pieces {
+		parts[i] = render.Readable(p)
+	}
+	return strings.Join(parts, " ")
+}
+
+// Write renders r in format f. docRows bounds the documents the
+// table view lists by fertility (0 lists them all). The CSV view is the
+// word table alone.
+func Write(w io.Writer, f render.Format, r *Report, docRows int) error {
+	if f == render.JSON {
+		return render.WriteJSON(w, r)
+	}
+	words := fragmentGrid(r, f)
+	if f == render.CSV {
+		return words.WriteCSV(w)
+	}
+	grids := []*render.Grid{words, savingGrid(r), scriptGrid(r), docFertilityGrid(r, docRows)}
+	if len(r.Terms) > 0 {
+		grids = append(grids, termGrid(r))
+	}
+	if len(r.Skipped) > 0 {
+		grids = append(grids, render.SkipGrid(r.Skipped))
+	}
+	return render.WriteGrids(w, f, grids...)
+}
+
+func fragmentGrid(r *Report, f render.Format) *render.Grid {
+	g := &render.Grid{Title: fmt.Sprintf("Words ranked by excess tokens (%s of %s shown) under %s",
+		render.Num(r.Totals.Listed), render.Num(r.Totals.Qualifying), r.Vocabulary.Name),
+		Header: []string{"#", "word", "script", "count", "documents", "pieces", "excess", "split"},
+		Right:  []int{0, 3, 4, 5, 6}}
+	if f == render.CSV {
+		g.Header = []string{"rank", "word", "script", "count", "documents", "pieces", "excess", "split", "split_share"}
+	}
+	for i, w := range r.Words {
+		split := readableRaw(w.SplitBytes)
+		row := []string{fmt.Sprint(i + 1), w.Word, w.Script, render.Num(w.Count), render.Num(w.Documents),
+			fmt.Sprintf("%.2f", w.Pieces), render.Num(w.Excess), split}
+		if f == render.CSV {
+			row = []string{fmt.Sprint(i + 1), w.Word, w.Script, fmt.Sprint(w.Count), fmt.Sprint(w.Documents),
+				fmt.Sprintf("%.2f", w.Pieces), fmt.Sprint(w.Excess), split, fmt.Sprintf("%.4f", w.SplitShare)}
+		}
+		g.AddRow(row...)
+	}
+	if len(r.Words) == 0 {
+		g.Notes = append(g.Notes, fmt.Sprintf("no word splits into %g or more pieces at least %d time(s)", r.Options.MinPieces, r.Options.MinCount))
+	}
+	return g
+}
+
+func savingGrid(r *Report) *render.Grid {
+	t := r.Totals
+	g := &render.Grid{Title: "Totals", Header: []string{"measure", "value"}, Right: []int{1}}
+	g.AddRow("documents", render.Num(t.Documents))
+	g.AddRow("tokens", render.Num(t.Tokens))
+	g.AddRow("words", render.Num(t.Words))
+	g.AddRow("distinct words", render.Num(t.DistinctWords))
+	g.AddRow(fmt.Sprintf("words with %g+ pieces, %d+ times", r.Options.MinPieces, r.Options.MinCount), render.Num(t.Qualifying))
+	g.AddRow("excess tokens of the listed words", render.Num(t.ListedExcess))
+	g.AddRow("saving, at most", render.Percent(float64(t.ListedExcess), float64(t.Tokens)))
+	if len(r.Terms) > 0 {
+		g.AddRow("glossary terms flagged", fmt.Sprintf("%s of %s", render.Num(t.FlaggedTerm), render.Num(len(r.Terms))))
+	}
+	g.AddRow("not counted", fmt.Sprintf("%s (%s failed)", render.Num(t.Skipped), render.Num(t.Failed)))
+	g.Notes = append(g.Notes, "The saving is an upper bound: it assumes each listed word became one token in every context.")
+	return g
+}
+
+func scriptGrid(r *Report) *render.Grid {
+	fe := r.Fertility
+	g := &render.Grid{Title: fmt.Sprintf("Tokens per word by script (all words: %s, one-token words %s)",
+		render.Ratio(float64(fe.WordTokens), float64(fe.Words)), render.Percent(float64(fe.OneTokenShare), 1)),
+		Header: []string{"script", "words", "tokens", "tokens/word", "one-token words"}, Right: []int{1, 2, 3, 4}}
+	for _, s := range fe.ByScript {
+		g.AddRow(s.Script, render.Num(s.Words), render.Num(s.Tokens), render.Ratio(float64(s.Tokens), float64(s.Words)), render.Percent(float64(s.OneToken), float64(s.Words)))
+	}
+	return g
+}
+
+func docFertilityGrid(r *Report, rows int) *render.Grid {
+	docs := append([]DocFertility(nil), r.Fertility.Documents...)
+	sort.SliceStable(docs, func(i, j int) bool { return docs[i].Fertility > docs[j].Fertility })
+	g := &render.Grid{Title: "Documents by tokens per word", Header: []string{"document", "words", "tokens", "tokens/word", "one-token words"}, Right: []int{1, 2, 3, 4}}
+	for i, d := range docs {
+		if rows > 0 && i == rows {
+			g.Notes = append(g.Notes, fmt.Sprintf("... and %s more documents (--doc-rows 0 lists all; --format json gives every one)", render.Num(len(docs)-rows)))
+			break
+		}
+		g.AddRow(report.Where(d.Source, d.Record), render.Num(d.Words), render.Num(d.WordTokens), render.Ratio(float64(d.WordTokens), float64(d.Words)), render.Percent(d.OneTokenShare, 1))
+	}
+	return g
+}
+
+func termGrid(r *Report) *render.Grid {
+	g := &render.Grid{Title: fmt.Sprintf("Glossary terms (%s flagged at %g+ pieces)", render.Num(r.Totals.FlaggedTerm), r.Options.MinPieces),
+		Header: []string{"term", "alone", "after a space", "split after a space", "occurrences", "documents", "excess", ""},
+		Right:  []int{1, 2, 4, 5, 6}}
+	for _, t := range r.Terms {
+		flag := ""
+		if t.Flagged {
+			flag = "◂ splits"
+		}
+		g.AddRow(t.Term, render.Num(t.PiecesAlone), render.Num(t.PiecesAfterSpace), readableRaw(t.AfterSpaceBytes),
+			render.Num(t.Occurrences), render.Num(t.Documents), render.Num(t.Excess), flag)
+	}
+	return g
+}

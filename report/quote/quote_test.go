@@ -1,0 +1,83 @@
+package quote
+
+import (
+	"strings"
+	"testing"
+
+	"github.com/shopspring/decimal"
+
+	"morsel/report/internal/reporttest"
+	"morsel/report/ration"
+	"morsel/report/request"
+)
+
+// TestQuoteWorkedExamples prices documents whose token counts the test
+// takes from the encoder, with the arithmetic stated beside each case.
+
+func TestQuoteWorkedExamples(t *testing.T) {
+	enc := reporttest.Encoder(t)
+	ts, err := request.ParseTargets("m.toml", []byte(reporttest.DemoTargets))
+	if err != nil {
+		t.Fatal(err)
+	}
+	small, _ := ts.Lookup("small")
+	big, _ := ts.Lookup("big")
+	doc := []byte("Replace the swivel on VS-4 before the spring cruise.")
+	n := enc.Count(doc)
+	ps := []*Pricer{
+		{Target: small, Enc: enc, Window: small.Window, Answer: small.Answer},
+		{Target: big, Enc: enc, Window: big.Window, Answer: big.Answer, Batch: true},
+	}
+	d, err := Price(ps, "a.txt", 0, doc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// small: n input tokens at 0.40 per million and 200 answer tokens at
+	// 1.60 per million: (0.40 n + 320) / 1e6.
+	wantSmall := decimal.NewFromInt(int64(n)).Mul(decimal.RequireFromString("0.40")).Add(decimal.NewFromInt(320)).Div(decimal.NewFromInt(1e6))
+	if l := d.Targets[0]; l.InputTokens != n || l.OutputTokens != 200 || l.Requests != 1 || !l.Cost.Equal(wantSmall) {
+		t.Fatalf("small: %+v, want cost %s", l, wantSmall)
+	}
+	// big: answer ceil(0.25 n); cost (2.50 n + 10 ceil(0.25 n)) / 1e6, halved
+	// by the 0.5 batch discount.
+	ans := (n + 3) / 4
+	wantBig := decimal.NewFromInt(int64(n)).Mul(decimal.RequireFromString("2.5")).Add(decimal.NewFromInt(int64(10 * ans))).
+		Div(decimal.NewFromInt(1e6)).Mul(decimal.RequireFromString("0.5"))
+	if l := d.Targets[1]; l.OutputTokens != ans || !l.Cost.Equal(wantBig) {
+		t.Fatalf("big: %+v, want answer %d cost %s", l, ans, wantBig)
+	}
+	// A fixed figure: 1,000,000 input and 250,000 answer tokens under
+	// small cost 0.40 + 0.25 x 1.60 = 0.80 exactly.
+	if got := ps[0].Cost(1_000_000, 250_000); got.String() != "0.8" {
+		t.Fatalf("cost %s, want 0.8", got)
+	}
+	// 3 input tokens at 0.40 per million: 0.0000012, no float rounding.
+	if got := ps[0].Cost(3, 0); got.String() != "0.0000012" {
+		t.Fatalf("cost %s, want 0.0000012", got)
+	}
+}
+
+// TestQuoteRation checks that with Ration a document over the window is
+// cut and each chunk priced as a request with its own answer.
+func TestQuoteRation(t *testing.T) {
+	enc := reporttest.Encoder(t)
+	tg := &request.Target{Name: "tiny", PriceIn: decimal.NewFromInt(1), PriceOut: decimal.NewFromInt(2), Answer: request.Answer{Tokens: 10}}
+	doc := []byte(strings.Repeat("The tide came in over the pier. ", 40))
+	n := enc.Count(doc)
+	p := &Pricer{Target: tg, Enc: enc, Window: 60, Answer: tg.Answer, Ration: true}
+	d, err := Price([]*Pricer{p}, "a", 0, doc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	l := d.Targets[0]
+	r := &ration.Rationer{Enc: enc, Budget: 50}
+	chunks, _, _ := r.Cut("a", 0, doc, false)
+	if !l.Rationed || l.Requests != len(chunks) || l.Requests < n/50 || l.OutputTokens != 10*len(chunks) {
+		t.Fatalf("%+v; %d chunks, document %d tokens", l, len(chunks), n)
+	}
+	// cost = (input x 1 + output x 2) / 1e6
+	want := decimal.NewFromInt(int64(l.InputTokens + 2*l.OutputTokens)).Div(decimal.NewFromInt(1e6))
+	if !l.Cost.Equal(want) {
+		t.Fatalf("cost %s, want %s", l.Cost, want)
+	}
+}

@@ -1,0 +1,3 @@
+// Package ration plans chunks so that the framed request of every chunk
+// stays within a token budget.
+package ration

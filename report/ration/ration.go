@@ -1,0 +1,712 @@
+package ration
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"sort"
+	"unicode"
+	"unicode/utf8"
+
+	"morsel/bpe"
+	"morsel/corpus"
+	"morsel/report"
+	"morsel/report/render"
+	"morsel/report/request"
+	"morsel/report/walk"
+)
+
+// The kinds of cut a chunk ends at, from the most to the least wanted.
+
+const (
+	CutEnd       = "end"       // the document's end
+	CutParagraph = "paragraph" // after a blank line
+	CutLine      = "line"      // after a line break
+	CutSentence  = "sentence"  // after . ! ? (or 。！？), before the space
+	CutPreToken  = "pretoken"  // between two pre-tokens
+	CutInside    = "inside"    // inside one pre-token too long for the budget
+)
+
+// ErrNoRoom is returned (wrapped) by Rationer.Cut when the budget cannot
+// hold the frame and one more character of the document.
+var ErrNoRoom = errors.New("the budget leaves no room")
+
+// Chunk is one piece of a rationed document: bytes [Start, End) of the
+// document, and the input tokens of its request (frame and overhead
+// included), counted on the framed chunk itself.
+type Chunk struct {
+	Source string `json:"source"`
+	Record int    `json:"record"`
+	Chunk  int    `json:"chunk"`
+	Start  int    `json:"start"`
+	End    int    `json:"end"`
+	Tokens int    `json:"tokens"`
+	Cut    string `json:"cut"`
+	Text   string `json:"text"`
+}
+
+// Rationer splits documents into chunks whose framed requests fit a token
+// budget. Its fields are set before the first Cut and not changed after.
+//
+// Every chunk's count is exact: the framed chunk's own tokens, not a slice
+// of the whole document's. With the GPT-2 split rule (Generic false) the
+// count is taken piecewise: a character other than white space followed by
+// an ASCII white-space byte is a pre-token edge whatever surrounds it, so
+// the tokens between the first and the last such edge of a chunk are those
+// of the whole document there, and only the two ends are encoded afresh
+// together with the frame. With another split rule (Generic true) every
+// framed chunk is counted whole.
+type Rationer struct {
+	Enc      *bpe.Encoder
+	Frame    *request.Frame
+	Budget   int  // input tokens a request may take, frame and overhead included
+	Overlap  int  // tokens of the previous chunk's tail to repeat at the start of the next
+	Overhead int  // fixed tokens added to every request
+	Generic  bool // the encoder's split rule is not the GPT-2 rule
+}
+
+// blockMin is the fewest bytes between two marks of the document's count.
+const blockMin = 128
+
+// Cut splits text, the document named source (record, for reports), and
+// returns its chunks in order with the document's own token count. With
+// keepText the chunks carry their text. Without overlap the chunks cover
+// text end to end, so joined they give it back byte for byte. An empty text
+// gives no chunks. It fails, with ErrNoRoom, when the budget cannot hold
+// the frame and one character.
+func (r *Rationer) Cut(source string, record int, text []byte, keepText bool) ([]Chunk, int, error) {
+	c := r.newCutter(report.Where(source, record), text)
+	if len(text) == 0 {
+		return nil, 0, nil
+	}
+	var out []Chunk
+	s, prevEnd := 0, 0
+	for {
+		e, cut, tok, err := c.next(s, prevEnd+1)
+		if err != nil {
+			return out, c.total, err
+		}
+		ch := Chunk{Source: source, Record: record, Chunk: len(out), Start: s, End: e, Tokens: tok, Cut: cut}
+		if keepText {
+			ch.Text = string(text[s:e])
+		}
+		out = append(out, ch)
+		if e == len(text) {
+			return out, c.total, nil
+		}
+		prevEnd = e
+		s = e
+		if r.Overlap > 0 {
+			s = c.overlapStart(ch.Start, e)
+		}
+	}
+}
+
+// cutter holds one document's state while it is cut.
+type cutter struct {
+	r    *Rationer
+	text []byte
+	// marks are offsets in text, from 0 to len(text), and cums the
+	// whole document's tokens before each: exact at every mark, and
+	// estimated in between by bytes.
+	marks   []uint32
+	cums    []uint32
+	total   int
+	generic bool
+	before  []byte
+	after   []byte
+	preCut  int // before[:preCut] counts on its own
+	preTok  int
+	postCut int // after[postCut:] counts on its own
+	postTok int
+	// frameTok is the tokens of the frame around an empty document,
+	// overhead included.
+	frameTok int
+	buf      []byte
+}
+
+func (r *Rationer) newCutter(name string, text []byte) *cutter {
+	c := &cutter{r: r, text: text, generic: r.Generic}
+	c.before, c.after = r.Frame.Parts(name)
+	c.preCut, c.postCut = 0, len(c.after)
+	if !c.generic {
+		if k := lastSafeCut(c.before, 0, len(c.before)); k > 0 {
+			c.preCut = k
+			c.preTok = r.Enc.Count(c.before[:k])
+		}
+		if k := firstSafeCut(c.after, 0, len(c.after)); k > 0 {
+			c.postCut = k
+			c.postTok = r.Enc.Count(c.after[k:])
+		}
+	}
+	c.frameTok = r.Enc.Count(r.Frame.Assemble(name, nil)) + r.Overhead
+	if c.generic {
+		c.encodeWhole()
+	} else {
+		c.countBlocks()
+	}
+	return c
+}
+
+// countBlocks counts the document a block at a time, each block ending at
+// a pre-token edge that holds in any context (see safeCut), so the sum is
+// the whole document's count and every mark's count is exact.
+func (c *cutter) countBlocks() {
+	n := len(c.text)
+	c.marks = make([]uint32, 1, n/blockMin+2)
+	c.cums = make([]uint32, 1, n/blockMin+2)
+	sum := 0
+	for x := 0; x < n; {
+		y := firstSafeCut(c.text, x+blockMin, n)
+		if y == 0 {
+			y = n
+		}
+		sum += c.r.Enc.Count(c.text[x:y])
+		c.marks = append(c.marks, uint32(y))
+		c.cums = append(c.cums, uint32(sum))
+		x = y
+	}
+	c.total = sum
+}
+
+// encodeWhole encodes the whole document at once and marks the end of
+// every token: the counts between marks are estimates for the search only,
+// as a split rule other than GPT-2's has no context-free edges.
+func (c *cutter) encodeWhole() {
+	v := c.r.Enc.Vocab()
+	ids := c.r.Enc.Encode(c.text)
+	c.marks = make([]uint32, 1, len(ids)+2)
+	c.cums = make([]uint32, 1, len(ids)+2)
+	pos := 0
+	for i, id := range ids {
+		t, _ := v.Token(id)
+		pos += len(t)
+		if pos > len(c.text) {
+			pos = len(c.text)
+		}
+		if pos > int(c.marks[len(c.marks)-1]) {
+			c.marks = append(c.marks, uint32(pos))
+			c.cums = append(c.cums, uint32(i+1))
+		}
+	}
+	if int(c.marks[len(c.marks)-1]) != len(c.text) {
+		c.marks = append(c.marks, uint32(len(c.text)))
+		c.cums = append(c.cums, uint32(len(ids)))
+	}
+	c.total = len(ids)
+}
+
+// tokAt returns an estimate of the document's tokens before offset x:
+// exact at a mark, by bytes between marks.
+func (c *cutter) tokAt(x int) int {
+	i := sort.Search(len(c.marks), func(i int) bool { return int(c.marks[i]) > x }) - 1
+	if i < 0 {
+		return 0
+	}
+	if i == len(c.marks)-1 {
+		return int(c.cums[i])
+	}
+	m0, m1 := int(c.marks[i]), int(c.marks[i+1])
+	k0, k1 := int(c.cums[i]), int(c.cums[i+1])
+	return k0 + (x-m0)*(k1-k0)/(m1-m0)
+}
+
+// posAfter returns an estimate of the offset after the document's first k
+// tokens: exact at a mark, by bytes between marks.
+func (c *cutter) posAfter(k int) int {
+	if k <= 0 {
+		return 0
+	}
+	if k >= c.total {
+		return len(c.text)
+	}
+	i := sort.Search(len(c.cums), func(i int) bool { return int(c.cums[i]) >= k })
+	// cums[i-1] < k <= cums[i]
+	m0, m1 := int(c.marks[i-1]), int(c.marks[i])
+	k0, k1 := int(c.cums[i-1]), int(c.cums[i])
+	p := m0 + (k-k0)*(m1-m0)/(k1-k0)
+	if p <= m0 {
+		p = m0 + 1
+	}
+	return p
+}
+
+// next finds the end of the chunk that starts at s: the latest good cut
+// at or after minEnd whose framed chunk fits the budget. It returns the
+// end, the kind of cut and the chunk's exact tokens.
+func (c *cutter) next(s, minEnd int) (int, string, int, error) {
+	limit := c.r.Budget - c.frameTok // estimated tokens the text may take
+	ub := len(c.text)
+	for {
+		e, cut := c.pick(s, minEnd, limit, ub)
+		if e < minEnd || e > ub {
+			return 0, "", 0, fmt.Errorf("at byte %d: %w: the frame and overhead take %d of the %d-token budget, and the next piece of text does not fit",
+				s, ErrNoRoom, c.frameTok, c.r.Budget)
+		}
+		got := c.framed(s, e)
+		if got <= c.r.Budget {
+			return e, cut, got, nil
+		}
+		limit -= got - c.r.Budget
+		ub = e - 1
+	}
+}
+
+// pick proposes a cut for the chunk from s whose text is estimated to
+// take at most limit tokens, ending in [minEnd, ub].
+func (c *cutter) pick(s, minEnd, limit, ub int) (int, string) {
+	n := len(c.text)
+	ks := c.tokAt(s)
+	maxE := s
+	if limit > 0 {
+		if ks+limit >= c.total {
+			maxE = n
+		} else {
+			maxE = c.posAfter(ks + limit)
+		}
+	}
+	if maxE > ub {
+		maxE = ub
+	}
+	if maxE == n {
+		return n, CutEnd
+	}
+	if maxE >= minEnd {
+		lo := minEnd
+		if half := c.posAfter(ks + limit/2); half > lo {
+			lo = half
+		}
+		if lo <= maxE {
+			if p, cut := c.naturalBreak(lo, maxE); p > 0 {
+				return p, cut
+			}
+		}
+		if p := c.preTokenEdge(s, minEnd, maxE); p > 0 {
+			return p, CutPreToken
+		}
+		// One pre-token is longer than the budget: cut between its
+		// tokens, at a character edge.
+		for k := c.tokAt(maxE); k > ks; k-- {
+			p := c.posAfter(k)
+			if p > maxE {
+				continue
+			}
+			if p < minEnd {
+				break
+			}
+			if charEdge(c.text, p) {
+				return p, CutInside
+			}
+		}
+		for p := maxE; p >= minEnd; p-- {
+			if charEdge(c.text, p) {
+				return p, CutInside
+			}
+		}
+	}
+	// Less than one token of room by the estimate: try the smallest
+	// chunk that ends at minEnd or after, one character on.
+	for p := minEnd; p <= n && p <= ub; p++ {
+		if charEdge(c.text, p) {
+			return p, CutInside
+		}
+	}
+	return -1, ""
+}
+
+// naturalBreak returns the latest paragraph break in [lo, hi], else the
+// latest line break, else the latest sentence end, or 0.
+func (c *cutter) naturalBreak(lo, hi int) (int, string) {
+	t := c.text
+	if hi >= len(t) {
+		hi = len(t) - 1
+	}
+	if lo < 1 {
+		lo = 1
+	}
+	if lo > hi {
+		return 0, ""
+	}
+	// A break at p follows the line feed at p-1: look for line feeds in
+	// t[lo-1 : hi], latest first.
+	line := 0
+	for end := hi; end >= lo; {
+		i := bytes.LastIndexByte(t[lo-1:end], '\n')
+		if i < 0 {
+			break
+		}
+		p := lo - 1 + i + 1
+		end = p - 1
+		if t[p] == '\n' || t[p] == '\r' {
+			continue
+		}
+		q := p - 2
+		if q >= 0 && t[q] == '\r' {
+			q--
+		}
+		if q >= 0 && t[q] == '\n' {
+			return p, CutParagraph
+		}
+		if line == 0 {
+			line = p
+		}
+	}
+	if line > 0 {
+		return line, CutLine
+	}
+	for p := hi; p >= lo; p-- {
+		b := t[p-1]
+		if (t[p] == ' ' || t[p] == '\t') && endsSentence(t[:p]) || b >= 0x80 && endsSentenceWide(t[:p]) {
+			return p, CutSentence
+		}
+	}
+	return 0, ""
+}
+
+// endsSentence reports whether t ends with . ! or ?, maybe followed by one
+// closing quote or bracket.
+func endsSentence(t []byte) bool {
+	n := len(t)
+	if n == 0 {
+		return false
+	}
+	switch t[n-1] {
+	case '.', '!', '?':
+		return true
+	case '"', '\'', ')', ']':
+		return n >= 2 && (t[n-2] == '.' || t[n-2] == '!' || t[n-2] == '?')
+	}
+	return false
+}
+
+// endsSentenceWide reports whether t ends with an ideographic full stop or
+// a full-width ! or ?.
+func endsSentenceWide(t []byte) bool {
+	r, _ := utf8.DecodeLastRune(t)
+	return r == '。' || r == '！' || r == '？'
+}
+
+// preTokenEdge returns the latest pre-token edge in [minEnd, maxE] of the
+// text from s, or 0.
+func (c *cutter) preTokenEdge(s, minEnd, maxE int) int {
+	w := maxE + 256
+	if w > len(c.text) {
+		w = len(c.text)
+	}
+	best := 0
+	c.r.Enc.Split(c.text[s:w], func(a, b int, special bool) {
+		p := s + b
+		if p >= minEnd && p <= maxE && (p < w || w == len(c.text)) && charEdge(c.text, p) {
+			best = p
+		}
+	})
+	return best
+}
+
+// overlapStart returns where the chunk after [s, e) starts: the earliest
+// pre-token edge after s from which at most Overlap tokens remain to e, or
+// e when there is none.
+func (c *cutter) overlapStart(s, e int) int {
+	ke := c.tokAt(e)
+	k := ke - c.r.Overlap
+	if ks := c.tokAt(s) + 1; k < ks {
+		k = ks
+	}
+	x0 := c.posAfter(k)
+	if x0 >= e {
+		return e
+	}
+	// Split from an edge that holds in any context, so the pre-tokens are
+	// those of the whole document.
+	y := s
+	if !c.generic {
+		if k := lastSafeCut(c.text, s+1, x0); k > 0 {
+			y = k
+		}
+	}
+	o := e
+	found := false
+	c.r.Enc.Split(c.text[y:e], func(a, b int, special bool) {
+		p := y + a
+		if !found && p >= x0 && p > s && p < e && charEdge(c.text, p) {
+			o, found = p, true
+		}
+	})
+	return o
+}
+
+// framed returns the exact input tokens of the request for text[s:e].
+func (c *cutter) framed(s, e int) int {
+	t := c.text[s:e]
+	if !c.generic {
+		// The first mark after s and the last before e.
+		ia := sort.Search(len(c.marks), func(i int) bool { return int(c.marks[i]) > s })
+		ib := sort.Search(len(c.marks), func(i int) bool { return int(c.marks[i]) >= e }) - 1
+		if ia < ib {
+			a, b := int(c.marks[ia])-s, int(c.marks[ib])-s
+			c.buf = append(append(c.buf[:0], c.before[c.preCut:]...), t[:a]...)
+			head := c.preTok + c.r.Enc.Count(c.buf)
+			c.buf = append(append(c.buf[:0], t[b:]...), c.after[:c.postCut]...)
+			tail := c.r.Enc.Count(c.buf) + c.postTok
+			return head + int(c.cums[ib]-c.cums[ia]) + tail + c.r.Overhead
+		}
+	}
+	c.buf = append(append(append(c.buf[:0], c.before...), t...), c.after...)
+	return c.r.Enc.Count(c.buf) + c.r.Overhead
+}
+
+// safeCut reports whether i is a pre-token edge of t under the GPT-2 rule
+// whatever comes before and after t: a character other than white space
+// followed by an ASCII white-space byte. No GPT-2 pre-token holds white
+// space after another character.
+func safeCut(t []byte, i int) bool {
+	if i <= 0 || i >= len(t) {
+		return false
+	}
+	switch t[i] {
+	case ' ', '\t', '\n', '\r', '\v', '\f':
+	default:
+		return false
+	}
+	p := t[i-1]
+	if p < utf8.RuneSelf {
+		return !(p == ' ' || p == '\t' || p == '\n' || p == '\r' || p == '\v' || p == '\f')
+	}
+	r, size := utf8.DecodeLastRune(t[:i])
+	return !(r == utf8.RuneError && size <= 1) && !unicode.IsSpace(r)
+}
+
+// firstSafeCut returns the first safe cut of t in [from, to), or 0.
+func firstSafeCut(t []byte, from, to int) int {
+	if from < 1 {
+		from = 1
+	}
+	for i := from; i < to && i < len(t); i++ {
+		if safeCut(t, i) {
+			return i
+		}
+	}
+	return 0
+}
+
+// lastSafeCut returns the last safe cut of t in [from, to), or 0.
+func lastSafeCut(t []byte, from, to int) int {
+	if to > len(t) {
+		to = len(t)
+	}
+	if from < 1 {
+		from = 1
+	}
+	for i := to - 1; i >= from; i-- {
+		if safeCut(t, i) {
+			return i
+		}
+	}
+	return 0
+}
+
+// charEdge reports whether offset p of t is not inside a UTF-8 character:
+// bytes that are not valid UTF-8 count as characters of one byte.
+func charEdge(t []byte, p int) bool {
+	if p <= 0 || p >= len(t) || utf8.RuneStart(t[p]) {
+		return true
+	}
+	for q := p - 1; q >= 0 && q >= p-3; q-- {
+		if utf8.RuneStart(t[q]) {
+			_, size := utf8.DecodeRune(t[q:])
+			return size <= 1 || q+size <= p
+		}
+	}
+	return true
+}
+
+// Doc is one document's chunk plan.
+type Doc struct {
+	Source   string  `json:"source"`
+	Record   int     `json:"record"`
+	Bytes    int     `json:"bytes"`
+	Tokens   int     `json:"tokens"` // the document's own tokens
+	Chunks   int     `json:"chunks"`
+	Largest  int     `json:"largest"`  // tokens of its largest chunk's request
+	Smallest int     `json:"smallest"` // and of its smallest
+	Plan     []Chunk `json:"-"`
+}
+
+// FillBin counts the chunks whose request fills From% <= fill < To% of the
+// budget (the last bin takes 100%).
+type FillBin struct {
+	From   int `json:"from"`
+	To     int `json:"to"`
+	Chunks int `json:"chunks"`
+}
+
+// Totals sums a ration report.
+type Totals struct {
+	Documents int   `json:"documents"`
+	Split     int   `json:"split"` // documents cut into more than one chunk
+	Chunks    int   `json:"chunks"`
+	Tokens    int64 `json:"tokens"` // the chunks' request tokens, summed
+	Skipped   int   `json:"skipped"`
+	Failed    int   `json:"failed"`
+	NoRoom    int   `json:"no_room"` // documents the budget could not hold a piece of
+}
+
+// Report is the report of morsel ration.
+type Report struct {
+	Vocabulary bpe.Info         `json:"vocabulary"`
+	Target     string           `json:"target,omitempty"`
+	Budget     int              `json:"budget"`
+	Overlap    int              `json:"overlap"`
+	Overhead   int              `json:"overhead"`
+	Frame      string           `json:"frame"`
+	Documents  []Doc            `json:"documents"`
+	Skipped    []report.Skipped `json:"skipped"`
+	Totals     Totals           `json:"totals"`
+	Fill       []FillBin        `json:"fill"`
+	FillSpread report.Spread    `json:"fill_spread"` // percent of the budget, over all chunks but each document's last
+	Cuts       map[string]int   `json:"cuts"`        // chunks by the kind of cut that ends them
+}
+
+// fillEdges are the bin edges of the fill distribution, in percent.
+var fillEdges = []int{0, 25, 50, 75, 90, 100}
+
+// Collector folds walk results into a Report.
+type Collector struct {
+	r     Report
+	fills []int
+}
+
+// NewCollector starts a ration report for r.
+func NewCollector(r *Rationer, target string) *Collector {
+	rc := &Collector{r: Report{Vocabulary: r.Enc.Vocab().Info(), Target: target, Budget: r.Budget, Overlap: r.Overlap,
+		Overhead: r.Overhead, Frame: r.Frame.Label(), Documents: []Doc{}, Skipped: []report.Skipped{}, Cuts: map[string]int{}}}
+	for i := 0; i+1 < len(fillEdges); i++ {
+		rc.r.Fill = append(rc.r.Fill, FillBin{From: fillEdges[i], To: fillEdges[i+1]})
+	}
+	return rc
+}
+
+// CutDocument cuts one document, reading its text; with keepText the
+// plan's chunks carry their text.
+func (r *Rationer) CutDocument(d *corpus.Document, keepText bool) (Doc, error) {
+	text, err := walk.Text(d)
+	if err != nil {
+		return Doc{}, err
+	}
+	chunks, tokens, err := r.Cut(d.Source, d.Record, text, keepText)
+	rd := Doc{Source: d.Source, Record: d.Record, Bytes: len(text), Tokens: tokens, Chunks: len(chunks), Plan: chunks}
+	for i, c := range chunks {
+		if i == 0 || c.Tokens > rd.Largest {
+			rd.Largest = c.Tokens
+		}
+		if i == 0 || c.Tokens < rd.Smallest {
+			rd.Smallest = c.Tokens
+		}
+	}
+	return rd, err
+}
+
+// FailedDoc returns the report entry for a document that work on it failed
+// with err: a document the budget cannot hold a piece of is left out with
+// the reason "no-room" (it was read; the budget is what failed).
+func FailedDoc(d *corpus.Document, err error) report.Skipped {
+	s := report.FailedDoc(d, err)
+	if errors.Is(err, ErrNoRoom) {
+		s.Reason = ReasonNoRoom
+		s.Failed = false
+	}
+	return s
+}
+
+// ReasonNoRoom is the reason given for a document the budget cannot hold a
+// piece of.
+const ReasonNoRoom = "no-room"
+
+// Add takes one document's plan.
+func (rc *Collector) Add(d Doc) {
+	t := &rc.r.Totals
+	t.Documents++
+	if d.Chunks > 1 {
+		t.Split++
+	}
+	t.Chunks += d.Chunks
+	for i, c := range d.Plan {
+		t.Tokens += int64(c.Tokens)
+		rc.r.Cuts[c.Cut]++
+		pct := c.Tokens * 100 / rc.r.Budget
+		k := 0
+		for k+1 < len(rc.r.Fill) && pct >= rc.r.Fill[k].To {
+			k++
+		}
+		rc.r.Fill[k].Chunks++
+		if i < len(d.Plan)-1 {
+			rc.fills = append(rc.fills, pct)
+		}
+	}
+	d.Plan = nil
+	rc.r.Documents = append(rc.r.Documents, d)
+}
+
+// Finish sums the report and returns it.
+func (rc *Collector) Finish(skipped []report.Skipped) *Report {
+	rc.r.Skipped = report.OrNone(skipped)
+	for _, s := range rc.r.Skipped {
+		rc.r.Totals.Skipped++
+		if s.Failed {
+			rc.r.Totals.Failed++
+		}
+		if s.Reason == ReasonNoRoom {
+			rc.r.Totals.NoRoom++
+		}
+	}
+	rc.r.FillSpread = report.SpreadOf(rc.fills)
+	return &rc.r
+}
+
+// Write renders a ration report in format f.
+func Write(w io.Writer, f render.Format, r *Report) error {
+	if f == render.JSON {
+		return render.WriteJSON(w, r)
+	}
+	g := &render.Grid{Title: fmt.Sprintf("Chunk plan: budget %s tokens a request (frame %s, overlap %s)", render.Num(r.Budget), r.Frame, render.Num(r.Overlap)),
+		Header: []string{"document", "bytes", "tokens", "chunks", "largest", "smallest"}, Right: []int{1, 2, 3, 4, 5}}
+	if f == render.CSV {
+		g.Header = []string{"source", "record", "bytes", "tokens", "chunks", "largest", "smallest"}
+		for _, d := range r.Documents {
+			g.AddRow(d.Source, fmt.Sprint(d.Record), fmt.Sprint(d.Bytes), fmt.Sprint(d.Tokens), fmt.Sprint(d.Chunks), fmt.Sprint(d.Largest), fmt.Sprint(d.Smallest))
+		}
+		return g.WriteCSV(w)
+	}
+	for _, d := range r.Documents {
+		g.AddRow(report.Where(d.Source, d.Record), render.Num(d.Bytes), render.Num(d.Tokens), render.Num(d.Chunks), render.Num(d.Largest), render.Num(d.Smallest))
+	}
+	t := r.Totals
+	sum := &render.Grid{Title: "Totals", Header: []string{"measure", "value"}, Right: []int{1}}
+	sum.AddRow("documents", render.Num(t.Documents))
+	sum.AddRow("cut into several chunks", render.Num(t.Split))
+	sum.AddRow("chunks (requests)", render.Num(t.Chunks))
+	sum.AddRow("request tokens", render.Num(t.Tokens))
+	sum.AddRow("not cut", fmt.Sprintf("%s (%s failed, %s with no room)", render.Num(t.Skipped), render.Num(t.Failed), render.Num(t.NoRoom)))
+	fs := r.FillSpread
+	fill := &render.Grid{Title: fmt.Sprintf("How full the chunks are (share of the budget); all but each document's last: min %d%%, median %d%%, max %d%%", fs.Min, fs.Median, fs.Max),
+		Header: []string{"fill", "chunks"}, Right: []int{1}}
+	for i, b := range r.Fill {
+		label := fmt.Sprintf("%d%% - %d%%", b.From, b.To)
+		if i == len(r.Fill)-1 {
+			label += " (incl.)"
+		}
+		fill.AddRow(label, render.Num(b.Chunks))
+	}
+	cuts := &render.Grid{Title: "Where chunks end", Header: []string{"cut", "chunks"}, Right: []int{1}}
+	for _, k := range []string{CutEnd, CutParagraph, CutLine, CutSentence, CutPreToken, CutInside} {
+		if n := r.Cuts[k]; n > 0 {
+			cuts.AddRow(k, render.Num(n))
+		}
+	}
+	grids := []*render.Grid{g, sum, fill, cuts}
+	if len(r.Skipped) > 0 {
+		grids = append(grids, render.SkipGrid(r.Skipped))
+	}
+	return render.WriteGrids(w, f, grids...)
+}

@@ -1,0 +1,48 @@
+package report
+
+import (
+	"strconv"
+
+	"morsel/corpus"
+)
+
+// Skipped is an input or record a report did not count, and why.
+type Skipped struct {
+	Source string `json:"source"`
+	Record int    `json:"record"`
+	Reason string `json:"reason"`
+	Detail string `json:"detail,omitempty"`
+	Failed bool   `json:"failed"` // it could not be read (exit status 1), as opposed to left out on purpose
+}
+
+// ReasonFailed is the reason given for a document that was read but could
+// not be processed (a read error in the middle of a stream, say).
+const ReasonFailed = "failed"
+
+// SkipOf returns the report entry for a skip from the walk.
+func SkipOf(s *corpus.Skip) Skipped {
+	return Skipped{Source: s.Source, Record: s.Record, Reason: s.Reason, Detail: s.Detail, Failed: s.Failed}
+}
+
+// FailedDoc returns the report entry for a document whose processing
+// failed with err.
+func FailedDoc(d *corpus.Document, err error) Skipped {
+	return Skipped{Source: d.Source, Record: d.Record, Reason: ReasonFailed, Detail: err.Error(), Failed: true}
+}
+
+// Where returns "source" for a whole file and "source:record" for a record.
+func Where(source string, record int) string {
+	if record == 0 {
+		return source
+	}
+	return source + ":" + strconv.Itoa(record)
+}
+
+// OrNone returns skips, or an empty list when it is nil, so that a report
+// in JSON lists no skips as [] rather than null.
+func OrNone(skips []Skipped) []Skipped {
+	if skips == nil {
+		return []Skipped{}
+	}
+	return skips
+}

@@ -1,0 +1,394 @@
+package survey
+
+import (
+	"bufio"
+	"encoding/json"
+	"fmt"
+	"io"
+	"sort"
+	"strings"
+
+	"morsel/bpe"
+	"morsel/corpus"
+	"morsel/report"
+	"morsel/report/measure"
+	"morsel/report/render"
+)
+
+// Weight is what one document weighs.
+
+type Weight struct {
+	Source        string  `json:"source"`
+	Record        int     `json:"record"`
+	Format        string  `json:"format"`
+	Bytes         int64   `json:"bytes"`
+	Chars         int64   `json:"characters"`
+	Words         int64   `json:"words"`
+	Tokens        int     `json:"tokens"`
+	BytesPerToken float64 `json:"bytes_per_token"`
+	TokensPerWord float64 `json:"tokens_per_word"`
+	Specials      int     `json:"special_strings"`
+}
+
+// Weigh counts one document's tokens, characters and words, streaming it
+// when it comes as a Stream.
+func Weigh(enc *bpe.Encoder, d *corpus.Document) (Weight, error) {
+	w := Weight{Source: d.Source, Record: d.Record, Format: d.Format}
+	var tc measure.TextCounter
+	var st bpe.Stats
+	if d.Stream != nil {
+		defer d.Stream.Close()
+		var err error
+		st, _, err = enc.CountReader(measure.CountingReader(d.Stream, &tc))
+		if err != nil {
+			return w, err
+		}
+	} else {
+		tc.Write(d.Text)
+		st = enc.CountStats(d.Text)
+	}
+	w.Bytes, w.Chars, w.Words = tc.Bytes, tc.Chars, tc.Words
+	w.Tokens, w.Specials = st.Tokens, st.Specials
+	w.BytesPerToken = report.Round2(report.Per(float64(w.Bytes), float64(w.Tokens)))
+	w.TokensPerWord = report.Round2(report.Per(float64(w.Tokens), float64(w.Words)))
+	return w, nil
+}
+
+// Totals sums a survey.
+type Totals struct {
+	Documents int   `json:"documents"`
+	Tokens    int64 `json:"tokens"`
+	Bytes     int64 `json:"bytes"`
+	Chars     int64 `json:"characters"`
+	Words     int64 `json:"words"`
+	Skipped   int   `json:"skipped"`
+	Failed    int   `json:"failed"`
+	Specials  int   `json:"special_strings"`
+	// OverWindow counts documents whose tokens alone exceed the
+	// vocabulary's window (0 when the window is not known).
+	OverWindow int `json:"over_window"`
+}
+
+// FormatShare is one file type's part of a survey.
+type FormatShare struct {
+	Format    string `json:"format"`
+	Documents int    `json:"documents"`
+	Tokens    int64  `json:"tokens"`
+	Bytes     int64  `json:"bytes"`
+}
+
+// Bin is one bar of the tokens-per-document histogram: documents with
+// From <= tokens < To.
+type Bin struct {
+	From      int `json:"from"`
+	To        int `json:"to"`
+	Documents int `json:"documents"`
+}
+
+// Report is the report of morsel survey.
+type Report struct {
+	Vocabulary bpe.Info         `json:"vocabulary"`
+	Documents  []Weight         `json:"documents"`
+	Skipped    []report.Skipped `json:"skipped"`
+	Totals     Totals           `json:"totals"`
+	Spread     report.Spread    `json:"spread"`
+	Histogram  []Bin            `json:"histogram"`
+	Formats    []FormatShare    `json:"formats"`
+	Largest    []Weight         `json:"largest"`
+	Warnings   []string         `json:"warnings"`
+}
+
+// Surveyor folds walk results into a Report.
+type Surveyor struct {
+	s Report
+}
+
+// NewSurveyor starts a survey under the vocabulary described by info.
+func NewSurveyor(info bpe.Info) *Surveyor {
+	return &Surveyor{s: Report{Vocabulary: info, Documents: []Weight{}, Skipped: []report.Skipped{}, Warnings: []string{}}}
+}
+
+// Add takes one document's weight.
+func (sv *Surveyor) Add(w Weight) { sv.s.Documents = append(sv.s.Documents, w) }
+
+// LargestShown is how many of the largest documents a survey lists.
+const LargestShown = 10
+
+// Finish computes the totals, spread, histogram and breakdowns and returns
+// the survey, with skipped as the inputs and records it did not count.
+func (sv *Surveyor) Finish(skipped []report.Skipped) *Report {
+	s := &sv.s
+	s.Skipped = report.OrNone(skipped)
+	t := &s.Totals
+	byFormat := map[string]*FormatShare{}
+	tokens := make([]int, len(s.Documents))
+	for i, d := range s.Documents {
+		tokens[i] = d.Tokens
+		t.Documents++
+		t.Tokens += int64(d.Tokens)
+		t.Bytes += d.Bytes
+		t.Chars += d.Chars
+		t.Words += d.Words
+		t.Specials += d.Specials
+		if win := s.Vocabulary.Window; win > 0 && d.Tokens > win {
+			t.OverWindow++
+		}
+		f := byFormat[d.Format]
+		if f == nil {
+			f = &FormatShare{Format: d.Format}
+			byFormat[d.Format] = f
+		}
+		f.Documents++
+		f.Tokens += int64(d.Tokens)
+		f.Bytes += d.Bytes
+	}
+	for _, k := range s.Skipped {
+		t.Skipped++
+		if k.Failed {
+			t.Failed++
+		}
+	}
+	s.Spread = report.SpreadOf(tokens)
+	s.Histogram = Histogram(tokens)
+	for _, f := range byFormat {
+		s.Formats = append(s.Formats, *f)
+	}
+	sort.Slice(s.Formats, func(i, j int) bool {
+		a, b := s.Formats[i], s.Formats[j]
+		return a.Tokens > b.Tokens || a.Tokens == b.Tokens && a.Format < b.Format
+	})
+	idx := make([]int, len(s.Documents))
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.SliceStable(idx, func(i, j int) bool { return s.Documents[idx[i]].Tokens > s.Documents[idx[j]].Tokens })
+	for k := 0; k < len(idx) && k < LargestShown; k++ {
+		s.Largest = append(s.Largest, s.Documents[idx[k]])
+	}
+	if t.Specials > 0 {
+		docs := 0
+		for _, d := range s.Documents {
+			if d.Specials > 0 {
+				docs++
+			}
+		}
+		s.Warnings = append(s.Warnings, fmt.Sprintf("%s document(s) hold %s special-token string(s) such as %s; they were counted as ordinary text (--specials honor counts each as its one special token)",
+			render.Num(docs), render.Num(t.Specials), specialNames(s.Vocabulary)))
+	}
+	if t.OverWindow > 0 {
+		s.Warnings = append(s.Warnings, fmt.Sprintf("%s document(s) exceed the %s-token window on their own, before any prompt frame or answer; morsel fit gives the margins, morsel ration splits them",
+			render.Num(t.OverWindow), render.Num(s.Vocabulary.Window)))
+	}
+	return s
+}
+
+func specialNames(info bpe.Info) string {
+	var names []string
+	for i, sp := range info.Specials {
+		if i == 3 {
+			names = append(names, "...")
+			break
+		}
+		names = append(names, sp.Text)
+	}
+	return strings.Join(names, ", ")
+}
+
+// Histogram bins token counts by powers of two: [0,64), [64,128),
+// [128,256) and so on up to the bin that holds the largest count, so a
+// context window of 2^k tokens falls on a bin edge.
+func Histogram(tokens []int) []Bin {
+	if len(tokens) == 0 {
+		return []Bin{}
+	}
+	bins := []Bin{{From: 0, To: 64}}
+	max := 0
+	for _, n := range tokens {
+		if n > max {
+			max = n
+		}
+	}
+	for bins[len(bins)-1].To <= max {
+		last := bins[len(bins)-1].To
+		bins = append(bins, Bin{From: last, To: 2 * last})
+	}
+	for _, n := range tokens {
+		k := 0
+		for n >= bins[k].To {
+			k++
+		}
+		bins[k].Documents++
+	}
+	return bins
+}
+
+// Rendering.
+
+// Write renders s in format f. rows bounds the per-document rows of
+// the table view (0 lists them all); the CSV view is the per-document
+// table, complete.
+func Write(w io.Writer, f render.Format, s *Report, rows int) error {
+	if f == render.JSON {
+		return writeSurveyJSON(w, s)
+	}
+	docs := surveyDocGrid(s, rows, f)
+	if f == render.CSV {
+		return docs.WriteCSV(w)
+	}
+	grids := []*render.Grid{docs, surveyTotalsGrid(s), spreadGrid(s), formatGrid(s)}
+	if len(s.Documents) > LargestShown {
+		grids = append(grids, largestGrid(s))
+	}
+	if len(s.Skipped) > 0 {
+		grids = append(grids, render.SkipGrid(s.Skipped))
+	}
+	if err := render.WriteGrids(w, f, grids...); err != nil {
+		return err
+	}
+	if len(s.Warnings) > 0 {
+		fmt.Fprintln(w)
+		for _, warn := range s.Warnings {
+			fmt.Fprintf(w, "note: %s\n", warn)
+		}
+	}
+	return nil
+}
+
+var weightHeader = []string{"document", "format", "bytes", "chars", "words", "tokens", "bytes/token", "tokens/word"}
+
+func weightRow(d Weight) []string {
+	return []string{report.Where(d.Source, d.Record), d.Format, render.Num(d.Bytes), render.Num(d.Chars), render.Num(d.Words), render.Num(d.Tokens),
+		render.Ratio(float64(d.Bytes), float64(d.Tokens)), render.Ratio(float64(d.Tokens), float64(d.Words))}
+}
+
+func surveyDocGrid(s *Report, rows int, f render.Format) *render.Grid {
+	g := &render.Grid{Title: fmt.Sprintf("Documents (%s) under %s", render.Num(len(s.Documents)), s.Vocabulary.Name), Header: weightHeader, Right: []int{2, 3, 4, 5, 6, 7}}
+	if f == render.CSV {
+		g.Header = []string{"source", "record", "format", "bytes", "characters", "words", "tokens", "bytes_per_token", "tokens_per_word", "special_strings"}
+		for _, d := range s.Documents {
+			g.AddRow(d.Source, fmt.Sprint(d.Record), d.Format, fmt.Sprint(d.Bytes), fmt.Sprint(d.Chars), fmt.Sprint(d.Words), fmt.Sprint(d.Tokens),
+				render.Ratio(float64(d.Bytes), float64(d.Tokens)), render.Ratio(float64(d.Tokens), float64(d.Words)), fmt.Sprint(d.Specials))
+		}
+		return g
+	}
+	for i, d := range s.Documents {
+		if rows > 0 && i == rows {
+			g.Notes = append(g.Notes, fmt.Sprintf("... and %s more documents (--rows 0 lists all; --format csv or json gives every row)", render.Num(len(s.Documents)-rows)))
+			break
+		}
+		g.AddRow(weightRow(d)...)
+	}
+	return g
+}
+
+func surveyTotalsGrid(s *Report) *render.Grid {
+	t := s.Totals
+	g := &render.Grid{Title: "Totals", Header: []string{"measure", "value"}, Right: []int{1}}
+	g.AddRow("documents", render.Num(t.Documents))
+	g.AddRow("tokens", render.Num(t.Tokens))
+	g.AddRow("bytes", render.Num(t.Bytes))
+	g.AddRow("characters", render.Num(t.Chars))
+	g.AddRow("words", render.Num(t.Words))
+	g.AddRow("bytes per token", render.Ratio(float64(t.Bytes), float64(t.Tokens)))
+	g.AddRow("tokens per word", render.Ratio(float64(t.Tokens), float64(t.Words)))
+	g.AddRow("not counted", fmt.Sprintf("%s (%s failed)", render.Num(t.Skipped), render.Num(t.Failed)))
+	if s.Vocabulary.Window > 0 {
+		g.AddRow(fmt.Sprintf("over the %s-token window", render.Num(s.Vocabulary.Window)), render.Num(t.OverWindow))
+	}
+	return g
+}
+
+// barWidth is the longest histogram bar, in characters.
+const barWidth = 40
+
+func spreadGrid(s *Report) *render.Grid {
+	sp := s.Spread
+	g := &render.Grid{Title: fmt.Sprintf("Tokens per document: min %s, median %s, p90 %s, p99 %s, max %s",
+		render.Num(sp.Min), render.Num(sp.Median), render.Num(sp.P90), render.Num(sp.P99), render.Num(sp.Max)),
+		Header: []string{"tokens", "documents", ""}, Right: []int{1}}
+	most := 0
+	for _, b := range s.Histogram {
+		if b.Documents > most {
+			most = b.Documents
+		}
+	}
+	for _, b := range s.Histogram {
+		bar := ""
+		if most > 0 {
+			n := (b.Documents*barWidth + most - 1) / most
+			bar = strings.Repeat("▪", n)
+		}
+		label := fmt.Sprintf("%s - %s", render.Num(b.From), render.Num(b.To-1))
+		if win := s.Vocabulary.Window; win > 0 && b.From == win {
+			bar += "  ◂ past the window"
+		}
+		g.AddRow(label, render.Num(b.Documents), bar)
+	}
+	return g
+}
+
+func formatGrid(s *Report) *render.Grid {
+	g := &render.Grid{Title: "By file type", Header: []string{"format", "documents", "tokens", "bytes", "share of tokens"}, Right: []int{1, 2, 3, 4}}
+	for _, f := range s.Formats {
+		g.AddRow(f.Format, render.Num(f.Documents), render.Num(f.Tokens), render.Num(f.Bytes), render.Percent(float64(f.Tokens), float64(s.Totals.Tokens)))
+	}
+	return g
+}
+
+func largestGrid(s *Report) *render.Grid {
+	g := &render.Grid{Title: "Largest documents", Header: weightHeader, Right: []int{2, 3, 4, 5, 6, 7}}
+	for _, d := range s.Largest {
+		g.AddRow(weightRow(d)...)
+	}
+	return g
+}
+
+// writeSurveyJSON writes s as WriteJSON would, but one document at a time,
+// so that a survey of a million documents is never held as one buffer.
+func writeSurveyJSON(w io.Writer, s *Report) error {
+	bw := bufio.NewWriterSize(w, 64<<10)
+	field := func(name string, v any, last bool) error {
+		b, err := json.MarshalIndent(v, "  ", "  ")
+		if err != nil {
+			return err
+		}
+		fmt.Fprintf(bw, "  %q: %s", name, b)
+		if !last {
+			bw.WriteString(",")
+		}
+		bw.WriteString("\n")
+		return nil
+	}
+	bw.WriteString("{\n")
+	if err := field("vocabulary", s.Vocabulary, false); err != nil {
+		return err
+	}
+	bw.WriteString("  \"documents\": [")
+	for i, d := range s.Documents {
+		b, err := json.MarshalIndent(d, "    ", "  ")
+		if err != nil {
+			return err
+		}
+		if i > 0 {
+			bw.WriteString(",")
+		}
+		bw.WriteString("\n    ")
+		bw.Write(b)
+	}
+	if len(s.Documents) > 0 {
+		bw.WriteString("\n  ")
+	}
+	bw.WriteString("],\n")
+	rest := []struct {
+		name string
+		v    any
+	}{{"skipped", s.Skipped}, {"totals", s.Totals}, {"spread", s.Spread}, {"histogram", s.Histogram},
+		{"formats", s.Formats}, {"largest", s.Largest}, {"warnings", s.Warnings}}
+	for i, r := range rest {
+		if err := field(r.name, r.v, i == len(rest)-1); err != nil {
+			return err
+		}
+	}
+	bw.WriteString("}\n")
+	return bw.Flush()
+}

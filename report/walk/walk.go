@@ -1,0 +1,169 @@
+package walk
+
+import (
+	"fmt"
+	"io"
+	"runtime"
+	"sync"
+
+	"morsel/corpus"
+)
+
+// Progress hears how a run goes; a nil Progress hears nothing. Its methods
+// are called from one goroutine at a time.
+type Progress interface {
+	// Plan gives the number of files and their bytes, before reading.
+	Plan(files int, bytes int64)
+	// FileDone says one more input was read to its end.
+	FileDone(bytes int64)
+	// Tokens adds tokens counted.
+	Tokens(n int)
+	// Finish ends the run.
+	Finish()
+}
+
+// Walk walks the inputs named by paths, hands every document to work on a
+// fixed pool of workers, and calls emit with every item (document or skip)
+// and its result in input order, whatever the number of workers. Skips that
+// listing the inputs finds come first. work must read and close a
+// document's Stream when it has one; emit gets the document without its
+// text, which is dropped once work is done so that memory stays bounded. An
+// error from emit stops the walk and is returned.
+func Walk[R any](paths []string, opt corpus.Options, workers int, prog Progress,
+	work func(d *corpus.Document) (R, error), emit func(it corpus.Item, r R, err error) error) error {
+	if workers <= 0 {
+		workers = runtime.NumCPU()
+	}
+	inputs, skips := corpus.List(paths, opt)
+	if prog != nil {
+		var total int64
+		for _, in := range inputs {
+			if in.Size > 0 {
+				total += in.Size
+			}
+		}
+		prog.Plan(len(inputs), total)
+		defer prog.Finish()
+	}
+	var zero R
+	for i := range skips {
+		if err := emit(corpus.Item{Skip: &skips[i]}, zero, nil); err != nil {
+			return err
+		}
+	}
+
+	type job struct {
+		seq  int
+		item corpus.Item
+		res  R
+		err  error
+		done chan struct{}
+	}
+	// At most window items are between the reader and emit, which bounds
+	// memory whatever one slow document does to the others.
+	window := 4 * workers
+	if window < 16 {
+		window = 16
+	}
+	ordered := make(chan *job, window)
+	todo := make(chan *job, window)
+	stop := make(chan struct{})
+	var once sync.Once
+	halt := func() { once.Do(func() { close(stop) }) }
+
+	var wg sync.WaitGroup
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for j := range todo {
+				j.res, j.err = runWork(work, j.item.Doc)
+				j.item.Doc.Text = nil
+				j.item.Doc.Stream = nil
+				close(j.done)
+			}
+		}()
+	}
+
+	go func() {
+		defer close(ordered)
+		defer close(todo)
+		seq := 0
+		send := func(it corpus.Item) error {
+			j := &job{seq: seq, item: it, done: make(chan struct{})}
+			seq++
+			select {
+			case ordered <- j:
+			case <-stop:
+				closeStream(it)
+				return errStopped
+			}
+			if it.Doc == nil {
+				close(j.done)
+				return nil
+			}
+			select {
+			case todo <- j:
+			case <-stop:
+				closeStream(it)
+				close(j.done)
+				return errStopped
+			}
+			return nil
+		}
+		for _, in := range inputs {
+			if err := corpus.Read(in, opt, send); err != nil {
+				return
+			}
+			if prog != nil {
+				prog.FileDone(in.Size)
+			}
+		}
+	}()
+
+	var emitErr error
+	for j := range ordered {
+		<-j.done
+		if emitErr != nil {
+			continue
+		}
+		if err := emit(j.item, j.res, j.err); err != nil {
+			emitErr = err
+			halt()
+		}
+	}
+	wg.Wait()
+	return emitErr
+}
+
+var errStopped = fmt.Errorf("walk stopped")
+
+func closeStream(it corpus.Item) {
+	if it.Doc != nil && it.Doc.Stream != nil {
+		it.Doc.Stream.Close()
+	}
+}
+
+// runWork calls work and turns a panic into an error for that one document,
+// so that a bug met on one input never loses the rest of the report.
+func runWork[R any](work func(*corpus.Document) (R, error), d *corpus.Document) (r R, err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			err = fmt.Errorf("internal error on this document: %v", p)
+			if d.Stream != nil {
+				d.Stream.Close()
+			}
+		}
+	}()
+	return work(d)
+}
+
+// Text returns a document's whole text, reading and closing its Stream when
+// it has one.
+func Text(d *corpus.Document) ([]byte, error) {
+	if d.Stream == nil {
+		return d.Text, nil
+	}
+	defer d.Stream.Close()
+	return io.ReadAll(d.Stream)
+}
