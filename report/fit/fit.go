@@ -146,16 +146,24 @@ func Write(w io.Writer, f render.Format, r *Report) error {
 		}
 		g.AddRow(report.Where(d.Source, d.Record), render.Num(d.Tokens), render.Num(d.InputTokens), render.Num(d.Reserve), render.Num(d.Margin), verdict)
 	}
-	t := r.Totals
-	sum := &render.Grid{Title: "Totals", Header: []string{"measure", "value"}, Right: []int{1}}
-	sum.AddRow("documents", render.Num(t.Documents))
-	sum.AddRow("fit", render.Num(t.Fit))
-	sum.AddRow("overflow", render.Num(t.Overflow))
-	sum.AddRow("smallest margin", render.Num(t.WorstMargin))
-	sum.AddRow("not counted", fmt.Sprintf("%s (%s failed)", render.Num(t.Skipped), render.Num(t.Failed)))
-	grids := []*render.Grid{g, sum}
+	grids := []*render.Grid{g, render.TotalsGrid(totals(r))}
 	if len(r.Skipped) > 0 {
 		grids = append(grids, render.SkipGrid(r.Skipped))
 	}
 	return render.WriteGrids(w, f, grids...)
+}
+
+// totals lists the report's totals, for the totals grid and the page's
+// cards alike.
+func totals(r *Report) []render.Measure {
+	t := r.Totals
+	return []render.Measure{
+		{Label: "documents", Value: render.Num(t.Documents)},
+		{Label: "fit", Value: render.Num(t.Fit)},
+		{Label: "overflow", Value: render.Num(t.Overflow), Warn: t.Overflow > 0},
+		{Label: "smallest margin", CardLabel: "smallest margin, tokens", Value: render.Num(t.WorstMargin), Warn: t.WorstMargin < 0},
+		{Label: "window, tokens", Value: render.Num(r.Window), Only: render.InCards},
+		{Label: "not counted", Value: fmt.Sprintf("%s (%s failed)", render.Num(t.Skipped), render.Num(t.Failed)),
+			CardLabel: fmt.Sprintf("not counted (%s failed)", render.Num(t.Failed)), CardValue: render.Num(t.Skipped), Warn: t.Failed > 0},
+	}
 }

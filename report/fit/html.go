@@ -30,14 +30,7 @@ func WriteHTML(w io.Writer, r *Report, rows int) error {
 	}
 	p.Sections = append(p.Sections, render.Section{
 		ID: "glance", Heading: "At a glance",
-		Cards: []render.Fact{
-			{Label: "documents", Value: render.Num(t.Documents)},
-			{Label: "fit", Value: render.Num(t.Fit)},
-			{Label: "overflow", Value: render.Num(t.Overflow), Warn: t.Overflow > 0},
-			{Label: "smallest margin, tokens", Value: render.Num(t.WorstMargin), Warn: t.WorstMargin < 0},
-			{Label: "window, tokens", Value: render.Num(r.Window)},
-			{Label: fmt.Sprintf("not counted (%s failed)", render.Num(t.Failed)), Value: render.Num(t.Skipped), Warn: t.Failed > 0},
-		},
+		Cards: render.Cards(totals(r)),
 		Notes: []string{"Margin = window − framed input − reserved answer. A negative margin is an overflow: morsel ration splits such documents into chunks that fit."},
 	})
 	if t.Overflow > 0 {

@@ -23,16 +23,7 @@ func WriteHTML(w io.Writer, r *Report, docRows int) error {
 	}
 	p.Sections = append(p.Sections, render.Section{
 		ID: "glance", Heading: "At a glance",
-		Cards: []render.Fact{
-			{Label: "documents", Value: render.Num(t.Documents)},
-			{Label: "tokens", Value: render.Num(t.Tokens)},
-			{Label: "words", Value: render.Num(t.Words)},
-			{Label: "tokens per word, in words", Value: fmt.Sprintf("%.2f", r.Fertility.Fertility)},
-			{Label: "words that are one token", Value: render.Percent(float64(r.Fertility.OneTokenShare), 1)},
-			{Label: fmt.Sprintf("words of %g+ pieces", r.Options.MinPieces), Value: render.Num(t.Qualifying), Warn: t.Qualifying > 0},
-			{Label: "excess tokens of the listed words", Value: render.Num(t.ListedExcess)},
-			{Label: "saving, at most", Value: render.Percent(float64(t.ListedExcess), float64(t.Tokens))},
-		},
+		Cards: render.Cards(totals(r)),
 		Notes: []string{"Excess is occurrences × (pieces − 1): the tokens a word takes beyond one each time it occurs. The saving is an upper bound: it assumes every listed word became one token wherever it stands."},
 	})
 

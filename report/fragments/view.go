@@ -66,20 +66,30 @@ func fragmentGrid(r *Report, f render.Format) *render.Grid {
 	return g
 }
 
-func savingGrid(r *Report) *render.Grid {
+// totals lists the report's totals, for the totals grid and the page's
+// cards alike.
+func totals(r *Report) []render.Measure {
 	t := r.Totals
-	g := &render.Grid{Title: "Totals", Header: []string{"measure", "value"}, Right: []int{1}}
-	g.AddRow("documents", render.Num(t.Documents))
-	g.AddRow("tokens", render.Num(t.Tokens))
-	g.AddRow("words", render.Num(t.Words))
-	g.AddRow("distinct words", render.Num(t.DistinctWords))
-	g.AddRow(fmt.Sprintf("words with %g+ pieces, %d+ times", r.Options.MinPieces, r.Options.MinCount), render.Num(t.Qualifying))
-	g.AddRow("excess tokens of the listed words", render.Num(t.ListedExcess))
-	g.AddRow("saving, at most", render.Percent(float64(t.ListedExcess), float64(t.Tokens)))
-	if len(r.Terms) > 0 {
-		g.AddRow("glossary terms flagged", fmt.Sprintf("%s of %s", render.Num(t.FlaggedTerm), render.Num(len(r.Terms))))
+	ms := []render.Measure{
+		{Label: "documents", Value: render.Num(t.Documents)},
+		{Label: "tokens", Value: render.Num(t.Tokens)},
+		{Label: "words", Value: render.Num(t.Words)},
+		{Label: "distinct words", Value: render.Num(t.DistinctWords), Only: render.InGrid},
+		{Label: "tokens per word, in words", Value: fmt.Sprintf("%.2f", r.Fertility.Fertility), Only: render.InCards},
+		{Label: "words that are one token", Value: render.Percent(float64(r.Fertility.OneTokenShare), 1), Only: render.InCards},
+		{Label: fmt.Sprintf("words with %g+ pieces, %d+ times", r.Options.MinPieces, r.Options.MinCount), Value: render.Num(t.Qualifying),
+			CardLabel: fmt.Sprintf("words of %g+ pieces", r.Options.MinPieces), Warn: t.Qualifying > 0},
+		{Label: "excess tokens of the listed words", Value: render.Num(t.ListedExcess)},
+		{Label: "saving, at most", Value: render.Percent(float64(t.ListedExcess), float64(t.Tokens))},
 	}
-	g.AddRow("not counted", fmt.Sprintf("%s (%s failed)", render.Num(t.Skipped), render.Num(t.Failed)))
+	if len(r.Terms) > 0 {
+		ms = append(ms, render.Measure{Label: "glossary terms flagged", Value: fmt.Sprintf("%s of %s", render.Num(t.FlaggedTerm), render.Num(len(r.Terms))), Only: render.InGrid})
+	}
+	return append(ms, render.Measure{Label: "not counted", Value: fmt.Sprintf("%s (%s failed)", render.Num(t.Skipped), render.Num(t.Failed)), Only: render.InGrid})
+}
+
+func savingGrid(r *Report) *render.Grid {
+	g := render.TotalsGrid(totals(r))
 	g.Notes = append(g.Notes, "The saving is an upper bound: it assumes each listed word became one token in every context.")
 	return g
 }

@@ -24,20 +24,7 @@ func WriteHTML(w io.Writer, s *Report, sample *Sample, rows int) error {
 		Facts:   render.VocabFacts(s.Vocabulary.Name, s.Vocabulary.Size, s.Vocabulary.Window),
 		Notes:   s.Warnings,
 	}
-	t := s.Totals
-	p.Sections = append(p.Sections, render.Section{
-		ID: "glance", Heading: "At a glance",
-		Cards: []render.Fact{
-			{Label: "documents", Value: render.Num(t.Documents)},
-			{Label: "tokens", Value: render.Num(t.Tokens)},
-			{Label: "bytes", Value: render.Num(t.Bytes)},
-			{Label: "words", Value: render.Num(t.Words)},
-			{Label: "tokens per word", Value: render.Ratio(float64(t.Tokens), float64(t.Words))},
-			{Label: "bytes per token", Value: render.Ratio(float64(t.Bytes), float64(t.Tokens))},
-			{Label: render.WindowLabel(s.Vocabulary.Window), Value: overWindowValue(s), Warn: t.OverWindow > 0},
-			{Label: fmt.Sprintf("not counted, %s failed", render.Num(t.Failed)), Value: render.Num(t.Skipped), Warn: t.Failed > 0},
-		},
-	})
+	p.Sections = append(p.Sections, render.Section{ID: "glance", Heading: "At a glance", Cards: render.Cards(totals(s))})
 
 	sp := s.Spread
 	spread := render.Section{

@@ -235,7 +235,7 @@ func Write(w io.Writer, f render.Format, s *Report, rows int) error {
 	if f == render.CSV {
 		return docs.WriteCSV(w)
 	}
-	grids := []*render.Grid{docs, surveyTotalsGrid(s), spreadGrid(s), formatGrid(s)}
+	grids := []*render.Grid{docs, render.TotalsGrid(totals(s)), spreadGrid(s), formatGrid(s)}
 	if len(s.Documents) > LargestShown {
 		grids = append(grids, largestGrid(s))
 	}
@@ -281,21 +281,28 @@ func surveyDocGrid(s *Report, rows int, f render.Format) *render.Grid {
 	return g
 }
 
-func surveyTotalsGrid(s *Report) *render.Grid {
+// totals lists the survey's totals, for the totals grid and the page's
+// cards alike.
+func totals(s *Report) []render.Measure {
 	t := s.Totals
-	g := &render.Grid{Title: "Totals", Header: []string{"measure", "value"}, Right: []int{1}}
-	g.AddRow("documents", render.Num(t.Documents))
-	g.AddRow("tokens", render.Num(t.Tokens))
-	g.AddRow("bytes", render.Num(t.Bytes))
-	g.AddRow("characters", render.Num(t.Chars))
-	g.AddRow("words", render.Num(t.Words))
-	g.AddRow("bytes per token", render.Ratio(float64(t.Bytes), float64(t.Tokens)))
-	g.AddRow("tokens per word", render.Ratio(float64(t.Tokens), float64(t.Words)))
-	g.AddRow("not counted", fmt.Sprintf("%s (%s failed)", render.Num(t.Skipped), render.Num(t.Failed)))
-	if s.Vocabulary.Window > 0 {
-		g.AddRow(fmt.Sprintf("over the %s-token window", render.Num(s.Vocabulary.Window)), render.Num(t.OverWindow))
+	bytesPerToken := render.Ratio(float64(t.Bytes), float64(t.Tokens))
+	ms := []render.Measure{
+		{Label: "documents", Value: render.Num(t.Documents)},
+		{Label: "tokens", Value: render.Num(t.Tokens)},
+		{Label: "bytes", Value: render.Num(t.Bytes)},
+		{Label: "characters", Value: render.Num(t.Chars), Only: render.InGrid},
+		{Label: "words", Value: render.Num(t.Words)},
+		{Label: "bytes per token", Value: bytesPerToken, Only: render.InGrid},
+		{Label: "tokens per word", Value: render.Ratio(float64(t.Tokens), float64(t.Words))},
+		{Label: "bytes per token", Value: bytesPerToken, Only: render.InCards},
+		{Label: render.WindowLabel(s.Vocabulary.Window), Value: overWindowValue(s), Warn: t.OverWindow > 0, Only: render.InCards},
+		{Label: "not counted", Value: fmt.Sprintf("%s (%s failed)", render.Num(t.Skipped), render.Num(t.Failed)),
+			CardLabel: fmt.Sprintf("not counted, %s failed", render.Num(t.Failed)), CardValue: render.Num(t.Skipped), Warn: t.Failed > 0},
 	}
-	return g
+	if s.Vocabulary.Window > 0 {
+		ms = append(ms, render.Measure{Label: fmt.Sprintf("over the %s-token window", render.Num(s.Vocabulary.Window)), Value: render.Num(t.OverWindow), Only: render.InGrid})
+	}
+	return ms
 }
 
 // barWidth is the longest histogram bar, in characters.
