@@ -15,7 +15,6 @@ import (
 	"morsel/report"
 	"morsel/report/fit"
 	"morsel/report/ration"
-	"morsel/report/request"
 )
 
 const (
@@ -75,7 +74,7 @@ func TestFitExitAndMargins(t *testing.T) {
 	}
 	// The input is the assembled request, counted whole.
 	enc, _ := bpe.NewEncoder(bpe.Default(), bpe.Options{})
-	frame, err := request.LoadFrame(demoFrame)
+	frame, err := loadFrame("test", demoFrame)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -133,7 +132,7 @@ func TestRationEmit(t *testing.T) {
 	}
 	defer f.Close()
 	enc, _ := bpe.NewEncoder(bpe.Default(), bpe.Options{})
-	frame, _ := request.LoadFrame(demoFrame)
+	frame, _ := loadFrame("test", demoFrame)
 	docs := map[string][]byte{}
 	lines := 0
 	sc := bufio.NewScanner(f)

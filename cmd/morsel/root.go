@@ -25,7 +25,6 @@ type shared struct {
 	quiet         bool
 	specials      string
 	splitPattern  string
-	window        int // set by --window where a command has it; 0 keeps the vocabulary's
 
 	stdin          io.Reader
 	stdout, stderr io.Writer

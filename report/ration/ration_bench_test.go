@@ -7,7 +7,6 @@ import (
 
 	"morsel/report/internal/reporttest"
 	"morsel/report/render"
-	"morsel/report/request"
 )
 
 // rationBenchText joins the demo and golden corpus texts into one document of
@@ -36,10 +35,7 @@ func rationBenchText(b *testing.B) []byte {
 func BenchmarkRationVsWeigh(b *testing.B) {
 	enc := reporttest.Encoder(b)
 	text := rationBenchText(b)
-	frame, err := request.LoadFrame("../../testdata/demo/frame.txt")
-	if err != nil {
-		b.Fatal(err)
-	}
+	frame := demoFrame(b)
 	enc.Count(text) // warm the word cache for both
 	b.Run("weigh", func(b *testing.B) {
 		b.SetBytes(int64(len(text)))
@@ -67,10 +63,7 @@ func BenchmarkRationVsWeigh(b *testing.B) {
 func BenchmarkRationRatio(b *testing.B) {
 	enc := reporttest.Encoder(b)
 	text := rationBenchText(b)
-	frame, err := request.LoadFrame("../../testdata/demo/frame.txt")
-	if err != nil {
-		b.Fatal(err)
-	}
+	frame := demoFrame(b)
 	enc.Count(text)
 	r := &Rationer{Enc: enc, Frame: frame, Budget: 1024}
 	best := func(cur time.Duration, f func()) time.Duration {

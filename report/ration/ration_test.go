@@ -63,10 +63,7 @@ func checkPlan(t *testing.T, r *Rationer, name string, text []byte, chunks []Chu
 
 func TestRationRealText(t *testing.T) {
 	enc := reporttest.Encoder(t)
-	frame, err := request.LoadFrame("../../testdata/demo/frame.txt")
-	if err != nil {
-		t.Fatal(err)
-	}
+	frame := demoFrame(t)
 	texts := reporttest.RealTexts(t)
 	for _, tc := range []struct {
 		name    string
@@ -290,4 +287,19 @@ func TestRationHonorSpecials(t *testing.T) {
 		}
 		checkPlan(t, r, "honor", text, chunks)
 	}
+}
+
+// demoFrame returns the demo corpus's prompt frame.
+func demoFrame(tb testing.TB) *request.Frame {
+	tb.Helper()
+	path := reporttest.Testdata("demo/frame.txt")
+	data, err := os.ReadFile(path)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	f, err := request.ParseFrame(path, data)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return f
 }

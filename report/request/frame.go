@@ -3,7 +3,6 @@ package request
 import (
 	"bytes"
 	"fmt"
-	"os"
 
 	"morsel/bpe"
 	"morsel/internal/textfile"
@@ -38,15 +37,6 @@ func ParseFrame(name string, data []byte) (*Frame, error) {
 			name, textfile.Line(data, int64(second)), DocumentMark, textfile.Line(data, int64(i)))
 	}
 	return &Frame{Name: name, before: data[:i], after: rest}, nil
-}
-
-// LoadFrame reads the frame file at path.
-func LoadFrame(path string) (*Frame, error) {
-	data, err := os.ReadFile(path)
-	if err != nil {
-		return nil, fmt.Errorf("reading frame: %w", err)
-	}
-	return ParseFrame(path, data)
 }
 
 // Parts returns the text before and after the document for the document

@@ -2,7 +2,6 @@ package request
 
 import (
 	"fmt"
-	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -100,15 +99,6 @@ type TargetsError struct {
 }
 
 func (e *TargetsError) Error() string { return fmt.Sprintf("%s:%d: %s", e.File, e.Line, e.Msg) }
-
-// LoadTargets reads and parses the targets file at path.
-func LoadTargets(path string) (*Targets, error) {
-	data, err := os.ReadFile(path)
-	if err != nil {
-		return nil, fmt.Errorf("reading targets: %w", err)
-	}
-	return ParseTargets(path, data)
-}
 
 // targetFields are the keys a [target.NAME] table may hold.
 var targetFields = map[string]bool{"vocab": true, "merges": true, "window": true, "frame": true, "price_in": true,
