@@ -61,22 +61,22 @@ func readVocabFile(path string) ([]byte, error) {
 	return buf, nil
 }
 
-// IsBundle reports whether data looks like a tokenizer bundle rather than
-// a plain vocabulary map: a JSON object with a "model" member.
-func IsBundle(data []byte) bool {
+// looksLikeBundle tells a bundle from a vocabulary map (token -> id) by the
+// first member's value: a number in a map, anything else in a bundle.
+func looksLikeBundle(data []byte) bool {
 	j := &jscan{data: data}
 	if j.peek() != '{' {
 		return false
 	}
-	found := false
-	err := j.object(func(key string, _ int) error {
-		if key == "model" {
-			found = true
-		}
-		_, _, err := j.skip()
-		return err
-	})
-	return found && err == nil
+	j.pos++
+	if j.peek() != '"' {
+		return false
+	}
+	if _, err := j.str(nil); err != nil || j.expect(':', "':'") != nil {
+		return false
+	}
+	c := j.peek()
+	return c != 0 && c != '-' && (c < '0' || c > '9')
 }
 
 // LoadBundle loads a tokenizer bundle from path, a tokenizer.json file or
@@ -92,6 +92,13 @@ func LoadBundle(path string) (*Vocab, error) {
 	if err != nil {
 		return nil, fmt.Errorf("reading vocabulary: %w", err)
 	}
+	return loadBundleData(path, data)
+}
+
+// loadBundleData loads the bundle data read from path, with the
+// tokenizer_config.json beside it when there is one.
+func loadBundleData(path string, data []byte) (*Vocab, error) {
+	var err error
 	cfgPath := filepath.Join(filepath.Dir(path), "tokenizer_config.json")
 	var cfg []byte
 	if fileExists(cfgPath) {

@@ -236,3 +236,26 @@ func FuzzParseBundle(f *testing.F) {
 		}
 	})
 }
+
+// LoadFiles takes a bundle by its content, as a file or in a folder, and
+// refuses a merges file beside one.
+func TestLoadFilesBundle(t *testing.T) {
+	t.Setenv("MORSEL_CACHE_DIR", "off")
+	dir := t.TempDir()
+	p := filepath.Join(dir, "tokenizer.json")
+	if err := os.WriteFile(p, []byte(miniBundle("")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, path := range []string{p, dir} {
+		v, err := LoadFiles(path, "")
+		if err != nil || v.Family() != "character-level" {
+			t.Fatalf("LoadFiles(%s): %v", path, err)
+		}
+	}
+	if _, err := LoadFiles(p, p); err == nil || !strings.Contains(err.Error(), "leave out --merges") {
+		t.Fatalf("a bundle with --merges: %v", err)
+	}
+	if !looksLikeBundle([]byte(` {"version": "1.0"}`)) || looksLikeBundle([]byte(`{"a": 0}`)) || looksLikeBundle([]byte(`[]`)) {
+		t.Fatal("looksLikeBundle")
+	}
+}

@@ -118,23 +118,35 @@ func fileExists(p string) bool {
 }
 
 // LoadFiles loads a vocabulary from a JSON vocabulary file (token -> id) and
-// a merges file. If vocabPath is a folder, it is handed to LoadDir and
-// mergesPath must be empty.
+// a merges file, or from a tokenizer bundle (tokenizer.json, told from a
+// vocabulary map by its content), which needs no merges file. If vocabPath
+// is a folder, it must hold a tokenizer.json or a pair (see LoadDir), and
+// mergesPath must be empty. A vocabulary or merges file must be a regular
+// file of at most MaxVocabFile bytes.
 func LoadFiles(vocabPath, mergesPath string) (*Vocab, error) {
 	if st, err := os.Stat(vocabPath); err == nil && st.IsDir() {
 		if mergesPath != "" {
 			return nil, fmt.Errorf("%s is a folder; name a vocabulary file with --merges, or the folder alone", vocabPath)
 		}
+		if fileExists(filepath.Join(vocabPath, "tokenizer.json")) {
+			return LoadBundle(vocabPath)
+		}
 		return LoadDir(vocabPath)
+	}
+	vj, err := readVocabFile(vocabPath)
+	if err != nil {
+		return nil, fmt.Errorf("reading vocabulary: %w", err)
+	}
+	if looksLikeBundle(vj) {
+		if mergesPath != "" {
+			return nil, fmt.Errorf("%s is a tokenizer bundle, which holds its merges; leave out --merges", vocabPath)
+		}
+		return loadBundleData(vocabPath, vj)
 	}
 	if mergesPath == "" {
 		return nil, fmt.Errorf("%s: a vocabulary file needs its merges file too (--merges)", vocabPath)
 	}
-	vj, err := os.ReadFile(vocabPath)
-	if err != nil {
-		return nil, fmt.Errorf("reading vocabulary: %w", err)
-	}
-	mt, err := os.ReadFile(mergesPath)
+	mt, err := readVocabFile(mergesPath)
 	if err != nil {
 		return nil, fmt.Errorf("reading merges: %w", err)
 	}
