@@ -485,7 +485,7 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 			}
 		}
 	}
-	p.cutBefore = metaspaceCut(v, p)
+	p.cuts = cutsFor(v, p)
 	v.pipe = p
 	v.slow = !v.plainModel()
 	if config != nil {

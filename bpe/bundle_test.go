@@ -151,12 +151,14 @@ func TestBundleSplitTilesText(t *testing.T) {
 	}
 }
 
-// Cutting a metaspace text before each replacement character that follows
-// another character gives the ids of the whole text as one merge problem.
+// Cutting a metaspace text where the cut table allows (before each
+// replacement character that follows another character, between ASCII
+// characters no token holds side by side) gives the ids of the whole text
+// as one merge problem.
 func TestMetaspaceCutKeepsIDs(t *testing.T) {
 	v, _ := loadTestBundle(t, "metaspace-32k")
-	if !v.pipe.cutBefore {
-		t.Fatal("metaspace-32k: the load check refused the cut")
+	if c := v.pipe.cuts; c == nil || !c.beforeRepl {
+		t.Fatal("metaspace-32k: the load check refused the cuts")
 	}
 	enc, err := NewEncoder(v, Options{})
 	if err != nil {
@@ -166,9 +168,10 @@ func TestMetaspaceCutKeepsIDs(t *testing.T) {
 	texts["spaces"] = []byte("a  b   c\u2581\u2581d \u2581 e\u2581")
 	for name, text := range texts {
 		cut := enc.Encode(text)
-		v.pipe.cutBefore = false
+		c := v.pipe.cuts
+		v.pipe.cuts = nil
 		whole := enc.Encode(text)
-		v.pipe.cutBefore = true
+		v.pipe.cuts = c
 		if !eqInts(cut, whole) {
 			t.Errorf("%s: %d ids cut, %d whole", name, len(cut), len(whole))
 		}
@@ -184,7 +187,7 @@ func TestMetaspaceCutRefused(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if v.pipe.cutBefore {
+	if c := v.pipe.cuts; c == nil || c.beforeRepl {
 		t.Fatal("a vocabulary holding \"a▁\" allows a cut before ▁")
 	}
 	enc, _ := NewEncoder(v, Options{})
@@ -258,4 +261,25 @@ func TestLoadFilesBundle(t *testing.T) {
 	if !looksLikeBundle([]byte(` {"version": "1.0"}`)) || looksLikeBundle([]byte(`{"a": 0}`)) || looksLikeBundle([]byte(`[]`)) {
 		t.Fatal("looksLikeBundle")
 	}
+}
+
+func FuzzMetaspaceCutKeepsIDs(f *testing.F) {
+	v, _ := loadTestBundle(f, "metaspace-32k")
+	enc, err := NewEncoder(v, Options{})
+	if err != nil {
+		f.Fatal(err)
+	}
+	for _, s := range []string{"func main() {\n\tfmt.Println(x)\n}", "a  b\u2581\u2581c", "x=1;y=[2,3]", "\xff\xfe ab"} {
+		f.Add(s)
+	}
+	c := v.pipe.cuts
+	f.Fuzz(func(t *testing.T, s string) {
+		cut := enc.Encode([]byte(s))
+		v.pipe.cuts = nil
+		whole := enc.Encode([]byte(s))
+		v.pipe.cuts = c
+		if !eqInts(cut, whole) {
+			t.Fatalf("%q: ids %v cut, %v whole", s, cut, whole)
+		}
+	})
 }

@@ -18,10 +18,8 @@ type pipeline struct {
 	template  []int
 	family    string
 	metaspace string // the replacement character of a metaspace vocabulary, or ""
-	// cutBefore: with no pre-tokenizer, a text may be cut before every
-	// replacement character that follows another character, since no token
-	// holds the replacement anywhere but in a leading run (checked at load).
-	cutBefore bool
+	// cuts: where a text with no pre-tokenizer may be cut (nil: nowhere).
+	cuts *cutTable
 	// written holds the bundle's components as its file wrote them, so
 	// that a vocabulary learned on top of it can be written with them.
 	written map[string][]byte
@@ -133,56 +131,98 @@ func (s *state) identity(base, n int) []int32 {
 	return al
 }
 
-// pretokenize hands a normalized stretch to the stages, cutting it first
-// where no merge can cross when the vocabulary allows.
+// pretokenize hands a normalized stretch to the stages. With no stages,
+// the whole stretch would be one merge problem, so it is first cut where
+// no merge can cross (see cuts), which keeps the word cache useful.
 func (s *state) pretokenize(t []byte, al []int32, first bool) {
 	p := s.v.pipe
-	if !p.cutBefore || len(p.pre) > 0 {
+	c := p.cuts
+	if c == nil || len(p.pre) > 0 {
 		s.emit(0, t, al, first)
 		return
 	}
-	r := []byte(p.metaspace)
+	r := p.metaspace
 	start := 0
-	for i := 1; i < len(t); {
-		j := bytes.Index(t[i:], r)
-		if j < 0 {
-			break
+	for i := 1; i < len(t); i++ {
+		x, y := t[i-1], t[i]
+		switch {
+		case y < utf8.RuneSelf:
+			if x < utf8.RuneSelf && c.known[x] && c.known[y] && !c.pair[x][y] {
+				break
+			}
+			continue
+		case c.beforeRepl && y == r[0] && bytes.HasPrefix(t[i:], []byte(r)) && !bytes.HasSuffix(t[:i], []byte(r)):
+		default:
+			continue
 		}
-		at := i + j
-		if !bytes.HasSuffix(t[:at], r) {
-			s.emitSub(0, t, al, first, start, at)
-			start = at
-		}
-		i = at + len(r)
+		s.emitSub(0, t, al, first, start, i)
+		start = i
 	}
 	s.emitSub(0, t, al, first, start, len(t))
 }
 
-// metaspaceCut reports whether a vocabulary with no pre-tokenizer may be
-// cut before each replacement character that follows another character:
-// true when every token that holds the replacement holds it only in a
-// leading run, so that no merge (nor a fused unknown) can cross such a cut.
-func metaspaceCut(v *Vocab, p *pipeline) bool {
+// cutTable says where a text with no pre-tokenizer may be cut without
+// changing its ids: between two ASCII characters that are tokens of their
+// own and that no token holds side by side (pair false), and, with
+// beforeRepl, before a replacement character that follows another
+// character, when every token holding the replacement holds it only in a
+// leading run. A merge across such a cut would make a token holding the
+// two characters there, and there is none; both characters having tokens,
+// no unknown can be fused across it, and no merge involves the unk or
+// byte-fallback tokens (checked), so the two sides merge as the whole.
+type cutTable struct {
+	known      [utf8.RuneSelf]bool
+	pair       [utf8.RuneSelf][utf8.RuneSelf]bool
+	beforeRepl bool
+}
+
+// cutsFor returns the cut table of a vocabulary, or nil when it allows no
+// cuts.
+func cutsFor(v *Vocab, p *pipeline) *cutTable {
 	m := &v.model
-	if p.metaspace == "" || len(p.pre) > 0 || m.ignoreMerges || m.prefix != "" || m.suffix != "" || !m.charLevel {
-		return false
+	if len(p.pre) > 0 || m.ignoreMerges || m.prefix != "" || m.suffix != "" || !m.charLevel {
+		return nil
 	}
+	special := func(id uint32) bool {
+		return int32(id) == m.unk || (m.fallback && len(v.tokens[id]) == 1 && m.fallbackID[v.tokens[id][0]] == id)
+	}
+	ok := true
+	v.merges.each(func(k, rm uint64) {
+		if special(uint32(k>>32)) || special(uint32(k)) {
+			ok = false
+		}
+	})
+	if !ok {
+		return nil
+	}
+	c := &cutTable{beforeRepl: p.metaspace != ""}
 	r := []byte(p.metaspace)
-	if _, ok := v.ID(r); !ok {
-		return false
+	if c.beforeRepl {
+		if _, ok := v.ID(r); !ok {
+			c.beforeRepl = false
+		}
 	}
-	for id := range v.tokens {
-		sp := v.spell[id]
+	for id, sp := range v.spell {
 		if sp == nil || p.isAdded(id) {
 			continue
 		}
-		rest := sp
-		for bytes.HasPrefix(rest, r) {
-			rest = rest[len(r):]
+		if len(sp) == 1 && sp[0] < utf8.RuneSelf {
+			c.known[sp[0]] = true
 		}
-		if bytes.Contains(rest, r) {
-			return false
+		for i := 1; i < len(sp); i++ {
+			if sp[i-1] < utf8.RuneSelf && sp[i] < utf8.RuneSelf {
+				c.pair[sp[i-1]][sp[i]] = true
+			}
+		}
+		if c.beforeRepl {
+			rest := sp
+			for bytes.HasPrefix(rest, r) {
+				rest = rest[len(r):]
+			}
+			if bytes.Contains(rest, r) {
+				c.beforeRepl = false
+			}
 		}
 	}
-	return utf8.Valid(r)
+	return c
 }
