@@ -1,0 +1,68 @@
+package main
+
+import (
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+func vocabJSON(t *testing.T, args ...string) map[string]any {
+	t.Helper()
+	out, errs, code := run(t, "", append([]string{"vocab", "--format", "json"}, args...)...)
+	if code != 0 {
+		t.Fatalf("vocab %v: exit %d: %s", args, code, errs)
+	}
+	var m map[string]any
+	if err := json.Unmarshal([]byte(out), &m); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"family", "tokens", "merges", "specials", "added", "window", "byte_fallback", "fingerprint"} {
+		if _, ok := m[k]; !ok {
+			t.Fatalf("vocab %v: no %q in the JSON", args, k)
+		}
+	}
+	return m
+}
+
+// The fingerprint is the same however a vocabulary is named, and differs
+// between vocabularies; the JSON has the contract's fields.
+func TestVocabFingerprint(t *testing.T) {
+	t.Setenv("MORSEL_CACHE_DIR", t.TempDir())
+	embedded := vocabJSON(t)
+	folder := vocabJSON(t, "--vocab", "../../bpe/gpt2")
+	file := vocabJSON(t, "--vocab", "../../bpe/gpt2/vocab.json", "--merges", "../../bpe/gpt2/merges.txt")
+	if embedded["fingerprint"] != folder["fingerprint"] || folder["fingerprint"] != file["fingerprint"] {
+		t.Fatalf("fingerprints differ: %v %v %v", embedded["fingerprint"], folder["fingerprint"], file["fingerprint"])
+	}
+	if embedded["family"] != "byte-level" || embedded["tokens"] != 50257.0 || embedded["window"] != 1024.0 {
+		t.Fatalf("GPT-2: %v", embedded)
+	}
+	data, err := os.ReadFile("../../testdata/bundles/words.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	p := filepath.Join(dir, "tokenizer.json")
+	if err := os.WriteFile(p, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	b1, b2 := vocabJSON(t, "--vocab", p), vocabJSON(t, "--vocab", dir)
+	if b1["fingerprint"] != b2["fingerprint"] || b1["fingerprint"] == embedded["fingerprint"] {
+		t.Fatalf("bundle fingerprints %v %v, GPT-2 %v", b1["fingerprint"], b2["fingerprint"], embedded["fingerprint"])
+	}
+	if b1["window"] != nil || b1["family"] != "character-level" {
+		t.Fatalf("words bundle: window %v, family %v", b1["window"], b1["family"])
+	}
+	if !strings.HasPrefix(b1["fingerprint"].(string), "sha256:") {
+		t.Fatalf("fingerprint %v", b1["fingerprint"])
+	}
+	out, _, code := run(t, "", "vocab", "--vocab", dir)
+	if code != 0 || !strings.Contains(out, "fingerprint") || !strings.Contains(out, "not known (set --window)") {
+		t.Fatalf("table: exit %d\n%s", code, out)
+	}
+	if _, _, code := run(t, "", "vocab", "--vocab", p, "--merges", p); code != 1 {
+		t.Fatalf("a bundle with --merges: exit %d, want 1", code)
+	}
+}
