@@ -620,6 +620,11 @@ func (v *Vocab) Family() string {
 	return v.pipe.family
 }
 
+// FromBundle reports whether v came from a tokenizer bundle, whose
+// pipeline (normalizer, pre-tokenizer, added tokens) replaces the GPT-2
+// split rule: the rule's context-free pre-token edges do not hold.
+func (v *Vocab) FromBundle() bool { return v.pipe != nil }
+
 // Template returns the ids that the bundle's post-processor adds to every
 // single sequence (a start token, say), in order; nil when none.
 func (v *Vocab) Template() []int {

@@ -91,7 +91,7 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 					}
 					encs[key] = enc
 				}
-				p := &quote.Pricer{Target: t, Enc: enc, Window: t.Window, Answer: t.Answer, Overhead: rf.overhead, Ration: cut, Batch: batch, Generic: sh.genericSplit(enc)}
+				p := &quote.Pricer{Target: t, Enc: enc, Window: t.Window, Answer: t.Answer, Overhead: rf.overhead + sh.templateTokens(enc.Vocab()), Ration: cut, Batch: batch, Generic: sh.genericSplit(enc)}
 				if flags.Changed("window") {
 					p.Window = rf.window
 				}

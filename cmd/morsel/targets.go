@@ -6,10 +6,12 @@ import (
 	"fmt"
 	"io/fs"
 	"os"
+	"strings"
 
 	"github.com/spf13/cobra"
 
 	"morsel/bpe"
+	"morsel/report/render"
 	"morsel/report/request"
 )
 
@@ -147,6 +149,7 @@ func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *req
 	if rq.enc, err = sh.encoder(); err != nil {
 		return nil, err
 	}
+	rq.overhead += sh.templateTokens(rq.enc.Vocab())
 	switch {
 	case flags.Changed("window"):
 		if rf.window <= 0 {
@@ -172,7 +175,7 @@ func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *req
 // text holds white space, the GPT-2 rule's context-free pre-token edges do
 // not hold.
 func (sh *shared) genericSplit(enc *bpe.Encoder) bool {
-	if sh.splitPattern != "" {
+	if sh.splitPattern != "" || enc.Vocab().FromBundle() {
 		return true
 	}
 	if sh.specials != "honor" {
@@ -184,4 +187,21 @@ func (sh *shared) genericSplit(enc *bpe.Encoder) bool {
 		}
 	}
 	return false
+}
+
+// templateTokens returns the number of tokens that the vocabulary's
+// template adds to every request (a start token, say), and says so: the
+// model sees them, so fit, ration and quote count them as overhead.
+func (sh *shared) templateTokens(v *bpe.Vocab) int {
+	ids := v.Template()
+	if len(ids) == 0 {
+		return 0
+	}
+	var names []string
+	for _, id := range ids {
+		raw, _ := v.Token(id)
+		names = append(names, render.Readable(raw))
+	}
+	sh.note("vocabulary %s adds %d token(s) to every request (%s); each request's input counts them", v.Name(), len(ids), strings.Join(names, " "))
+	return len(ids)
 }

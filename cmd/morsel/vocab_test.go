@@ -66,3 +66,48 @@ func TestVocabFingerprint(t *testing.T) {
 		t.Fatalf("a bundle with --merges: exit %d, want 1", code)
 	}
 }
+
+// A template's tokens count in every request of fit, and the run says so.
+func TestTemplateTokensInRequests(t *testing.T) {
+	t.Setenv("MORSEL_CACHE_DIR", "off")
+	data, err := os.ReadFile("../../testdata/bundles/words.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b map[string]any
+	if err := json.Unmarshal(data, &b); err != nil {
+		t.Fatal(err)
+	}
+	plain := filepath.Join(t.TempDir(), "tokenizer.json")
+	withT := filepath.Join(t.TempDir(), "tokenizer.json")
+	if err := os.WriteFile(plain, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	b["post_processor"] = map[string]any{"type": "TemplateProcessing",
+		"single":         []any{map[string]any{"SpecialToken": map[string]any{"id": "<unk>", "type_id": 0}}, map[string]any{"Sequence": map[string]any{"id": "A", "type_id": 0}}},
+		"special_tokens": map[string]any{"<unk>": map[string]any{"id": "<unk>", "ids": []int{0}, "tokens": []string{"<unk>"}}}}
+	tj, _ := json.Marshal(b)
+	if err := os.WriteFile(withT, tj, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	input := func(vocab string) (float64, string) {
+		out, errs, code := run(t, "", "fit", "--vocab", vocab, "--window", "100000", "--format", "json", "../../testdata/golden/corpus/en-gpl3-start.txt")
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, errs)
+		}
+		var r struct {
+			Documents []struct {
+				InputTokens float64 `json:"input_tokens"`
+			} `json:"documents"`
+		}
+		if err := json.Unmarshal([]byte(out), &r); err != nil || len(r.Documents) != 1 {
+			t.Fatalf("%v: %s", err, out)
+		}
+		return r.Documents[0].InputTokens, errs
+	}
+	a, _ := input(plain)
+	c, note := input(withT)
+	if c != a+1 || !strings.Contains(note, "adds 1 token(s) to every request") {
+		t.Fatalf("input tokens %v without the template, %v with; stderr %q", a, c, note)
+	}
+}
