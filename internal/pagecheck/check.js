@@ -1,5 +1,5 @@
-// check-html.js runs inside a rendered morsel page (scripts/check-html.sh
-// adds it at the end of the body) and lists, in a pre element with the id check-html,
+// check.js runs inside a rendered morsel page (package pagecheck adds it
+// at the end of the body) and lists, in a pre element with the id check-html,
 // every place where text does not stay in its box: an element whose
 // content is wider than the element (unless the element scrolls on
 // purpose), a figure, name or piece of code that wraps onto a second
