@@ -12,6 +12,12 @@ import (
 // module version that the go command recorded, if any.
 var Version string
 
+// Commit is the commit, set at link time with
+// -ldflags "-X morsel/internal/buildinfo.Commit=$(git rev-parse --short=12 HEAD)"
+// where the go command does not stamp it (-buildvcs=false); empty means
+// the one the go command recorded, if any.
+var Commit string
+
 // Info is what a build records about itself.
 type Info struct {
 	Version  string // "v1.2.3", or "devel" for a build from a working tree
@@ -25,9 +31,13 @@ type Info struct {
 func Read() Info {
 	bi, ok := debug.ReadBuildInfo()
 	if !ok {
-		return Info{Version: orDevel(Version, ""), Commit: "unknown"}
+		return Info{Version: orDevel(Version, ""), Commit: orUnknown(Commit)}
 	}
-	return From(bi, Version)
+	in := From(bi, Version)
+	if Commit != "" {
+		in.Commit = Commit
+	}
+	return in
 }
 
 // From returns the Info that bi records, with version (if not empty) in
@@ -61,6 +71,13 @@ func From(bi *debug.BuildInfo, version string) Info {
 		in.Platform = osName + "/" + arch
 	}
 	return in
+}
+
+func orUnknown(s string) string {
+	if s == "" {
+		return "unknown"
+	}
+	return s
 }
 
 func orDevel(set, module string) string {

@@ -36,7 +36,7 @@
       problems.push("overflows its box by " + (el.scrollWidth - el.clientWidth) + "px: " + where(el));
     }
     // Figures, names and code must read on one line; prose may wrap.
-    if (el.matches(".num, .v, .src, code, dd, td.cost, .nowrap") && el.children.length === 0 && lines(el) > 1) {
+    if (el.matches("td.num, .v, .src, code, dd, .nowrap") && el.children.length === 0 && lines(el) > 1) {
       problems.push("wraps onto " + lines(el) + " lines: " + where(el));
     }
   }
@@ -62,7 +62,7 @@
       rects.push({ r: r, t: texts[k].textContent });
     }
   }
-  var heads = document.querySelectorAll("h1, h2, h3, h4, .ctitle");
+  var heads = document.querySelectorAll("h1, h2, h3, h4, caption, svg .ctitle");
   for (var h = 1; h < heads.length; h++) {
     var a = heads[h - 1].textContent.trim(), b = heads[h].textContent.trim();
     if (a !== "" && a === b) problems.push("heading repeated: \"" + b + "\"");

@@ -30,43 +30,38 @@ const (
 )
 
 // Widths returns the width of each column when the table is fitted to
-// width columns (0: no limit). Columns that may be cut give up columns,
-// the widest first, down to the larger of their header and minCut; a
+// width columns (0: no limit). Columns give up room, the widest first:
+// a column that may be cut down to minCut (or less, if its cells are
+// narrower), and every column down to its widest cell, its header then
+// wrapping onto more lines, but never below the header's longest word. A
 // table that still does not fit keeps those widths and runs past width.
 func (t *Table) Widths(width int) []int {
 	n := len(t.Header)
 	for _, r := range t.Rows {
-		if len(r) > n {
-			n = len(r)
-		}
+		n = max(n, len(r))
 	}
 	nat := make([]int, n)
+	cells := make([]int, n)
 	floor := make([]int, n)
-	for i, h := range t.Header {
-		nat[i] = Width(h)
-	}
 	for _, r := range t.Rows {
 		for i, c := range r {
-			if w := Width(c); w > nat[i] {
-				nat[i] = w
-			}
+			cells[i] = max(cells[i], Width(c))
 		}
 	}
-	total := indent
-	for i, w := range nat {
-		total += w
-		if i > 0 {
-			total += gap
+	total := indent + gap*(n-1)
+	for i := range nat {
+		word := 0
+		if i < len(t.Header) {
+			nat[i] = Width(t.Header[i])
+			for _, w := range strings.Fields(t.Header[i]) {
+				word = max(word, Width(w))
+			}
 		}
-		floor[i] = w
+		nat[i] = max(nat[i], cells[i])
+		total += nat[i]
+		floor[i] = max(cells[i], word)
 		if t.cuttable(i) {
-			f := minCut
-			if i < len(t.Header) && Width(t.Header[i]) > f {
-				f = Width(t.Header[i])
-			}
-			if f < w {
-				floor[i] = f
-			}
+			floor[i] = max(min(cells[i], minCut), word)
 		}
 	}
 	if width <= 0 {
@@ -114,7 +109,30 @@ func (t *Table) Write(w io.Writer, width int) error {
 		bw.WriteString(strings.TrimRight(b.String(), " "))
 		bw.WriteByte('\n')
 	}
-	line(t.Header)
+	// A header wider than its column wraps at spaces, bottom-aligned so
+	// that its last line sits on the rule.
+	heads := make([][]string, len(widths))
+	rows := 1
+	for i := range widths {
+		h := ""
+		if i < len(t.Header) {
+			h = t.Header[i]
+		}
+		heads[i] = []string{h}
+		if Width(h) > widths[i] {
+			heads[i] = Wrap(h, widths[i])
+		}
+		rows = max(rows, len(heads[i]))
+	}
+	for k := 0; k < rows; k++ {
+		cells := make([]string, len(widths))
+		for i, h := range heads {
+			if j := k - (rows - len(h)); j >= 0 {
+				cells[i] = h[j]
+			}
+		}
+		line(cells)
+	}
 	rule := indent
 	for i, wd := range widths {
 		rule += wd
@@ -157,4 +175,17 @@ func Wrap(text string, width int) []string {
 		lines = append(lines, cur.String())
 	}
 	return lines
+}
+
+// Width returns the table's width in columns when fitted to width (0: no
+// limit).
+func (t *Table) Width(width int) int {
+	total := indent
+	for i, w := range t.Widths(width) {
+		total += w
+		if i > 0 {
+			total += gap
+		}
+	}
+	return total
 }

@@ -85,3 +85,23 @@ func TestWrap(t *testing.T) {
 		t.Errorf("Wrap(width 0) = %q", got)
 	}
 }
+
+func TestTableHeaderWraps(t *testing.T) {
+	tb := &Table{Header: []string{"term", "split after a space", "occurrences"}, Rows: [][]string{{"QX-7731-Rb", "␣Q X - 77 31 - R b", "71"}}, Right: []bool{false, false, true}}
+	var b strings.Builder
+	// The narrowest it can be: the term whole (10, under minCut), the
+	// split at the longest word of its header ("after", 5) or minCut.
+	tb.Write(&b, 38)
+	lines := strings.Split(b.String(), "\n")
+	for _, l := range lines {
+		if Width(l) > 38 {
+			t.Errorf("line %q is over 38 columns:\n%s", l, b.String())
+		}
+	}
+	if !strings.Contains(b.String(), "QX-7731-Rb") || !strings.Contains(b.String(), "71") {
+		t.Errorf("cells lost:\n%s", b.String())
+	}
+	if len(lines) < 4 || !strings.Contains(lines[0], "split") {
+		t.Errorf("the header did not wrap onto two lines:\n%s", b.String())
+	}
+}
