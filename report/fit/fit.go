@@ -129,7 +129,7 @@ func Write(w io.Writer, f render.Format, r *Report) error {
 	if f == render.JSON {
 		return render.WriteJSON(w, r)
 	}
-	g := &render.Grid{Title: fmt.Sprintf("Fit in a %s-token window (frame %s, %s tokens with overhead)", render.Num(r.Window), r.Frame, render.Num(r.FrameTok)),
+	g := &render.Grid{Sources: true, Title: fmt.Sprintf("Fit in a %s-token window (frame %s, %s tokens with overhead)", render.Num(r.Window), r.Frame, render.Num(r.FrameTok)),
 		Header: []string{"document", "tokens", "input", "reserve", "margin", "verdict"}, Right: []int{1, 2, 3, 4}}
 	if f == render.CSV {
 		g.Header = []string{"source", "record", "tokens", "input_tokens", "reserve", "window", "fits", "margin"}

@@ -43,7 +43,7 @@ func WriteHTML(w io.Writer, r *Report, rows int) error {
 			Intro:  "The documents that fit with the least room to spare: a longer frame or a larger reserved answer would tip these over first.",
 			Charts: []template.HTML{tightestChart(r).SVG()}})
 	}
-	g := &render.Grid{Title: fmt.Sprintf("Every document against the %s-token window", render.Num(r.Window)),
+	g := &render.Grid{Sources: true, Title: fmt.Sprintf("Every document against the %s-token window", render.Num(r.Window)),
 		Header: []string{"document", "tokens", "input", "reserve", "margin", "verdict"}, Right: []int{1, 2, 3, 4}}
 	for i, d := range r.Documents {
 		if rows > 0 && i == rows {

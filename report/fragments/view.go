@@ -108,7 +108,7 @@ func scriptGrid(r *Report) *render.Grid {
 func docFertilityGrid(r *Report, rows int) *render.Grid {
 	docs := append([]DocFertility(nil), r.Fertility.Documents...)
 	sort.SliceStable(docs, func(i, j int) bool { return docs[i].Fertility > docs[j].Fertility })
-	g := &render.Grid{Title: "Documents by tokens per word", Header: []string{"document", "words", "tokens", "tokens/word", "one-token words"}, Right: []int{1, 2, 3, 4}}
+	g := &render.Grid{Sources: true, Title: "Documents by tokens per word", Header: []string{"document", "words", "tokens", "tokens/word", "one-token words"}, Right: []int{1, 2, 3, 4}}
 	for i, d := range docs {
 		if rows > 0 && i == rows {
 			g.Notes = append(g.Notes, fmt.Sprintf("... and %s more documents (--doc-rows 0 lists all; --format json gives every one)", render.Num(len(docs)-rows)))

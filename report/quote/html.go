@@ -162,7 +162,7 @@ func quoteTargetGrid(q *Report) *render.Grid {
 }
 
 func quoteDocGrid(q *Report, rows int) *render.Grid {
-	g := &render.Grid{Title: fmt.Sprintf("Estimate per document (%s)", render.Num(len(q.Documents))), Header: []string{"document"}}
+	g := &render.Grid{Sources: true, Title: fmt.Sprintf("Estimate per document (%s)", render.Num(len(q.Documents))), Header: []string{"document"}}
 	for _, t := range q.Targets {
 		g.Right = append(g.Right, len(g.Header), len(g.Header)+1)
 		g.Header = append(g.Header, t.Name+" tokens in + out", t.Name+" estimate")

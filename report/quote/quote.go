@@ -241,7 +241,7 @@ func Write(w io.Writer, f render.Format, q *Report) error {
 		}
 	}
 
-	docs := &render.Grid{Title: fmt.Sprintf("Per document (%s)", render.Num(len(q.Documents))), Header: []string{"document"}}
+	docs := &render.Grid{Sources: true, Title: fmt.Sprintf("Per document (%s)", render.Num(len(q.Documents))), Header: []string{"document"}}
 	for _, t := range q.Targets {
 		n := len(docs.Header)
 		docs.Header = append(docs.Header, t.Name+" in", "out", "req", "cost")

@@ -669,7 +669,7 @@ func Write(w io.Writer, f render.Format, r *Report) error {
 	if f == render.JSON {
 		return render.WriteJSON(w, r)
 	}
-	g := &render.Grid{Title: fmt.Sprintf("Chunk plan: budget %s tokens a request (frame %s, overlap %s)", render.Num(r.Budget), r.Frame, render.Num(r.Overlap)),
+	g := &render.Grid{Sources: true, Title: fmt.Sprintf("Chunk plan: budget %s tokens a request (frame %s, overlap %s)", render.Num(r.Budget), r.Frame, render.Num(r.Overlap)),
 		Header: []string{"document", "bytes", "tokens", "chunks", "largest", "smallest"}, Right: []int{1, 2, 3, 4, 5}}
 	if f == render.CSV {
 		g.Header = []string{"source", "record", "bytes", "tokens", "chunks", "largest", "smallest"}

@@ -7,9 +7,7 @@ import (
 	"io"
 	"strings"
 
-	"github.com/olekukonko/tablewriter"
-	"github.com/olekukonko/tablewriter/renderer"
-	"github.com/olekukonko/tablewriter/tw"
+	"morsel/internal/screen"
 )
 
 // Format is an output format.
@@ -43,67 +41,77 @@ type Grid struct {
 	Header []string
 	Rows   [][]string
 	Right  []int
+	Keep   []int    // left-aligned columns that the table view never cuts (bars)
 	Notes  []string // lines printed under the table view
+	// Sources says that the first column names documents, which the
+	// table, Markdown and HTML views show relative to the view's Base.
+	Sources bool
+	// Narrow is the same table in another shape, which the table view
+	// shows instead when this one does not fit the view's width.
+	Narrow *Grid
 }
 
 // AddRow appends a row of cells.
 func (g *Grid) AddRow(cells ...string) { g.Rows = append(g.Rows, cells) }
 
 // WriteTable renders the grid for a terminal: a title line, a header rule,
-// then the rows, with number columns aligned right.
+// then the rows, with number columns aligned right, fitted to the width of
+// the View that w carries (cells cut in the middle where they must be).
 func (g *Grid) WriteTable(w io.Writer) error {
+	v := ViewOf(w)
+	t := g.screenTable(v)
+	if g.Narrow != nil && v.Width > 0 && t.Width(0) > v.Width {
+		return g.Narrow.WriteTable(w)
+	}
 	if g.Title != "" {
-		if _, err := fmt.Fprintf(w, "%s\n", g.Title); err != nil {
-			return err
+		for _, line := range screen.Wrap(g.Title, v.Width) {
+			if _, err := fmt.Fprintf(w, "%s\n", line); err != nil {
+				return err
+			}
 		}
 	}
-	align := make([]tw.Align, len(g.Header))
-	for i := range align {
-		align[i] = tw.AlignLeft
-	}
-	for _, c := range g.Right {
-		if c < len(align) {
-			align[c] = tw.AlignRight
-		}
-	}
-	t := tablewriter.NewTable(w,
-		tablewriter.WithRenderer(renderer.NewBlueprint(tw.Rendition{
-			Borders: tw.BorderNone,
-			Symbols: tw.NewSymbols(tw.StyleLight),
-			Settings: tw.Settings{
-				Separators: tw.Separators{BetweenColumns: tw.Off, ShowHeader: tw.On},
-				Lines:      tw.Lines{ShowHeaderLine: tw.On},
-			},
-		})),
-		tablewriter.WithHeaderAutoFormat(tw.Off),
-		tablewriter.WithTrimSpace(tw.Off),
-		tablewriter.WithHeaderAlignmentConfig(tw.CellAlignment{PerColumn: align}),
-		tablewriter.WithRowAlignmentConfig(tw.CellAlignment{PerColumn: align}),
-		tablewriter.WithRowAutoWrap(tw.WrapNone),
-	)
-	t.Header(toAny(g.Header)...)
-	for _, r := range g.Rows {
-		if err := t.Append(toAny(r)...); err != nil {
-			return err
-		}
-	}
-	if err := t.Render(); err != nil {
+	if err := t.Write(w, v.Width); err != nil {
 		return err
 	}
 	for _, n := range g.Notes {
-		if _, err := fmt.Fprintln(w, n); err != nil {
-			return err
+		for _, line := range screen.Wrap(n, v.Width) {
+			if _, err := fmt.Fprintln(w, line); err != nil {
+				return err
+			}
 		}
 	}
 	return nil
 }
 
-func toAny(s []string) []any {
-	out := make([]any, len(s))
-	for i, v := range s {
-		out[i] = v
+// screenTable returns the grid's cells as the table view lays them out.
+func (g *Grid) screenTable(v View) *screen.Table {
+	t := &screen.Table{Header: g.Header, Rows: g.shownRows(v), Right: columnSet(g.Right, len(g.Header)), Keep: columnSet(g.Keep, len(g.Header))}
+	return t
+}
+
+// shownRows returns the rows with sources relative to the view's Base.
+func (g *Grid) shownRows(v View) [][]string {
+	if !g.Sources || v.Base == "" {
+		return g.Rows
+	}
+	out := make([][]string, len(g.Rows))
+	for i, r := range g.Rows {
+		if len(r) > 0 {
+			r = append([]string{screen.Rel(r[0], v.Base)}, r[1:]...)
+		}
+		out[i] = r
 	}
 	return out
+}
+
+func columnSet(cols []int, n int) []bool {
+	set := make([]bool, n)
+	for _, c := range cols {
+		if c >= 0 && c < n {
+			set[c] = true
+		}
+	}
+	return set
 }
 
 // WriteCSV writes the header and rows as RFC 4180 CSV.
@@ -141,7 +149,7 @@ func (g *Grid) WriteMarkdown(w io.Writer) error {
 		}
 	}
 	b.WriteString("\n")
-	for _, r := range g.Rows {
+	for _, r := range g.shownRows(ViewOf(w)) {
 		b.WriteString("|")
 		for _, c := range r {
 			fmt.Fprintf(&b, " %s |", mdCell(c))

@@ -10,7 +10,7 @@ import (
 
 // SkipGrid lists skipped inputs for the table, CSV and Markdown views.
 func SkipGrid(skips []report.Skipped) *Grid {
-	g := &Grid{Title: fmt.Sprintf("Not counted (%d)", len(skips)), Header: []string{"input", "reason", "detail"}}
+	g := &Grid{Sources: true, Title: fmt.Sprintf("Not counted (%d)", len(skips)), Header: []string{"input", "reason", "detail"}}
 	for _, s := range skips {
 		why := s.Reason
 		if s.Failed {

@@ -262,7 +262,7 @@ func weightRow(d Weight) []string {
 }
 
 func surveyDocGrid(s *Report, rows int, f render.Format) *render.Grid {
-	g := &render.Grid{Title: fmt.Sprintf("Documents (%s) under %s", render.Num(len(s.Documents)), s.Vocabulary.Name), Header: weightHeader, Right: []int{2, 3, 4, 5, 6, 7}}
+	g := &render.Grid{Sources: true, Title: fmt.Sprintf("Documents (%s) under %s", render.Num(len(s.Documents)), s.Vocabulary.Name), Header: weightHeader, Right: []int{2, 3, 4, 5, 6, 7}}
 	if f == render.CSV {
 		g.Header = []string{"source", "record", "format", "bytes", "characters", "words", "tokens", "bytes_per_token", "tokens_per_word", "special_strings"}
 		for _, d := range s.Documents {
@@ -312,7 +312,7 @@ func spreadGrid(s *Report) *render.Grid {
 	sp := s.Spread
 	g := &render.Grid{Title: fmt.Sprintf("Tokens per document: min %s, median %s, p90 %s, p99 %s, max %s",
 		render.Num(sp.Min), render.Num(sp.Median), render.Num(sp.P90), render.Num(sp.P99), render.Num(sp.Max)),
-		Header: []string{"tokens", "documents", ""}, Right: []int{1}}
+		Header: []string{"tokens", "documents", ""}, Right: []int{1}, Keep: []int{2}}
 	most := 0
 	for _, b := range s.Histogram {
 		if b.Documents > most {
@@ -343,7 +343,7 @@ func formatGrid(s *Report) *render.Grid {
 }
 
 func largestGrid(s *Report) *render.Grid {
-	g := &render.Grid{Title: "Largest documents", Header: weightHeader, Right: []int{2, 3, 4, 5, 6, 7}}
+	g := &render.Grid{Sources: true, Title: "Largest documents", Header: weightHeader, Right: []int{2, 3, 4, 5, 6, 7}}
 	for _, d := range s.Largest {
 		g.AddRow(weightRow(d)...)
 	}
