@@ -73,7 +73,7 @@ func exitStatus(err error) int {
 		}
 		return exitInput
 	case errors.As(err, &ue):
-		fmt.Fprintf(os.Stderr, "morsel: %v\n(see morsel %s --help)\n", ue.err, ue.cmd)
+		fmt.Fprintf(os.Stderr, "morsel: %v\n(see %s --help)\n", ue.err, helpPath(ue.cmd))
 		return exitUsage
 	}
 	if strings.HasPrefix(err.Error(), "unknown command") {
@@ -82,6 +82,14 @@ func exitStatus(err error) int {
 	}
 	fmt.Fprintf(os.Stderr, "morsel: %v\n", err)
 	return exitInput
+}
+
+// helpPath returns the command line whose --help explains cmd.
+func helpPath(cmd string) string {
+	if cmd == "" || cmd == "morsel" {
+		return "morsel"
+	}
+	return "morsel " + cmd
 }
 
 // usageError is a mistake in the command line: exit status 2.

@@ -6,13 +6,15 @@ import (
 	"os"
 	"runtime"
 	"runtime/pprof"
+	"time"
 
-	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/cobra"
 	"golang.org/x/term"
 
 	"morsel/bpe"
 	"morsel/corpus"
+	"morsel/internal/buildinfo"
+	"morsel/internal/screen"
 	"morsel/report/render"
 	"morsel/report/walk"
 )
@@ -23,6 +25,10 @@ type shared struct {
 	format        string
 	workers       int
 	quiet         bool
+	wide          bool // tables as wide as their cells, even on a terminal
+	width         int  // --width: the columns tables are fitted to; 0 means the terminal's
+	verbose       bool // list every input not counted
+	once          bool // count each text once
 	specials      string
 	splitPattern  string
 
@@ -51,7 +57,9 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
   morsel survey exports/ --vocab models/mine/ --format json > weights.json`,
 		SilenceUsage:  true,
 		SilenceErrors: true,
+		Version:       buildinfo.Read().String(),
 	}
+	root.SetVersionTemplate("{{.Version}}\n")
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return &usageError{cmd: c.Name(), err: err}
 	})
@@ -61,6 +69,12 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
 	pf.StringVar(&sh.format, "format", "table", "output: table, json, csv or md; html too for survey, fit, quote and fragments")
 	pf.IntVar(&sh.workers, "workers", runtime.NumCPU(), "documents encoded at once")
 	pf.BoolVarP(&sh.quiet, "quiet", "q", false, "no progress or notes on standard error")
+	pf.BoolVar(&sh.wide, "wide", false, "tables as wide as their cells, even on a terminal (a pipe always gets them so)")
+	pf.IntVar(&sh.width, "width", 0, "fit tables to this many columns (default: the terminal's width; none when piped)")
+	pf.BoolVarP(&sh.verbose, "verbose", "v", false, "list every input that was not counted, not only the failures")
+	pf.BoolVar(&sh.once, "once", false, "count documents with the same text once: later copies are left out as repeats")
+	root.RegisterFlagCompletionFunc("format", fixed(formatNames...))
+	root.RegisterFlagCompletionFunc("specials", fixed(specialNames...))
 	pf.StringVar(&sh.specials, "specials", "text", "special-token strings such as <|endoftext|> in a text: text (ordinary text) or honor (their ids)")
 	pf.StringVar(&sh.splitPattern, "split-pattern", "", "pre-tokenization regular expression instead of the GPT-2 rule (look-ahead allowed)")
 	var cpuprofile string
@@ -68,6 +82,10 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
 	pf.MarkHidden("cpuprofile")
 	var profFile *os.File
 	root.PersistentPreRunE = func(c *cobra.Command, args []string) error {
+		if err := checkFloors(c); err != nil {
+			return err
+		}
+		sh.stdout = render.WithView(sh.stdout, sh.view(args))
 		if cpuprofile == "" {
 			return nil
 		}
@@ -100,6 +118,31 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
 		}
 	}
 	return root
+}
+
+// view returns how the text views are laid out: fitted to the terminal
+// that standard output is (or to --width), unless --wide, with sources
+// shown relative to the folder the arguments name.
+func (sh *shared) view(args []string) render.View {
+	v := render.View{Base: screen.Base(args), Verbose: sh.verbose}
+	switch {
+	case sh.wide:
+	case sh.width > 0:
+		v.Width = sh.width
+	default:
+		v.Width = terminalWidth(sh.stdout)
+	}
+	return v
+}
+
+// terminalWidth returns the width of the terminal that w is, or 0.
+func terminalWidth(w io.Writer) int {
+	if f, ok := w.(*os.File); ok && term.IsTerminal(int(f.Fd())) {
+		if n, _, err := term.GetSize(int(f.Fd())); err == nil {
+			return n
+		}
+	}
+	return 0
 }
 
 // extraCommands lets each command file register itself.
@@ -173,14 +216,16 @@ func addCorpusFlags(c *cobra.Command, cf *corpusFlags) {
 	f.StringSliceVar(&cf.exclude, "exclude", nil, "leave out files and folders matching these globs")
 	f.BoolVar(&cf.hidden, "hidden", false, "walk hidden files and folders (such as .git) too")
 	f.StringVar(&cf.as, "as", "", "read every input as this format: text, markdown, code, html, jsonl, json, csv, tsv")
+	c.RegisterFlagCompletionFunc("as", fixed(asNames...))
 }
 
 func (cf *corpusFlags) options() corpus.Options {
 	return corpus.Options{Field: cf.field, Column: cf.column, Include: cf.include, Exclude: cf.exclude, Hidden: cf.hidden, Format: cf.as}
 }
 
-// progress returns a progress bar on standard error when it is a terminal
-// and --quiet is not given, else nil.
+// progress returns a progress line on standard error when it is a
+// terminal and --quiet is not given, else nil. The line is sized to the
+// terminal at every redraw and erased at the end.
 func (sh *shared) progress() walk.Progress {
 	if sh.quiet {
 		return nil
@@ -189,47 +234,12 @@ func (sh *shared) progress() walk.Progress {
 	if !ok || !term.IsTerminal(int(f.Fd())) {
 		return nil
 	}
-	return &bar{w: f}
-}
-
-// bar shows files and bytes read, tokens counted, the rate and the time
-// left.
-type bar struct {
-	w      io.Writer
-	pb     *progressbar.ProgressBar
-	files  int
-	done   int
-	tokens int64
-}
-
-func (b *bar) Plan(files int, bytes int64) {
-	b.files = files
-	b.pb = progressbar.NewOptions64(bytes,
-		progressbar.OptionSetWriter(b.w),
-		progressbar.OptionShowBytes(true),
-		progressbar.OptionShowCount(),
-		progressbar.OptionSetWidth(28),
-		progressbar.OptionThrottle(100_000_000),
-		progressbar.OptionShowElapsedTimeOnFinish(),
-		progressbar.OptionSetPredictTime(true),
-		progressbar.OptionClearOnFinish(),
-		progressbar.OptionSetTheme(progressbar.Theme{Saucer: "=", SaucerHead: ">", SaucerPadding: " ", BarStart: "[", BarEnd: "]"}),
-	)
-	b.describe()
-}
-
-func (b *bar) describe() {
-	b.pb.Describe(fmt.Sprintf("weighing %d/%d files, %s tokens", b.done, b.files, render.Num(b.tokens)))
-}
-
-func (b *bar) FileDone(n int64) {
-	b.done++
-	if n > 0 {
-		b.pb.Add64(n)
+	columns := func() int {
+		w, _, err := term.GetSize(int(f.Fd()))
+		if err != nil {
+			return 0
+		}
+		return w
 	}
-	b.describe()
+	return &screen.Meter{W: f, Columns: columns, Every: 100 * time.Millisecond}
 }
-
-func (b *bar) Tokens(n int) { b.tokens += int64(n) }
-
-func (b *bar) Finish() { b.pb.Finish() }

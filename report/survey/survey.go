@@ -10,6 +10,7 @@ import (
 
 	"morsel/bpe"
 	"morsel/corpus"
+	"morsel/internal/screen"
 	"morsel/report"
 	"morsel/report/measure"
 	"morsel/report/render"
@@ -248,7 +249,9 @@ func Write(w io.Writer, f render.Format, s *Report, rows int) error {
 	if len(s.Warnings) > 0 {
 		fmt.Fprintln(w)
 		for _, warn := range s.Warnings {
-			fmt.Fprintf(w, "note: %s\n", warn)
+			for _, line := range screen.Wrap("note: "+warn, render.ViewOf(w).Width) {
+				fmt.Fprintln(w, line)
+			}
 		}
 	}
 	return nil

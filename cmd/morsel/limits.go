@@ -1,0 +1,45 @@
+package main
+
+import (
+	"strconv"
+
+	"github.com/spf13/cobra"
+)
+
+// flagFloor is the smallest value each numeric flag takes, and what the
+// smallest value means where that needs saying. A flag a command does not
+// have is not checked.
+var flagFloor = []struct {
+	name string
+	min  int
+	hint string
+}{
+	{"workers", 1, "documents encoded at once"},
+	{"width", 0, "0 fits tables to the terminal"},
+	{"rows", 0, "0 lists them all"},
+	{"doc-rows", 0, "0 lists them all"},
+	{"top", 0, "0 lists them all"},
+	{"window", 1, "a window is a positive number of tokens"},
+	{"budget", 1, "a budget is a positive number of tokens"},
+	{"reserve", 0, "0 reserves no answer"},
+	{"overhead", 0, "0 adds nothing"},
+	{"overlap", 0, "0 overlaps nothing"},
+	{"answer-tokens", 0, "0 expects no answer"},
+}
+
+// checkFloors returns a usage error for the first numeric flag given below
+// its floor.
+func checkFloors(c *cobra.Command) error {
+	for _, fl := range flagFloor {
+		f := c.Flags().Lookup(fl.name)
+		if f == nil || !f.Changed {
+			continue
+		}
+		n, err := strconv.Atoi(f.Value.String())
+		if err != nil || n >= fl.min {
+			continue
+		}
+		return usagef(c.Name(), "--%s %d: give %d or more (%s)", fl.name, n, fl.min, fl.hint)
+	}
+	return nil
+}
