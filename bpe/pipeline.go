@@ -163,7 +163,8 @@ func (s *state) pretokenize(t []byte, al []int32, first bool) {
 
 // cutTable says where a text with no pre-tokenizer may be cut without
 // changing its ids: between two ASCII characters that are tokens of their
-// own and that no token holds side by side (pair false), and, with
+// own (or need none: see cutsFor) and that no token holds side by side
+// (pair false), and, with
 // beforeRepl, before a replacement character that follows another
 // character, when every token holding the replacement holds it only in a
 // leading run. A merge across such a cut would make a token holding the
@@ -175,6 +176,13 @@ type cutTable struct {
 	pair       [utf8.RuneSelf][utf8.RuneSelf]bool
 	beforeRepl bool
 }
+
+var allBytes = func() (b [256]byte) {
+	for i := range b {
+		b[i] = byte(i)
+	}
+	return b
+}()
 
 // cutsFor returns the cut table of a vocabulary, or nil when it allows no
 // cuts.
@@ -196,6 +204,14 @@ func cutsFor(v *Vocab, p *pipeline) *cutTable {
 		return nil
 	}
 	c := &cutTable{beforeRepl: p.metaspace != ""}
+	// With no unk token to fuse (a character with no token is dropped or
+	// spelled in byte tokens), a character need not be a token to be cut
+	// beside.
+	if m.unk < 0 || (m.fallback && m.fallbackAll(allBytes[:])) {
+		for i := range c.known {
+			c.known[i] = true
+		}
+	}
 	r := []byte(p.metaspace)
 	if c.beforeRepl {
 		if _, ok := v.ID(r); !ok {

@@ -4,7 +4,9 @@
 // tokens, and its merges grown to -merges by adding, for existing tokens,
 // the other ways to split them in two. The result is valid (every merge
 // names tokens of the vocabulary and makes one) but its later merges are
-// not learned from any text. It is never committed.
+// not learned from any text. It is never committed. With -digit-groups
+// -tokens 0 -merges 0 it writes qwen3 with the digit-groups split pattern
+// instead (the survey benchmark's third bundle).
 //
 //	go run ./scripts/bigbundle -from testdata/vocab/qwen3/tokenizer.json.gz -o /tmp/big/tokenizer.json
 package main
@@ -27,14 +29,15 @@ func main() {
 	out := flag.String("o", "/tmp/morsel-big-bundle/tokenizer.json", "where to write the bundle")
 	tokens := flag.Int("tokens", 250000, "tokens in the vocabulary")
 	merges := flag.Int("merges", 500000, "merges")
+	groups := flag.Bool("digit-groups", false, "replace the split pattern by the digit-groups one (numbers cut into groups of up to three digits)")
 	flag.Parse()
-	if err := run(*from, *out, *tokens, *merges); err != nil {
+	if err := run(*from, *out, *tokens, *merges, *groups); err != nil {
 		fmt.Fprintln(os.Stderr, "bigbundle:", err)
 		os.Exit(1)
 	}
 }
 
-func run(from, out string, wantTokens, wantMerges int) error {
+func run(from, out string, wantTokens, wantMerges int, groups bool) error {
 	data, err := os.ReadFile(from)
 	if err != nil {
 		return err
@@ -118,6 +121,13 @@ func run(from, out string, wantTokens, wantMerges int) error {
 				break
 			}
 		}
+	}
+	if groups {
+		pre := bytes.Replace(b["pre_tokenizer"], []byte(`\\p{N}|`), []byte(`\\p{N}{1,3}|`), 1)
+		if bytes.Equal(pre, b["pre_tokenizer"]) {
+			return fmt.Errorf("%s: no single-digit split pattern to replace", from)
+		}
+		b["pre_tokenizer"] = pre
 	}
 	var m map[string]json.RawMessage
 	json.Unmarshal(b["model"], &m)
