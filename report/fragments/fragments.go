@@ -99,6 +99,7 @@ type shard struct {
 	doc     int32 // documents this shard has scanned
 	ids     []uint32
 	ends    []int
+	spelled []byte // the text the tokens spell, when a bundle changed it
 	pending []pendingTerm
 	// flush's scratch space
 	part  []uint8 // the partition of each batch word
@@ -307,7 +308,18 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	}
 	sh.ends = ends
 	if pos != len(text) {
-		return nil, fmt.Errorf("the tokens spell %d bytes of a %d-byte text", pos, len(text))
+		// A tokenizer bundle's normalizer or pre-tokenizer changed the text
+		// (a marker put before it, a normalization form): the words are
+		// read from the text the tokens spell, which is what they split.
+		sp := sh.spelled[:0]
+		for _, id := range ids {
+			t, _ := f.enc.Vocab().Token(int(id))
+			sp = append(sp, t...)
+		}
+		if len(sp) != pos {
+			return nil, fmt.Errorf("the tokens spell %d bytes of a %d-byte text", pos, len(text))
+		}
+		sh.spelled, text = sp, sp
 	}
 	if f.terms != nil {
 		dw.terms = make([]termTally, len(f.terms))
