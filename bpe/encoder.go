@@ -125,6 +125,11 @@ func encodeTo[T int | uint32](e *Encoder, dst []T, text []byte) ([]T, Stats) {
 	defer e.put(s)
 	var st Stats
 	start := len(dst)
+	if e.v.spm != nil {
+		dst = spmAppend(e, s, dst, text, &st)
+		st.Tokens = len(dst) - start
+		return dst, st
+	}
 	if e.v.pipe != nil {
 		switch d := any(dst).(type) {
 		case []int:
@@ -168,6 +173,10 @@ func (e *Encoder) CountStats(text []byte) Stats {
 	s := e.get()
 	defer e.put(s)
 	var st Stats
+	if e.v.spm != nil {
+		e.spmCount(s, text, &st)
+		return st
+	}
 	if e.v.pipe != nil {
 		s.mode, s.n = sinkCount, 0
 		e.runBundle(s, text, &st, func(uint32, int, int) { s.n++ })

@@ -39,6 +39,10 @@ type state struct {
 	parts      [][]part
 	ident      []int32
 	ms         []int
+	// for SentencePiece models (spm_encode.go)
+	spmNorm    []byte
+	spmIDs     []uint32
+	spmCounted []uint32
 	// for long pre-tokens
 	next, prev []int32
 	heap       []uint64

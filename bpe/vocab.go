@@ -26,6 +26,7 @@ type Vocab struct {
 	nMerges  int
 	specials []Special
 	window   int
+	spm      *spmModel // a SentencePiece model (spm.go); nil for a pair
 
 	// slow is !plainModel(), kept for the hot path: the zero value is
 	// plain byte-level BPE.

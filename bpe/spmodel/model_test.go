@@ -44,7 +44,7 @@ func TestTrainedModels(t *testing.T) {
 		{file: "identity.model", rule: "identity", dummy: true, removeSpace: true, escape: true},
 		{file: "digits.model", rule: "nfkc", bytes: true, digits: true, dummy: true, removeSpace: true, escape: true, hasMap: true},
 		{file: "userdef.model", rule: "nmt_nfkc", bytes: true, dummy: true, removeSpace: true, escape: true, hasMap: true,
-			userDefined: []string{"<sep>", "<cls>", "[MASK]", "##", "▁morsel", "user defined"}},
+			userDefined: []string{"<sep>", "<cls>", "[MASK]", "##", "▁morsel", "user defined", "ﬁ", "ＡＢ"}},
 		{file: "nodummy.model", rule: "nmt_nfkc_cf", bytes: true, removeSpace: true, escape: true, hasMap: true},
 		{file: "keepspace.model", rule: "nfkc_cf", bytes: true, dummy: true, escape: true, hasMap: true},
 		{file: "suffix.model", rule: "nmt_nfkc", bytes: true, suffix: true, digits: true, dummy: true, removeSpace: true, escape: true, hasMap: true},

@@ -3,12 +3,16 @@
 # open text of this machine (Debian package documentation under
 # /usr/share/doc), one model for each setting that changes encoding. It
 # needs Debian's sentencepiece package (spm_train). The models are
-# committed; rerun this only to remake them, then run reference.py.
+# committed; rerun this only to remake them, then run normalize_cases.py
+# and reference.py. derive.py makes two more from identity.model.
 set -euo pipefail
 here=$(cd "$(dirname "$0")" && pwd)
 out="$here/../../testdata/spm"
 mkdir -p "$out"
-work=$(mktemp -d)
+# A fixed folder: the trainer records its input and output paths in the
+# model, so that the same text gives the same bytes.
+work=/tmp/morsel-spm-train
+rm -rf "$work" && mkdir -p "$work"
 trap 'rm -rf "$work"' EXIT
 
 # The training text: every package's copyright file and then its
@@ -33,11 +37,12 @@ train() {
 train nfkc-bytes 8000 --byte_fallback
 train identity 4000 --normalization_rule_name=identity
 train digits 4000 --normalization_rule_name=nfkc --split_digits --byte_fallback
-train userdef 4000 --byte_fallback --user_defined_symbols='<sep>,<cls>,[MASK],##,▁morsel,user defined' \
+train userdef 4000 --byte_fallback --user_defined_symbols='<sep>,<cls>,[MASK],##,▁morsel,user defined,ﬁ,ＡＢ' \
 	--control_symbols='<ctl>'
 train nodummy 4000 --normalization_rule_name=nmt_nfkc_cf --add_dummy_prefix=false --byte_fallback
 train keepspace 4000 --normalization_rule_name=nfkc_cf --remove_extra_whitespaces=false --byte_fallback \
 	--allow_whitespace_only_pieces
 train suffix 4000 --treat_whitespace_as_suffix --byte_fallback --split_digits
+/usr/bin/python3 "$here/derive.py"
 spm_train --version >"$out/VERSION" 2>&1 || true
 dpkg-query -W -f='Debian ${Package} ${Version}\n' sentencepiece python3-sentencepiece >>"$out/VERSION"

@@ -1,0 +1,270 @@
+package bpe
+
+import (
+	"cmp"
+	"fmt"
+	"path/filepath"
+	"slices"
+	"strings"
+	"unicode/utf8"
+
+	"morsel/bpe/charsmap"
+	"morsel/bpe/spmodel"
+)
+
+// spmModel is a SentencePiece BPE model made ready for encoding as the
+// reference encoder does: normalize the whole text, split it into
+// characters (user-defined pieces first, whole), merge the adjacent pair
+// whose result is the piece of highest score (the leftmost on ties) until
+// none is left, split unused pieces back into their parts, and give a
+// character with no piece its bytes' pieces or the unknown id.
+type spmModel struct {
+	m      *spmodel.Model
+	cmap   *charsmap.Map
+	mark   string // the white-space mark: "▁", or " " when white space is not escaped
+	pieces map[string]uint32 // the pieces merging may make or start from: normal, user-defined, unused
+	// reserved are the other pieces (unknown, control, byte), which only
+	// a single character can spell, and which win over pieces of the same
+	// text, as the reference looks them up first.
+	reserved map[string]uint32
+	user     userMatcher
+	unk      uint32
+	unused   bool // the model has unused pieces: encode by the reference's own steps
+	byteID   [256]uint32
+	start    int // the start piece's id, or -1
+
+	// The merge table, over symbol ids: a piece's id, or for a character
+	// that a piece holds but is no piece itself, an id from len(pieces)
+	// up, in chars. Every other character is noSym until it is emitted.
+	ranks    u64table // pairKey(left, right) -> rank<<32 | merged id
+	charSyms map[string]uint32
+	chars    []string // symbol id - len(Pieces) -> its character
+	asciiSym [128]uint32
+	cut      cutRule
+}
+
+// noSym is the symbol of a character no piece holds.
+const noSym = ^uint32(0) - 1
+
+// cutRule says where a normalized text may be cut without changing its
+// encoding: no piece spans such a place, so the two sides merge apart.
+type cutRule int8
+
+const (
+	cutNone        cutRule = iota
+	cutBeforeMarks         // before a mark that follows another character
+	cutAfterMarks          // after a mark that another character follows
+)
+
+// userMatcher finds the longest user-defined piece at the start of a text.
+type userMatcher struct {
+	first [256][]string // by first byte, longest first
+	ids   map[string]uint32
+}
+
+func (u *userMatcher) match(s []byte) (id uint32, n int) {
+	if len(u.ids) == 0 || len(s) == 0 {
+		return 0, 0
+	}
+	for _, w := range u.first[s[0]] {
+		if len(w) <= len(s) && string(s[:len(w)]) == w {
+			return u.ids[w], len(w)
+		}
+	}
+	return 0, 0
+}
+
+// LoadSentencePiece reads a SentencePiece BPE model file into a
+// vocabulary. It fails, naming the file, as spmodel.Parse does.
+func LoadSentencePiece(path string) (*Vocab, error) {
+	m, err := spmodel.Load(path)
+	if err != nil {
+		return nil, err
+	}
+	v := newSentencePieceVocab(m)
+	v.name = strings.TrimSuffix(filepath.Base(path), ".model")
+	return v, nil
+}
+
+// newSentencePieceVocab makes the vocabulary of a parsed model.
+func newSentencePieceVocab(m *spmodel.Model) *Vocab {
+	sp := newSPM(m)
+	v := &Vocab{spm: sp, tokens: make([][]byte, len(m.Pieces))}
+	for id, p := range m.Pieces {
+		v.tokens[id] = sp.raw(id)
+		if p.Type == spmodel.Control || p.Type == spmodel.Unknown {
+			v.specials = append(v.specials, Special{ID: id, Text: p.Text})
+		}
+	}
+	for id := range v.tokens {
+		if m.Pieces[id].Type == spmodel.Normal && utf8.RuneCountInString(m.Pieces[id].Text) > 1 {
+			v.nMerges++
+		}
+	}
+	return v
+}
+
+func newSPM(m *spmodel.Model) *spmModel {
+	sp := &spmModel{
+		m: m, cmap: m.Normalizer.Map, mark: "\u2581",
+		pieces: make(map[string]uint32, len(m.Pieces)), reserved: map[string]uint32{},
+		user: userMatcher{ids: map[string]uint32{}}, unk: uint32(m.UnknownID), start: -1,
+		charSyms: map[string]uint32{},
+	}
+	if !m.Normalizer.EscapeWhitespaces {
+		sp.mark = " "
+	}
+	if id, ok := m.Start(); ok {
+		sp.start = id
+	}
+	for id, p := range m.Pieces {
+		switch p.Type {
+		case spmodel.Normal, spmodel.UserDefined, spmodel.Unused:
+			sp.pieces[p.Text] = uint32(id)
+		default:
+			sp.reserved[p.Text] = uint32(id)
+		}
+		switch p.Type {
+		case spmodel.UserDefined:
+			sp.user.ids[p.Text] = uint32(id)
+			sp.user.first[p.Text[0]] = append(sp.user.first[p.Text[0]], p.Text)
+		case spmodel.Unused:
+			sp.unused = true
+		case spmodel.Byte:
+			b, _ := spmodel.ByteOf(p.Text)
+			sp.byteID[b] = uint32(id)
+		}
+	}
+	for i := range sp.user.first {
+		slices.SortStableFunc(sp.user.first[i], func(a, b string) int { return cmp.Compare(len(b), len(a)) })
+	}
+	sp.buildRanks()
+	sp.cut = sp.cutRule()
+	return sp
+}
+
+// raw returns the bytes a piece stands for in decoded text: the mark as a
+// space, a byte piece as its byte, the unknown piece as its surface and
+// other control pieces as nothing.
+func (sp *spmModel) raw(id int) []byte {
+	p := sp.m.Pieces[id]
+	switch p.Type {
+	case spmodel.Byte:
+		b, _ := spmodel.ByteOf(p.Text)
+		return []byte{b}
+	case spmodel.Control:
+		return []byte{}
+	case spmodel.Unknown:
+		return []byte(sp.m.UnknownSurface)
+	}
+	return []byte(strings.ReplaceAll(p.Text, "\u2581", " "))
+}
+
+// symbol returns the merge symbol of a piece text or a single character,
+// or noSym when no merge can use it. User-defined pieces are frozen: they
+// never merge.
+func (sp *spmModel) symbol(s string) uint32 {
+	if id, ok := sp.pieces[s]; ok {
+		if sp.m.Pieces[id].Type == spmodel.UserDefined {
+			return noSym
+		}
+		return id
+	}
+	if id, ok := sp.charSyms[s]; ok {
+		return id
+	}
+	return noSym
+}
+
+// buildRanks fills the merge table: every way of writing a mergeable piece
+// as two symbols. Ranks follow scores, highest first; equal scores share a
+// rank, so that the leftmost pair goes first among them as in the
+// reference.
+func (sp *spmModel) buildRanks() {
+	ps := sp.m.Pieces
+	var order []uint32
+	for text, id := range sp.pieces {
+		if ps[id].Type != spmodel.UserDefined && utf8.RuneCountInString(text) > 1 {
+			order = append(order, id)
+		}
+	}
+	slices.SortFunc(order, func(a, b uint32) int {
+		return cmp.Or(cmp.Compare(ps[b].Score, ps[a].Score), cmp.Compare(a, b))
+	})
+	// Characters that pieces hold but that are no piece get symbols.
+	next := uint32(len(ps))
+	for _, id := range order {
+		for _, r := range ps[id].Text {
+			c := string(r)
+			if _, ok := sp.pieces[c]; !ok {
+				if _, ok := sp.charSyms[c]; !ok {
+					sp.charSyms[c] = next
+					sp.chars = append(sp.chars, c)
+					next++
+				}
+			}
+		}
+	}
+	for i := range sp.asciiSym {
+		sp.asciiSym[i] = sp.symbol(string(rune(i)))
+	}
+	n := 0
+	for _, id := range order {
+		n += utf8.RuneCountInString(ps[id].Text) - 1
+	}
+	sp.ranks = newU64Table(n)
+	rank := uint32(0)
+	for i, id := range order {
+		if i > 0 && ps[id].Score != ps[order[i-1]].Score {
+			rank++
+		}
+		text := ps[id].Text
+		for k := range text {
+			if k == 0 {
+				continue
+			}
+			l, r := sp.symbol(text[:k]), sp.symbol(text[k:])
+			if l != noSym && r != noSym {
+				sp.ranks.put(pairKey(l, r), uint64(rank)<<32|uint64(id))
+			}
+		}
+	}
+}
+
+// cutRule finds where texts may be cut: before each mark that follows
+// another character when no mergeable piece holds a mark after another
+// character (marks lead pieces), or after each mark that another
+// character follows when no piece holds a mark before another character
+// (marks end pieces).
+func (sp *spmModel) cutRule() cutRule {
+	markInside, markBeforeOther := false, false
+	for text, id := range sp.pieces {
+		_ = id
+		for i := strings.Index(text, sp.mark); i >= 0; {
+			if i > 0 && !strings.HasSuffix(text[:i], sp.mark) {
+				markInside = true
+			}
+			j := i + len(sp.mark)
+			if j < len(text) && !strings.HasPrefix(text[j:], sp.mark) {
+				markBeforeOther = true
+			}
+			k := strings.Index(text[j:], sp.mark)
+			if k < 0 {
+				break
+			}
+			i = j + k
+		}
+	}
+	switch {
+	case !sp.m.TreatWhitespaceAsSuffix && !markInside:
+		return cutBeforeMarks
+	case sp.m.TreatWhitespaceAsSuffix && !markBeforeOther:
+		return cutAfterMarks
+	}
+	return cutNone
+}
+
+// describe is a one-line account of the model for errors and notes.
+func (sp *spmModel) describe() string {
+	return fmt.Sprintf("SentencePiece BPE, %d pieces, normalizer %s", len(sp.m.Pieces), sp.m.Normalizer.Name)
+}
