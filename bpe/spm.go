@@ -21,7 +21,7 @@ import (
 type spmModel struct {
 	m      *spmodel.Model
 	cmap   *charsmap.Map
-	mark   string // the white-space mark: "▁", or " " when white space is not escaped
+	mark   string            // the white-space mark: "▁", or " " when white space is not escaped
 	pieces map[string]uint32 // the pieces merging may make or start from: normal, user-defined, unused
 	// reserved are the other pieces (unknown, control, byte), which only
 	// a single character can spell, and which win over pieces of the same
