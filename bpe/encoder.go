@@ -206,6 +206,10 @@ func (e *Encoder) CountStats(text []byte) Stats {
 // The spans cover text without gaps; BPE never merges across them.
 func (e *Encoder) Split(text []byte, fn func(start, end int, special bool)) {
 	var st Stats
+	if e.v.spm != nil {
+		e.spmSplit(text, &st, fn)
+		return
+	}
 	if e.v.pipe != nil {
 		s := e.get()
 		defer e.put(s)
@@ -321,10 +325,11 @@ const streamChunk = 1 << 20
 // megabyte at a time, and returns the count with the number of bytes read.
 // With the GPT-2 rule it cuts the stream only where a pre-token must end (a
 // non-space character followed by white space), so the count equals that
-// of the whole text; with another split pattern, or special strings that
-// hold white space, it reads the whole text first.
+// of the whole text; with another split pattern, special strings that
+// hold white space, or a SentencePiece model, it reads the whole text
+// first.
 func (e *Encoder) CountReader(r io.Reader) (Stats, int64, error) {
-	if e.re != nil || e.v.pipe != nil || e.specialsHoldSpace() {
+	if e.re != nil || e.v.pipe != nil || e.v.spm != nil || e.specialsHoldSpace() {
 		all, err := io.ReadAll(r)
 		st := e.CountStats(all)
 		if err == nil {

@@ -43,6 +43,7 @@ type state struct {
 	spmNorm    []byte
 	spmIDs     []uint32
 	spmCounted []uint32
+	spmOut     []uint32
 	// for long pre-tokens
 	next, prev []int32
 	heap       []uint64
@@ -185,6 +186,9 @@ func (s *state) piece(p []byte) []uint32 {
 	default:
 		ids = s.mergeLong(p)
 	}
+	if s.v.spm != nil {
+		ids = s.spmFinish(p, ids)
+	}
 	if len(p) <= cacheLongest {
 		if s.short.full() || s.mid.full() || len(s.cache) >= s.max {
 			s.short.reset()
@@ -293,10 +297,11 @@ func (s *state) mergeShort(p []byte) []uint32 {
 // rank, and a min-heap holds the ranks that have a bucket. The lowest rank's
 // bucket is worked through leftmost first, as a heap of single pairs would
 // order it, but a long run of one pair costs a sort instead of a heap
-// operation per pair. No merge can make a pair of its own rank (the merged
-// token differs from both parts); if one makes a pair of a lower rank,
-// which a learned merge list never does, the bucket is put back and the
-// lower rank goes first. Entries made stale by a merge are dropped when
+// operation per pair. A learned merge list never makes a pair of its own
+// rank or a lower one by a merge; ranks shared by several tokens (equal
+// SentencePiece scores) and lists that are not learned can: then the
+// bucket, with the new pair, is put back, and the lowest rank's leftmost
+// pair goes first again. Entries made stale by a merge are dropped when
 // reached.
 func (s *state) mergeLong(p []byte) []uint32 {
 	if cap(s.syms) < len(p) {
@@ -362,20 +367,21 @@ func (s *state) mergeLong(p []byte) []uint32 {
 				prev[nn] = pos
 				if r2, _ := s.rankOf(merged, syms[nn]); r2 != noRank {
 					add(r2, pos)
-					lower = lower || r2 < r
+					lower = lower || r2 <= r
 				}
 			}
 			if pv := prev[pos]; pv >= 0 {
 				if r2, _ := s.rankOf(syms[pv], merged); r2 != noRank {
 					add(r2, pv)
-					lower = lower || r2 < r
+					lower = lower || r2 <= r
 				}
 			}
 			if lower {
 				break
 			}
 		}
-		rest := append(bucket[:0], bucket[k:]...)
+		cur := buckets[r] // bucket and the pairs of rank r that merges made
+		rest := append(cur[:0], cur[k:]...)
 		buckets[r] = rest // an empty bucket keeps its room for the next word
 		if len(rest) > 0 {
 			ranks = heapPush(ranks, uint64(r))

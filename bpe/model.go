@@ -32,6 +32,9 @@ func (v *Vocab) plainModel() bool {
 // initial appends the starting symbols of pre-token p to syms.
 func (s *state) initial(syms []uint32, p []byte) []uint32 {
 	v := s.v
+	if v.spm != nil {
+		return v.spm.initial(syms, p) // spm_fast.go
+	}
 	if !v.slow {
 		for _, b := range p {
 			syms = append(syms, v.byteID[b])

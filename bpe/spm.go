@@ -41,6 +41,11 @@ type spmModel struct {
 	chars    []string // symbol id - len(Pieces) -> its character
 	asciiSym [128]uint32
 	cut      cutRule
+
+	// for the fast path (spm_fast.go)
+	charID   map[string]uint32 // a character's symbol, when it has one
+	lens     []int32           // a piece's length in bytes
+	resolved []uint32          // the id a piece's text looks up
 }
 
 // noSym is the symbol of a character no piece holds.
@@ -90,6 +95,7 @@ func LoadSentencePiece(path string) (*Vocab, error) {
 func newSentencePieceVocab(m *spmodel.Model) *Vocab {
 	sp := newSPM(m)
 	v := &Vocab{spm: sp, tokens: make([][]byte, len(m.Pieces))}
+	sp.prepareFast(v)
 	for id, p := range m.Pieces {
 		v.tokens[id] = sp.raw(id)
 		if p.Type == spmodel.Control || p.Type == spmodel.Unknown {

@@ -1,0 +1,148 @@
+package bpe
+
+import (
+	"bytes"
+
+	"morsel/bpe/spmodel"
+)
+
+// The fast path of SentencePiece encoding runs the engine's merge loop
+// and word caches (merge.go) on the normalized text cut where no piece
+// can span (cutRule): the symbols start as characters (initial), merge by
+// the score-ordered table, and then become ids as the reference emits
+// them (spmFinish).
+
+// initial appends p's characters as symbols, a user-defined piece as one
+// (it never merges), as the reference splits a text before merging.
+func (sp *spmModel) initial(syms []uint32, p []byte) []uint32 {
+	for i := 0; i < len(p); {
+		c := p[i]
+		if sp.user.first[c] != nil {
+			if id, n := sp.user.match(p[i:]); n > 0 {
+				syms = append(syms, id)
+				i += n
+				continue
+			}
+		}
+		if c < 0x80 {
+			syms = append(syms, sp.asciiSym[c])
+			i++
+			continue
+		}
+		n := min(utf8Len(c), len(p)-i)
+		id, ok := sp.charID[string(p[i:i+n])]
+		if !ok {
+			id = noSym
+		}
+		syms = append(syms, id)
+		i += n
+	}
+	return syms
+}
+
+// spmFinish turns the merged symbols of p into the ids the reference
+// emits: a piece as the id its text looks up (a reserved piece of the same
+// text first), a character with no piece as its bytes' pieces under byte
+// fallback, else as the unknown id, once for a run of them.
+func (s *state) spmFinish(p []byte, syms []uint32) []uint32 {
+	sp := s.v.spm
+	out := s.spmOut[:0]
+	pos, prevUnk := 0, false
+	for _, sym := range syms {
+		var id uint32
+		var n int
+		if sym < uint32(len(sp.lens)) {
+			id, n = sp.resolved[sym], int(sp.lens[sym])
+		} else {
+			if sym == noSym {
+				n = min(utf8Len(p[pos]), len(p)-pos)
+			} else {
+				n = len(sp.chars[sym-uint32(len(sp.lens))])
+			}
+			id = sp.pieceID(string(p[pos : pos+n]))
+		}
+		unk := id == sp.unk
+		switch {
+		case unk && sp.m.ByteFallback:
+			for _, b := range p[pos : pos+n] {
+				out = append(out, sp.byteID[b])
+			}
+		case unk && prevUnk:
+		default:
+			out = append(out, id)
+		}
+		prevUnk = unk
+		pos += n
+	}
+	s.spmOut = out
+	return out
+}
+
+// prepareFast fills what the fast path needs beyond the merge table.
+func (sp *spmModel) prepareFast(v *Vocab) {
+	ps := sp.m.Pieces
+	sp.lens = make([]int32, len(ps))
+	sp.resolved = make([]uint32, len(ps))
+	for id, p := range ps {
+		sp.lens[id] = int32(len(p.Text))
+		sp.resolved[id] = sp.pieceID(p.Text)
+	}
+	sp.charID = map[string]uint32{}
+	for text, id := range sp.pieces {
+		if ps[id].Type != spmodel.UserDefined && len([]rune(text)) == 1 {
+			sp.charID[text] = id
+		}
+	}
+	for c, id := range sp.charSyms {
+		sp.charID[c] = id
+	}
+	v.merges = sp.ranks
+	// A one-byte pre-token is one character: its id is looked up, not
+	// merged (merge.go's shortcut).
+	for b := range 256 {
+		v.byteID[b] = sp.unk
+		if b < 0x80 {
+			if ids := sp.encodeSteps(nil, []byte{byte(b)}); len(ids) == 1 {
+				v.byteID[b] = ids[0]
+			}
+		}
+	}
+	// A run of unknown characters is one unknown id across a cut too; a
+	// cut falls next to a mark, so cutting needs the mark to be a piece
+	// when there is no byte fallback.
+	if _, ok := sp.charID[sp.mark]; !ok && !sp.m.ByteFallback {
+		sp.cut = cutNone
+	}
+}
+
+// nextCut returns the end of the stretch of norm that starts at i and
+// merges apart from the rest.
+func (sp *spmModel) nextCut(norm []byte, i int) int {
+	mark := sp.mark
+	switch sp.cut {
+	case cutBeforeMarks:
+		for j := i + 1; j < len(norm); {
+			k := bytes.Index(norm[j:], []byte(mark))
+			if k < 0 {
+				break
+			}
+			j += k
+			if !bytes.HasSuffix(norm[:j], []byte(mark)) {
+				return j
+			}
+			j += len(mark)
+		}
+	case cutAfterMarks:
+		for j := i; j < len(norm); {
+			k := bytes.Index(norm[j:], []byte(mark))
+			if k < 0 {
+				break
+			}
+			j += k + len(mark)
+			if j < len(norm) && !bytes.HasPrefix(norm[j:], []byte(mark)) {
+				return j
+			}
+		}
+	}
+	return len(norm)
+}
