@@ -612,8 +612,12 @@ func family(byteLevel bool, pre, norm json.RawMessage) string {
 }
 
 // Family returns the kind of vocabulary in words: "byte-level" (GPT-2 and
-// the like), "metaspace" (spaces spelled as U+2581) or "character-level".
+// the like), "metaspace" (spaces spelled as U+2581), "character-level" or
+// "sentencepiece-bpe" (a SentencePiece model file).
 func (v *Vocab) Family() string {
+	if v.spm != nil {
+		return spmFamily
+	}
 	if v.pipe == nil {
 		return "byte-level"
 	}
@@ -626,16 +630,24 @@ func (v *Vocab) Family() string {
 func (v *Vocab) FromBundle() bool { return v.pipe != nil }
 
 // Template returns the ids that the bundle's post-processor adds to every
-// single sequence (a start token, say), in order; nil when none.
+// single sequence (a start token, say), in order; nil when none. For a
+// SentencePiece model it is its start piece, when it has one.
 func (v *Vocab) Template() []int {
+	if v.spm != nil {
+		return v.spm.template()
+	}
 	if v.pipe == nil || v.pipe.template == nil {
 		return []int{}
 	}
 	return v.pipe.template
 }
 
-// Added returns the bundle's added tokens (special or not) in id order.
+// Added returns the bundle's added tokens (special or not) in id order;
+// a SentencePiece model's user-defined pieces.
 func (v *Vocab) Added() []Special {
+	if v.spm != nil {
+		return v.spm.added()
+	}
 	if v.pipe == nil {
 		return nil
 	}

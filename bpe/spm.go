@@ -2,7 +2,6 @@ package bpe
 
 import (
 	"cmp"
-	"fmt"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -94,10 +93,15 @@ func LoadSentencePiece(path string) (*Vocab, error) {
 // newSentencePieceVocab makes the vocabulary of a parsed model.
 func newSentencePieceVocab(m *spmodel.Model) *Vocab {
 	sp := newSPM(m)
-	v := &Vocab{spm: sp, tokens: make([][]byte, len(m.Pieces))}
+	v := &Vocab{spm: sp, tokens: make([][]byte, len(m.Pieces)), spell: make([][]byte, len(m.Pieces))}
 	sp.prepareFast(v)
+	v.model.fallback = m.ByteFallback
 	for id, p := range m.Pieces {
 		v.tokens[id] = sp.raw(id)
+		v.spell[id] = []byte(p.Text)
+		if b, ok := spmodel.ByteOf(p.Text); ok && p.Type == spmodel.Byte {
+			v.model.fallbackID[b] = uint32(id)
+		}
 		if p.Type == spmodel.Control || p.Type == spmodel.Unknown {
 			v.specials = append(v.specials, Special{ID: id, Text: p.Text})
 		}
@@ -270,7 +274,71 @@ func (sp *spmModel) cutRule() cutRule {
 	return cutNone
 }
 
-// describe is a one-line account of the model for errors and notes.
-func (sp *spmModel) describe() string {
-	return fmt.Sprintf("SentencePiece BPE, %d pieces, normalizer %s", len(sp.m.Pieces), sp.m.Normalizer.Name)
+// spmFamily is Family's name for a SentencePiece model.
+const spmFamily = "sentencepiece-bpe"
+
+// template returns the ids a request starts with: the start piece.
+func (sp *spmModel) template() []int {
+	if sp.start < 0 {
+		return []int{}
+	}
+	return []int{sp.start}
+}
+
+// added returns the user-defined pieces, in id order.
+func (sp *spmModel) added() []Special {
+	var out []Special
+	for id, p := range sp.m.Pieces {
+		if p.Type == spmodel.UserDefined {
+			out = append(out, Special{ID: id, Text: p.Text})
+		}
+	}
+	return out
+}
+
+// SentencePiece returns what a vocabulary read from a SentencePiece model
+// file knows beyond a vocabulary's shared description; ok is false for
+// any other vocabulary.
+func (v *Vocab) SentencePiece() (info SentencePieceInfo, ok bool) {
+	sp := v.spm
+	if sp == nil {
+		return SentencePieceInfo{}, false
+	}
+	n := sp.m.Normalizer
+	info = SentencePieceInfo{
+		Normalizer: n.Name, Rules: n.Map.Len(), AddDummyPrefix: n.AddDummyPrefix,
+		RemoveExtraWhitespaces: n.RemoveExtraWhitespaces, EscapeWhitespaces: n.EscapeWhitespaces,
+		WhitespaceSuffix: sp.m.TreatWhitespaceAsSuffix, StartID: sp.start, UnknownID: int(sp.unk),
+		Fingerprint: sp.m.Fingerprint,
+	}
+	for _, p := range sp.m.Pieces {
+		switch p.Type {
+		case spmodel.Control:
+			info.Control++
+		case spmodel.UserDefined:
+			info.UserDefined++
+		case spmodel.Unused:
+			info.Unused++
+		case spmodel.Byte:
+			info.Byte++
+		}
+	}
+	return info, true
+}
+
+// SentencePieceInfo describes a SentencePiece model for reports.
+type SentencePieceInfo struct {
+	Normalizer             string `json:"normalizer"`       // the rule set's name
+	Rules                  int    `json:"normalizer_rules"` // rules of its character map
+	AddDummyPrefix         bool   `json:"add_dummy_prefix"`
+	RemoveExtraWhitespaces bool   `json:"remove_extra_whitespaces"`
+	EscapeWhitespaces      bool   `json:"escape_whitespaces"`
+	WhitespaceSuffix       bool   `json:"whitespace_suffix"`
+	StartID                int    `json:"start_id"` // -1 when the model has no start piece
+	UnknownID              int    `json:"unknown_id"`
+	Control                int    `json:"control_pieces"`
+	UserDefined            int    `json:"user_defined_pieces"`
+	Unused                 int    `json:"unused_pieces"`
+	Byte                   int    `json:"byte_pieces"`
+	Fingerprint            string `json:"fingerprint"` // "sha256:" and the model file's hash
 }
