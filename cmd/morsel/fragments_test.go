@@ -51,7 +51,7 @@ func TestFragmentsJSONContract(t *testing.T) {
 
 func TestFragmentsFormats(t *testing.T) {
 	out, _, code := run(t, "", "fragments", "../../testdata/demo/notes-species-bathyphorus-quillandri.txt", "--format", "csv")
-	if code != 0 || !strings.HasPrefix(out, "rank,word,script,count,documents,pieces,excess,split,split_share\n") {
+	if code != 0 || !strings.HasPrefix(out, "rank,word,script,count,documents,pieces,excess,split,split_share,kind,pieces_alone,flagged,line\n") {
 		t.Fatalf("exit %d\n%s", code, out)
 	}
 	out, _, code = run(t, "", "fragments", "../../testdata/demo/notes-species-bathyphorus-quillandri.txt")

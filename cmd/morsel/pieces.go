@@ -23,7 +23,7 @@ func newPieces(sh *shared) *cobra.Command {
 not a whole UTF-8 character) and its length in bytes, then the totals.
 
 The text is the arguments joined by single spaces, or the file named by --file, or
-standard input when neither is given.`,
+standard input when neither is given or either is - (as in every command).`,
 		Example: `  morsel pieces "Bathyphorus quillandri"
   morsel pieces --file note.txt --format json
   echo "QX-7731-Rb" | morsel pieces`,
@@ -34,6 +34,12 @@ standard input when neither is given.`,
 			}
 			if file != "" && len(args) > 0 {
 				return usagef("pieces", "give the text as arguments or with --file, not both")
+			}
+			if len(args) == 1 && args[0] == "-" {
+				args = nil // "-" is standard input, as in every command
+			}
+			if file == "-" {
+				file = ""
 			}
 			var text []byte
 			switch {

@@ -93,7 +93,7 @@ func TestFitExitAndMargins(t *testing.T) {
 		err  string
 	}{
 		{"all fit", []string{"fit", filepath.Join(demoDir, "terms.txt"), "--window", "100000", "--quiet"}, exitOK, ""},
-		{"flag beats target", []string{"fit", filepath.Join(demoDir, "terms.txt"), "--targets", demoTargets, "--target", "harbor-small", "--reserve", "5000", "--quiet"}, exitCheck, "overflow"},
+		{"flag beats target", []string{"fit", filepath.Join(demoDir, "terms.txt"), "--targets", demoTargets, "--target", "harbor-small", "--reserve", "5000", "--quiet"}, exitUsage, "--reserve 5000 leaves no room"},
 		{"unreadable input wins", []string{"fit", filepath.Join(demoDir, "terms.txt"), filepath.Join(demoDir, "no-such-file.txt"), "--window", "10", "--quiet"}, exitInput, ""},
 		{"frame without placeholder", []string{"fit", demoDir, "--frame", filepath.Join(demoDir, "terms.txt")}, exitUsage, "has no {{document}} placeholder"},
 		{"unknown target", []string{"fit", demoDir, "--targets", demoTargets, "--target", "harbor-huge"}, exitUsage, `no target "harbor-huge"`},
@@ -163,10 +163,10 @@ func TestRationEmit(t *testing.T) {
 			t.Fatalf("%s: the chunks do not rebuild the file (%d of %d bytes)", name, len(docs[p]), len(want))
 		}
 	}
-	// A budget the frame alone fills is the check failing: exit 3.
+	// A budget the frame alone fills is one usage error.
 	_, serr, code = runMorsel(t, "ration", filepath.Join(demoDir, "terms.txt"), "--budget", "100", "--frame", demoFrame, "--quiet")
-	if code != exitCheck {
-		t.Fatalf("exit %d, want 3: %s", code, serr)
+	if code != exitUsage || !strings.Contains(serr, "100-token budget") {
+		t.Fatalf("exit %d, want 2: %s", code, serr)
 	}
 	_, serr, code = runMorsel(t, "ration", demoDir, "--budget", "100", "--overlap", "60")
 	if code != exitUsage {

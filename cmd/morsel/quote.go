@@ -101,11 +101,12 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 				if p.Window <= 0 {
 					return usagef("quote", "%s: target %q has no window and its vocabulary does not say one; give --window", t.Where(), t.Name)
 				}
-				framePath := t.Frame
 				if flags.Changed("frame") {
-					framePath = rf.frame
+					p.Frame, err = loadFrame("quote", rf.frame)
+				} else {
+					p.Frame, err = targetFrame("quote", t)
 				}
-				if p.Frame, err = loadFrame("quote", framePath); err != nil {
+				if err != nil {
 					return err
 				}
 				if flags.Changed("answer-tokens") {

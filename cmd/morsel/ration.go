@@ -59,11 +59,15 @@ because the budget cannot hold the frame and one character, else 0.`,
 			if err != nil {
 				return err
 			}
+			room := rq.answer.Budget(rq.window)
 			if !c.Flags().Changed("budget") {
-				budget = rq.answer.Budget(rq.window)
+				budget = room
 			}
-			if budget <= 0 {
-				return usagef("ration", "the budget is %d tokens: the answer reserved takes the whole %d-token window", budget, rq.window)
+			if budget > room {
+				return usagef("ration", "--budget %d is more than the %d tokens that the %d-token window leaves once the answer is reserved: give --budget %d or less, or a larger --window", budget, room, rq.window, room)
+			}
+			if rq.frameTokens >= budget {
+				return usagef("ration", "the frame %s takes %d tokens (overhead included), which leaves no room for a document in the %d-token budget: give a budget above %d, or a shorter frame", rq.frame.Label(), rq.frameTokens, budget, rq.frameTokens)
 			}
 			if overlap < 0 || 2*overlap >= budget {
 				return usagef("ration", "--overlap %d: want 0 or more and less than half the %d-token budget", overlap, budget)

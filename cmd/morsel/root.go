@@ -1,8 +1,10 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"runtime"
 	"runtime/pprof"
@@ -164,6 +166,11 @@ func (sh *shared) loadVocab() (*bpe.Vocab, error) {
 	if sh.vocab == "" {
 		return bpe.Default(), nil
 	}
+	for _, f := range []struct{ flag, path string }{{"--vocab", sh.vocab}, {"--merges", sh.merges}} {
+		if _, err := os.Stat(f.path); f.path != "" && errors.Is(err, fs.ErrNotExist) {
+			return nil, &inputError{fmt.Errorf("%s %s: not found", f.flag, f.path)}
+		}
+	}
 	v, err := bpe.LoadFiles(sh.vocab, sh.merges)
 	if err != nil {
 		return nil, &inputError{err}
@@ -210,8 +217,8 @@ type corpusFlags struct {
 // addCorpusFlags adds the document-walking flags to c.
 func addCorpusFlags(c *cobra.Command, cf *corpusFlags) {
 	f := c.Flags()
-	f.StringVar(&cf.field, "field", "text", "JSON / JSON Lines field holding the text (dotted path for nesting)")
-	f.StringVar(&cf.column, "column", "text", "CSV / TSV column holding the text")
+	f.StringVar(&cf.field, "field", "", "JSON / JSON Lines field holding the text, a dotted path for nesting (default text; a file without it is then one text document, unless --field is given)")
+	f.StringVar(&cf.column, "column", "", "CSV / TSV column holding the text (default text; a file without it is then one text document, unless --column is given)")
 	f.StringSliceVar(&cf.include, "include", nil, "only files matching these globs (repeatable; ** spans folders)")
 	f.StringSliceVar(&cf.exclude, "exclude", nil, "leave out files and folders matching these globs")
 	f.BoolVar(&cf.hidden, "hidden", false, "walk hidden files and folders (such as .git) too")

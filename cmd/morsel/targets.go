@@ -102,6 +102,9 @@ type settings struct {
 	answer   request.Answer
 	overhead int
 	target   string
+	// frameTokens is what the frame and overhead take around an empty
+	// document.
+	frameTokens int
 }
 
 // loadFrame reads and parses a frame file: a file that cannot be read is
@@ -164,10 +167,45 @@ func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *req
 	if rq.window <= 0 {
 		return nil, usagef(cmd, "the vocabulary does not say its window: give --window N (or a target with window)")
 	}
-	if rq.frame, err = loadFrame(cmd, framePath); err != nil {
+	if rq.answer.Budget(rq.window) <= 0 {
+		what := fmt.Sprintf("--reserve %d", rq.answer.Tokens)
+		if !flags.Changed("reserve") && t != nil {
+			what = fmt.Sprintf("the answer that target %s reserves (%s)", t.Name, t.Where())
+		}
+		return nil, usagef(cmd, "%s leaves no room for a document in the %d-token window: reserve fewer tokens than the window, or give a larger --window", what, rq.window)
+	}
+	if t != nil && !flags.Changed("frame") {
+		rq.frame, err = targetFrame(cmd, t)
+	} else {
+		rq.frame, err = loadFrame(cmd, framePath)
+	}
+	if err != nil {
 		return nil, err
 	}
+	rq.frameTokens = request.InputTokens(rq.enc, rq.frame, "", nil, rq.overhead)
 	return rq, nil
+}
+
+// targetFrame reads the frame a target names. The frame is part of the
+// targets file's settings, so a frame that cannot be read is bad usage
+// (exit status 2) at the target's line.
+func targetFrame(cmd string, t *request.Target) (*request.Frame, error) {
+	if t.Frame == "" {
+		return nil, nil
+	}
+	data, err := os.ReadFile(t.Frame)
+	if err != nil {
+		why := err.Error()
+		if pe, ok := err.(*fs.PathError); ok {
+			why = pe.Err.Error()
+		}
+		return nil, usagef(cmd, "%s: target %s: frame %s: %s (a frame's path is relative to the targets file)", t.Where(), t.Name, t.Frame, why)
+	}
+	f, err := request.ParseFrame(t.Frame, data)
+	if err != nil {
+		return nil, usagef(cmd, "%s: target %s: %v", t.Where(), t.Name, err)
+	}
+	return f, nil
 }
 
 // genericSplit reports whether the planner must count every chunk whole:

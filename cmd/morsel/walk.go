@@ -20,6 +20,8 @@ type collector[R any] struct {
 
 	prog    walk.Progress
 	skipped []report.Skipped
+	once    *onceFilter              // --once: later copies of a text are left out
+	note    func(d *corpus.Document) // says how a document was read, when the reader noted it
 }
 
 func (c *collector[R]) emit(it corpus.Item, r R, err error) error {
@@ -33,6 +35,13 @@ func (c *collector[R]) emit(it corpus.Item, r R, err error) error {
 		}
 		c.skipped = append(c.skipped, failed(it.Doc, err))
 	default:
+		if it.Doc.Note != "" && c.note != nil {
+			c.note(it.Doc)
+		}
+		if rep := c.once.repeat(it.Doc); rep != nil {
+			c.skipped = append(c.skipped, *rep)
+			return nil
+		}
 		if c.prog != nil && c.tokens != nil {
 			c.prog.Tokens(c.tokens(r))
 		}
@@ -48,6 +57,13 @@ func (c *collector[R]) emit(it corpus.Item, r R, err error) error {
 func walkDocs[R any](sh *shared, cf *corpusFlags, paths []string, work func(*corpus.Document) (R, error), c collector[R]) ([]report.Skipped, error) {
 	opt := cf.options()
 	opt.Stdin = sh.stdin
+	if err := corpus.CheckPatterns(opt); err != nil {
+		return nil, usagef("", "--%v", err)
+	}
+	if sh.once {
+		c.once = &onceFilter{}
+	}
+	c.note = func(d *corpus.Document) { sh.note("%s: %s", d.Source, d.Note) }
 	c.prog = sh.progress()
 	c.skipped = []report.Skipped{}
 	if err := walk.Walk(paths, opt, sh.workers, c.prog, work, c.emit); err != nil {

@@ -148,7 +148,7 @@ func Write(w io.Writer, f render.Format, r *Report) error {
 	}
 	grids := []*render.Grid{g, render.TotalsGrid(totals(r))}
 	if len(r.Skipped) > 0 {
-		grids = append(grids, render.SkipGrid(r.Skipped))
+		grids = append(grids, render.SkipGrids(render.ViewOf(w), r.Skipped)...)
 	}
 	return render.WriteGrids(w, f, grids...)
 }

@@ -58,7 +58,7 @@ func WriteHTML(w io.Writer, r *Report, rows int) error {
 	}
 	p.Sections = append(p.Sections, render.Section{ID: "documents", Heading: "Documents", Tables: []render.TableView{render.TableOf(g, 0)}})
 	if len(r.Skipped) > 0 {
-		p.Sections = append(p.Sections, render.SkipSection(r.Skipped))
+		p.Sections = append(p.Sections, render.SkipSection(render.ViewOf(w), r.Skipped))
 	}
 	return render.WritePage(w, p)
 }

@@ -40,9 +40,9 @@ func WriteHTML(w io.Writer, r *Report, docRows int) error {
 		}
 		for i, f := range r.Words {
 			wv.Rows = append(wv.Rows, render.WordRow{
-				Cells: []render.CellView{{Text: fmt.Sprint(i + 1), Num: true}, {Text: f.Word}, {Text: f.Script}, {Text: render.Num(f.Count), Num: true},
+				Cells: []render.CellView{{Text: fmt.Sprint(i + 1), Num: true}, {Text: render.ShownWord(f.Word)}, {Text: f.Script}, {Text: render.Num(f.Count), Num: true},
 					{Text: fmt.Sprintf("%.2f", f.Pieces), Num: true}, {Text: render.Num(f.Excess), Num: true}},
-				Pieces: fragmentPieces(f),
+				Pieces: render.ShownPieces(fragmentPieces(f)),
 				After:  []render.CellView{{Text: render.Num(f.Documents), Num: true}},
 			})
 		}
@@ -81,7 +81,7 @@ func WriteHTML(w io.Writer, r *Report, docRows int) error {
 			Words: tv})
 	}
 	if len(r.Skipped) > 0 {
-		p.Sections = append(p.Sections, render.SkipSection(r.Skipped))
+		p.Sections = append(p.Sections, render.SkipSection(render.ViewOf(w), r.Skipped))
 	}
 	return render.WritePage(w, p)
 }
@@ -113,8 +113,8 @@ func excessChart(r *Report) *render.BarList {
 		if i == render.ChartRows {
 			break
 		}
-		c.Rows = append(c.Rows, render.BarRow{Label: f.Word, Value: float64(f.Excess), Text: render.Num(f.Excess),
-			Tip: fmt.Sprintf("%s: %s occurrence(s) × %.2f pieces, %s excess tokens", f.Word, render.Num(f.Count), f.Pieces, render.Num(f.Excess))})
+		c.Rows = append(c.Rows, render.BarRow{Label: render.ShownWord(f.Word), Value: float64(f.Excess), Text: render.Num(f.Excess),
+			Tip: fmt.Sprintf("%s: %s occurrence(s) × %.2f pieces, %s excess tokens", render.ShownWord(f.Word), render.Num(f.Count), f.Pieces, render.Num(f.Excess))})
 	}
 	c.Desc = fmt.Sprintf("Bar chart of the %d words with the most excess tokens; the table below lists them with their pieces.", len(c.Rows))
 	return c

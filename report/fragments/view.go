@@ -14,11 +14,16 @@ import (
 // space inside a piece shows as "␣", so the joins are unambiguous).
 
 func readableRaw(pieces [][]byte) string {
+	return strings.Join(readableParts(pieces), " ")
+}
+
+// readableParts returns the readable form of each piece.
+func readableParts(pieces [][]byte) []string {
 	parts := make([]string, len(pieces))
 	for i, p := range pieces {
 		parts[i] = render.Readable(p)
 	}
-	return strings.Join(parts, " ")
+	return parts
 }
 
 // Write renders r in format f. docRows bounds the documents the
@@ -30,6 +35,7 @@ func Write(w io.Writer, f render.Format, r *Report, docRows int) error {
 	}
 	words := fragmentGrid(r, f)
 	if f == render.CSV {
+		addTermRows(words, r)
 		return words.WriteCSV(w)
 	}
 	grids := []*render.Grid{words, savingGrid(r), scriptGrid(r), docFertilityGrid(r, docRows)}
@@ -37,9 +43,21 @@ func Write(w io.Writer, f render.Format, r *Report, docRows int) error {
 		grids = append(grids, termGrid(r))
 	}
 	if len(r.Skipped) > 0 {
-		grids = append(grids, render.SkipGrid(r.Skipped))
+		grids = append(grids, render.SkipGrids(render.ViewOf(w), r.Skipped)...)
 	}
 	return render.WriteGrids(w, f, grids...)
+}
+
+// addTermRows adds the glossary terms to the CSV word table, one row a
+// term with kind "term": count is its occurrences, pieces and split are
+// after a space, as the term stands in running text, and line is its line
+// in the glossary.
+func addTermRows(g *render.Grid, r *Report) {
+	for _, t := range r.Terms {
+		g.AddRow("", render.ShownWord(t.Term), "", fmt.Sprint(t.Occurrences), fmt.Sprint(t.Documents),
+			fmt.Sprint(t.PiecesAfterSpace), fmt.Sprint(t.Excess), readableRaw(t.AfterSpaceBytes), "",
+			"term", fmt.Sprint(t.PiecesAlone), fmt.Sprint(t.Flagged), fmt.Sprint(t.Line))
+	}
 }
 
 func fragmentGrid(r *Report, f render.Format) *render.Grid {
@@ -48,15 +66,17 @@ func fragmentGrid(r *Report, f render.Format) *render.Grid {
 		Header: []string{"#", "word", "script", "count", "documents", "pieces", "excess", "split"},
 		Right:  []int{0, 3, 4, 5, 6}}
 	if f == render.CSV {
-		g.Header = []string{"rank", "word", "script", "count", "documents", "pieces", "excess", "split", "split_share"}
+		g.Header = []string{"rank", "word", "script", "count", "documents", "pieces", "excess", "split", "split_share", "kind", "pieces_alone", "flagged", "line"}
 	}
 	for i, w := range r.Words {
-		split := readableRaw(w.SplitBytes)
-		row := []string{fmt.Sprint(i + 1), w.Word, w.Script, render.Num(w.Count), render.Num(w.Documents),
+		// Words and splits are cut for display; JSON keeps them whole.
+		split := strings.Join(render.ShownPieces(readableParts(w.SplitBytes)), " ")
+		word := render.ShownWord(w.Word)
+		row := []string{fmt.Sprint(i + 1), word, w.Script, render.Num(w.Count), render.Num(w.Documents),
 			fmt.Sprintf("%.2f", w.Pieces), render.Num(w.Excess), split}
 		if f == render.CSV {
-			row = []string{fmt.Sprint(i + 1), w.Word, w.Script, fmt.Sprint(w.Count), fmt.Sprint(w.Documents),
-				fmt.Sprintf("%.2f", w.Pieces), fmt.Sprint(w.Excess), split, fmt.Sprintf("%.4f", w.SplitShare)}
+			row = []string{fmt.Sprint(i + 1), word, w.Script, fmt.Sprint(w.Count), fmt.Sprint(w.Documents),
+				fmt.Sprintf("%.2f", w.Pieces), fmt.Sprint(w.Excess), split, fmt.Sprintf("%.4f", w.SplitShare), "word", "", "", ""}
 		}
 		g.AddRow(row...)
 	}
@@ -121,7 +141,7 @@ func docFertilityGrid(r *Report, rows int) *render.Grid {
 
 func termGrid(r *Report) *render.Grid {
 	g := &render.Grid{Title: fmt.Sprintf("Glossary terms (%s flagged at %g+ pieces)", render.Num(r.Totals.FlaggedTerm), r.Options.MinPieces),
-		Header: []string{"term", "alone", "after a space", "split after a space", "occurrences", "documents", "excess", ""},
+		Header: []string{"term", "alone", "after a space", "split after a space", "count", "documents", "excess", ""},
 		Right:  []int{1, 2, 4, 5, 6}}
 	for _, t := range r.Terms {
 		flag := ""

@@ -54,7 +54,7 @@ func WriteHTML(w io.Writer, q *Report, rows int) error {
 	}
 	p.Sections = append(p.Sections, render.Section{ID: "documents", Heading: "Documents", Tables: []render.TableView{render.TableOf(quoteDocGrid(q, rows), 0)}})
 	if len(q.Skipped) > 0 {
-		p.Sections = append(p.Sections, render.SkipSection(q.Skipped))
+		p.Sections = append(p.Sections, render.SkipSection(render.ViewOf(w), q.Skipped))
 	}
 	return render.WritePage(w, p)
 }

@@ -25,7 +25,7 @@ func TestQuoteHTML(t *testing.T) {
 			{Target: reporttest.Hostile[0], Cost: dec("0.1")}, {Target: "b", Cost: dec(costs[i]), Overflow: i == 1, InputTokens: 10 * i}, {Target: "c", Cost: dec("0.01")}}})
 	}
 	q.Totals.Documents = len(q.Documents)
-	q.Skipped = []report.Skipped{{Source: reporttest.Hostile[5], Reason: "binary"}}
+	q.Skipped = []report.Skipped{{Source: reporttest.Hostile[5], Reason: "unreadable", Failed: true}} // a failure, so the page lists it
 	var b bytes.Buffer
 	if err := WriteHTML(&b, q, 0); err != nil {
 		t.Fatal(err)

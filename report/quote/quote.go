@@ -258,9 +258,33 @@ func Write(w io.Writer, f render.Format, q *Report) error {
 		}
 		docs.AddRow(cells...)
 	}
+	if len(q.Targets) > 1 {
+		docs.Narrow = quoteLongGrid(q)
+	}
 	grids := []*render.Grid{docs, sum}
 	if len(q.Skipped) > 0 {
-		grids = append(grids, render.SkipGrid(q.Skipped))
+		grids = append(grids, render.SkipGrids(render.ViewOf(w), q.Skipped)...)
 	}
 	return render.WriteGrids(w, f, grids...)
+}
+
+// quoteLongGrid is the per-document table with one row per document and
+// target, for a terminal too narrow for a column group per target.
+func quoteLongGrid(q *Report) *render.Grid {
+	g := &render.Grid{Sources: true, Title: fmt.Sprintf("Per document (%s), one row a target", render.Num(len(q.Documents))),
+		Header: []string{"document", "target", "input", "answer", "requests", "cost"}, Right: []int{2, 3, 4, 5}}
+	for _, d := range q.Documents {
+		for i, l := range d.Targets {
+			doc := ""
+			if i == 0 {
+				doc = report.Where(d.Source, d.Record)
+			}
+			req := render.Num(l.Requests)
+			if l.Overflow {
+				req += " (over)"
+			}
+			g.AddRow(doc, q.Targets[i].Name, render.Num(l.InputTokens), render.Num(l.OutputTokens), req, money(l.Cost, q.Targets[i].Currency))
+		}
+	}
+	return g
 }

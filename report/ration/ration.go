@@ -706,7 +706,7 @@ func Write(w io.Writer, f render.Format, r *Report) error {
 	}
 	grids := []*render.Grid{g, sum, fill, cuts}
 	if len(r.Skipped) > 0 {
-		grids = append(grids, render.SkipGrid(r.Skipped))
+		grids = append(grids, render.SkipGrids(render.ViewOf(w), r.Skipped)...)
 	}
 	return render.WriteGrids(w, f, grids...)
 }

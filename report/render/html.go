@@ -321,8 +321,15 @@ func WindowLabel(win int) string {
 }
 
 // skipSection lists the inputs and records a report did not count.
-func SkipSection(skips []report.Skipped) Section {
-	return Section{ID: "skipped", Heading: "Not counted",
-		Intro:  "Inputs and records left out of the figures above, with the reason. A failed one could not be read; the others were left out on purpose.",
-		Tables: []TableView{TableOf(SkipGrid(skips), 0)}}
+func SkipSection(v View, skips []report.Skipped) Section {
+	sec := Section{ID: "skipped", Heading: "Not counted",
+		Intro: "Inputs and records left out of the figures above. A failed one could not be read; the others were left out on purpose."}
+	for _, g := range SkipGrids(v, skips) {
+		src := -1
+		if g.Sources {
+			src = 0
+		}
+		sec.Tables = append(sec.Tables, TableOf(g, src))
+	}
+	return sec
 }

@@ -8,17 +8,9 @@ import (
 	"morsel/report"
 )
 
-// SkipGrid lists skipped inputs for the table, CSV and Markdown views.
+// SkipGrid lists every skipped input with its reason and detail.
 func SkipGrid(skips []report.Skipped) *Grid {
-	g := &Grid{Sources: true, Title: fmt.Sprintf("Not counted (%d)", len(skips)), Header: []string{"input", "reason", "detail"}}
-	for _, s := range skips {
-		why := s.Reason
-		if s.Failed {
-			why += " (failed)"
-		}
-		g.AddRow(report.Where(s.Source, s.Record), why, s.Detail)
-	}
-	return g
+	return skipList(fmt.Sprintf("Not counted (%s)", Num(len(skips))), skips)
 }
 
 // Num formats an integer with thousands separators: 12,345.

@@ -36,6 +36,9 @@ func ParseFrame(name string, data []byte) (*Frame, error) {
 		return nil, fmt.Errorf("%s:%d: a second %s (the first is on line %d); a frame holds the document once",
 			name, textfile.Line(data, int64(second)), DocumentMark, textfile.Line(data, int64(i)))
 	}
+	if err := unknownMarks(name, data); err != nil {
+		return nil, err
+	}
 	return &Frame{Name: name, before: data[:i], after: rest}, nil
 }
 
@@ -76,4 +79,42 @@ func InputTokens(enc *bpe.Encoder, f *Frame, source string, doc []byte, overhead
 		return enc.Count(doc) + overhead
 	}
 	return enc.Count(f.Assemble(source, doc)) + overhead
+}
+
+// unknownMarks returns an error naming the first {{name}} in data that is
+// not a placeholder a frame knows, such as a misspelled {{sorce}}, which
+// would otherwise be sent as literal text.
+func unknownMarks(name string, data []byte) error {
+	for at := 0; ; {
+		i := bytes.Index(data[at:], []byte("{{"))
+		if i < 0 {
+			return nil
+		}
+		i += at
+		j := bytes.Index(data[i:], []byte("}}"))
+		if j < 0 {
+			return nil
+		}
+		mark := data[i : i+j+2]
+		inner := bytes.TrimSpace(mark[2 : len(mark)-2])
+		if string(mark) != DocumentMark && string(mark) != SourceMark && isMarkName(inner) {
+			return fmt.Errorf("%s:%d: unknown placeholder %s: a frame knows %s and %s", name, textfile.Line(data, int64(i)), mark, DocumentMark, SourceMark)
+		}
+		at = i + 2
+	}
+}
+
+// isMarkName reports whether b looks like a placeholder's name: letters,
+// digits, '_', '-' and '.', as template languages use; other text between
+// braces is left alone.
+func isMarkName(b []byte) bool {
+	if len(b) == 0 || len(b) > 40 {
+		return false
+	}
+	for _, c := range b {
+		if !(c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '_' || c == '-' || c == '.') {
+			return false
+		}
+	}
+	return true
 }

@@ -65,7 +65,7 @@ func WriteHTML(w io.Writer, s *Report, sample *Sample, rows int) error {
 	}
 	p.Sections = append(p.Sections, render.Section{ID: "documents", Heading: "Documents", Tables: []render.TableView{render.TableOf(docs, 0)}})
 	if len(s.Skipped) > 0 {
-		p.Sections = append(p.Sections, render.SkipSection(s.Skipped))
+		p.Sections = append(p.Sections, render.SkipSection(render.ViewOf(w), s.Skipped))
 	}
 	return render.WritePage(w, p)
 }

@@ -28,7 +28,7 @@ func hostileSurvey(t *testing.T) (*Report, *Sample) {
 		}
 		sv.Add(w)
 	}
-	s := sv.Finish([]report.Skipped{report.SkipOf(&corpus.Skip{Source: "in/<b onclick=x>bad</b>.bin", Reason: "binary", Detail: "<i>nul byte</i>"})})
+	s := sv.Finish([]report.Skipped{report.SkipOf(&corpus.Skip{Source: "in/<b onclick=x>bad</b>.bin", Reason: "unreadable", Detail: "<i>nul byte</i>", Failed: true})})
 	sample, err := sp.Sample()
 	if err != nil || sample == nil {
 		t.Fatalf("Sample() = %v, %v", sample, err)

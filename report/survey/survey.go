@@ -29,6 +29,9 @@ type Weight struct {
 	BytesPerToken float64 `json:"bytes_per_token"`
 	TokensPerWord float64 `json:"tokens_per_word"`
 	Specials      int     `json:"special_strings"`
+	// Hash is the XXH64 hash of the text, by which identical documents
+	// are found.
+	Hash uint64 `json:"-"`
 }
 
 // Weigh counts one document's tokens, characters and words, streaming it
@@ -48,6 +51,7 @@ func Weigh(enc *bpe.Encoder, d *corpus.Document) (Weight, error) {
 		tc.Write(d.Text)
 		st = enc.CountStats(d.Text)
 	}
+	w.Hash = d.Hash // a stream's is known once it is read to its end
 	w.Bytes, w.Chars, w.Words = tc.Bytes, tc.Chars, tc.Words
 	w.Tokens, w.Specials = st.Tokens, st.Specials
 	w.BytesPerToken = report.Round2(report.Per(float64(w.Bytes), float64(w.Tokens)))
@@ -68,6 +72,18 @@ type Totals struct {
 	// OverWindow counts documents whose tokens alone exceed the
 	// vocabulary's window (0 when the window is not known).
 	OverWindow int `json:"over_window"`
+	// Repeats counts documents whose text is the same as an earlier
+	// one's, and RepeatTokens their tokens: what counting each text once
+	// (--once) would save.
+	Repeats      int   `json:"repeats"`
+	RepeatTokens int64 `json:"repeat_tokens"`
+}
+
+// Identical is a group of documents with the same text (by content hash).
+type Identical struct {
+	Tokens    int      `json:"tokens"` // each
+	Bytes     int64    `json:"bytes"`  // each
+	Documents []string `json:"documents"`
 }
 
 // FormatShare is one file type's part of a survey.
@@ -96,6 +112,7 @@ type Report struct {
 	Histogram  []Bin            `json:"histogram"`
 	Formats    []FormatShare    `json:"formats"`
 	Largest    []Weight         `json:"largest"`
+	Identical  []Identical      `json:"identical"`
 	Warnings   []string         `json:"warnings"`
 }
 
@@ -149,6 +166,11 @@ func (sv *Surveyor) Finish(skipped []report.Skipped) *Report {
 			t.Failed++
 		}
 	}
+	s.Identical = identicalGroups(s.Documents)
+	for _, g := range s.Identical {
+		t.Repeats += len(g.Documents) - 1
+		t.RepeatTokens += int64(len(g.Documents)-1) * int64(g.Tokens)
+	}
 	s.Spread = report.SpreadOf(tokens)
 	s.Histogram = Histogram(tokens)
 	for _, f := range byFormat {
@@ -175,6 +197,10 @@ func (sv *Surveyor) Finish(skipped []report.Skipped) *Report {
 		}
 		s.Warnings = append(s.Warnings, fmt.Sprintf("%s document(s) hold %s special-token string(s) such as %s; they were counted as ordinary text (--specials honor counts each as its one special token)",
 			render.Num(docs), render.Num(t.Specials), specialNames(s.Vocabulary)))
+	}
+	if t.Repeats > 0 {
+		s.Warnings = append(s.Warnings, fmt.Sprintf("%s document(s) have the same text as another (%s tokens counted more than once); --once counts each text once",
+			render.Num(t.Repeats), render.Num(t.RepeatTokens)))
 	}
 	if t.OverWindow > 0 {
 		s.Warnings = append(s.Warnings, fmt.Sprintf("%s document(s) exceed the %s-token window on their own, before any prompt frame or answer; morsel fit gives the margins, morsel ration splits them",
@@ -240,8 +266,11 @@ func Write(w io.Writer, f render.Format, s *Report, rows int) error {
 	if len(s.Documents) > LargestShown {
 		grids = append(grids, largestGrid(s))
 	}
+	if len(s.Identical) > 0 {
+		grids = append(grids, identicalGrid(s))
+	}
 	if len(s.Skipped) > 0 {
-		grids = append(grids, render.SkipGrid(s.Skipped))
+		grids = append(grids, render.SkipGrids(render.ViewOf(w), s.Skipped)...)
 	}
 	if err := render.WriteGrids(w, f, grids...); err != nil {
 		return err
@@ -393,7 +422,7 @@ func writeSurveyJSON(w io.Writer, s *Report) error {
 		name string
 		v    any
 	}{{"skipped", s.Skipped}, {"totals", s.Totals}, {"spread", s.Spread}, {"histogram", s.Histogram},
-		{"formats", s.Formats}, {"largest", s.Largest}, {"warnings", s.Warnings}}
+		{"formats", s.Formats}, {"largest", s.Largest}, {"identical", s.Identical}, {"warnings", s.Warnings}}
 	for i, r := range rest {
 		if err := field(r.name, r.v, i == len(rest)-1); err != nil {
 			return err
@@ -401,4 +430,48 @@ func writeSurveyJSON(w io.Writer, s *Report) error {
 	}
 	bw.WriteString("}\n")
 	return bw.Flush()
+}
+
+// identicalGroups returns the groups of documents that share a text, the
+// most tokens repeated first, each group's documents in walk order.
+func identicalGroups(docs []Weight) []Identical {
+	first := map[uint64]int{}
+	var groups []Identical
+	for _, d := range docs {
+		if d.Bytes == 0 {
+			continue
+		}
+		k, seen := first[d.Hash]
+		if !seen {
+			first[d.Hash] = -1 - len(groups) // a group made only if a second comes
+			groups = append(groups, Identical{Tokens: d.Tokens, Bytes: d.Bytes, Documents: []string{report.Where(d.Source, d.Record)}})
+			continue
+		}
+		g := &groups[-1-k]
+		g.Documents = append(g.Documents, report.Where(d.Source, d.Record))
+	}
+	out := []Identical{}
+	for _, g := range groups {
+		if len(g.Documents) > 1 {
+			out = append(out, g)
+		}
+	}
+	sort.SliceStable(out, func(i, j int) bool {
+		return int64(len(out[i].Documents)-1)*int64(out[i].Tokens) > int64(len(out[j].Documents)-1)*int64(out[j].Tokens)
+	})
+	return out
+}
+
+// identicalGrid lists the groups of identical documents.
+func identicalGrid(s *Report) *render.Grid {
+	g := &render.Grid{Title: fmt.Sprintf("Identical documents (%s groups; %s repeats, %s tokens counted more than once)",
+		render.Num(len(s.Identical)), render.Num(s.Totals.Repeats), render.Num(s.Totals.RepeatTokens)),
+		Header: []string{"document", "copies", "tokens each"}, Right: []int{1, 2}, Sources: true}
+	for _, id := range s.Identical {
+		g.AddRow(id.Documents[0], render.Num(len(id.Documents)), render.Num(id.Tokens))
+		for _, d := range id.Documents[1:] {
+			g.AddRow(d, "same", "")
+		}
+	}
+	return g
 }
