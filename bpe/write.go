@@ -179,3 +179,7 @@ func keepComponents(comps map[string]json.RawMessage) map[string][]byte {
 	}
 	return out
 }
+
+// PairWritable reports whether WritePair can write v: whether it has no
+// bundle pipeline that a pair cannot hold.
+func (v *Vocab) PairWritable() bool { return v.pipe == nil }

@@ -107,6 +107,7 @@ type Cost struct {
 type Report struct {
 	Base          bpe.Info         `json:"base"`
 	Learned       bpe.Info         `json:"learned"`
+	Extended      bool             `json:"extended"` // learned on top of Base; else from bytes, compared with Base
 	Asked         int              `json:"merges_asked"`
 	Merges        int              `json:"merges_learned"`
 	Holdout       float64          `json:"holdout"`
@@ -130,7 +131,7 @@ type Collector struct {
 // NewCollector starts the report of a vocabulary learned from words.
 func NewCollector(l *bpe.Learned, words *bpe.WordCount, asked int, holdout float64, top int) (*Collector, error) {
 	c := &Collector{r: Report{
-		Base: l.Base.Info(), Learned: l.Vocab.Info(), Asked: asked, Merges: len(l.New), Holdout: holdout,
+		Base: l.Base.Info(), Learned: l.Vocab.Info(), Extended: l.Base.Info().Merges > 0, Asked: asked, Merges: len(l.New), Holdout: holdout,
 		Words: words.Total(), DistinctWords: words.Len(), Documents: []Doc{}, Tokens: []Token{}, Files: []string{}, Skipped: []report.Skipped{},
 	}}
 	uses, err := l.Uses(words, top)

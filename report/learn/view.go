@@ -36,6 +36,9 @@ func summaryGrid(r *Report) *render.Grid {
 		Header: []string{"documents", "count", "tokens before", "tokens after", "saved", "saved %"},
 		Right:  []int{1, 2, 3, 4, 5},
 	}
+	if !r.Extended {
+		g.Title = fmt.Sprintf("%s merges learned from bytes (%s asked; %s tokens in all), from %s words (%s distinct), against %s", render.Num(r.Merges), render.Num(r.Asked), render.Num(r.Learned.Size), render.Num(r.Words), render.Num(r.DistinctWords), r.Base.Name)
+	}
 	row := func(name string, t Totals) {
 		g.AddRow(name, render.Num(t.Documents), render.Num(t.Base), render.Num(t.Learned), render.Num(t.Saved), fmt.Sprintf("%.1f%%", t.Share))
 	}
