@@ -37,6 +37,9 @@ overflows, else 0.`,
   morsel fit exports/ --window 8192 --format json | jq '.totals'`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
+			if len(sh.vocabs) > 1 {
+				return sh.runSide("fit", &cf, args)
+			}
 			boundMemory()
 			f, err := sh.outFormat("fit", render.Table, render.JSON, render.CSV, render.Markdown, render.HTML)
 			if err != nil {

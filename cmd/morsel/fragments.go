@@ -41,6 +41,9 @@ flag when it reaches --min-pieces.`,
   morsel fragments exports/tickets.jsonl --min-pieces 4 --min-count 5 --top 20 --format json`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
+			if len(sh.vocabs) > 1 {
+				return sh.runSide("fragments", &cf, args)
+			}
 			f, err := sh.outFormat("fragments", render.Table, render.JSON, render.CSV, render.Markdown, render.HTML)
 			if err != nil {
 				return err

@@ -24,6 +24,7 @@ import (
 // shared holds the flags every command takes.
 type shared struct {
 	vocab, merges string
+	vocabs        []string // every --vocab given, in order; vocab is the first
 	format        string
 	workers       int
 	quiet         bool
@@ -66,7 +67,7 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
 		return &usageError{cmd: c.Name(), err: err}
 	})
 	pf := root.PersistentFlags()
-	pf.StringVar(&sh.vocab, "vocab", "", "vocabulary JSON file (token -> id), or a folder holding vocab.json+merges.txt or encoder.json+vocab.bpe (default: embedded GPT-2)")
+	pf.Var(&vocabFlag{first: &sh.vocab, all: &sh.vocabs}, "vocab", "vocabulary JSON file (token -> id), or a folder holding vocab.json+merges.txt or encoder.json+vocab.bpe (default: embedded GPT-2); survey, fit and fragments take it more than once to compare vocabularies side by side")
 	pf.StringVar(&sh.merges, "merges", "", "merges file, one ranked pair a line (with --vocab FILE)")
 	pf.StringVar(&sh.format, "format", "table", "output: table, json, csv or md; html too for survey, fit, quote and fragments")
 	pf.IntVar(&sh.workers, "workers", runtime.NumCPU(), "documents encoded at once")

@@ -30,6 +30,9 @@ be read; the report still covers all the rest.`,
   morsel survey docs/ --include '*.md' --exclude 'drafts/**' --format csv > weights.csv`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
+			if len(sh.vocabs) > 1 {
+				return sh.runSide("survey", &cf, args)
+			}
 			boundMemory()
 			f, err := sh.outFormat("survey", render.Table, render.JSON, render.CSV, render.Markdown, render.HTML)
 			if err != nil {
