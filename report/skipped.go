@@ -10,6 +10,8 @@ import (
 type Skipped struct {
 	Source string `json:"source"`
 	Record int    `json:"record"`
+	// Line is, for a CSV or TSV row, the line where it starts.
+	Line   int    `json:"line,omitempty"`
 	Reason string `json:"reason"`
 	Detail string `json:"detail,omitempty"`
 	Failed bool   `json:"failed"` // it could not be read (exit status 1), as opposed to left out on purpose
@@ -21,13 +23,19 @@ const ReasonFailed = "failed"
 
 // SkipOf returns the report entry for a skip from the walk.
 func SkipOf(s *corpus.Skip) Skipped {
-	return Skipped{Source: s.Source, Record: s.Record, Reason: s.Reason, Detail: s.Detail, Failed: s.Failed}
+	return Skipped{Source: s.Source, Record: s.Record, Line: s.Line, Reason: s.Reason, Detail: s.Detail, Failed: s.Failed}
 }
 
 // FailedDoc returns the report entry for a document whose processing
 // failed with err.
 func FailedDoc(d *corpus.Document, err error) Skipped {
-	return Skipped{Source: d.Source, Record: d.Record, Reason: ReasonFailed, Detail: err.Error(), Failed: true}
+	// A read error in a streamed document (cut short, corrupt, too
+	// large) is named as it is when the document is held.
+	reason := corpus.ReasonOf(err)
+	if reason == corpus.ReasonUnreadable {
+		reason = ReasonFailed
+	}
+	return Skipped{Source: d.Source, Record: d.Record, Line: d.Line, Reason: reason, Detail: err.Error(), Failed: true}
 }
 
 // Where returns "source" for a whole file and "source:record" for a record.

@@ -213,6 +213,7 @@ type corpusFlags struct {
 	include, exclude []string
 	hidden           bool
 	as               string
+	maxDocument      sizeFlag
 }
 
 // addCorpusFlags adds the document-walking flags to c.
@@ -225,10 +226,14 @@ func addCorpusFlags(c *cobra.Command, cf *corpusFlags) {
 	f.BoolVar(&cf.hidden, "hidden", false, "walk hidden files and folders (such as .git) too")
 	f.StringVar(&cf.as, "as", "", "read every input as this format: text, markdown, code, html, jsonl, json, csv, tsv")
 	c.RegisterFlagCompletionFunc("as", fixed(asNames...))
+	cf.maxDocument = corpus.DefaultMaxDocument
+	f.Var(&cf.maxDocument, "max-document", "skip a document whose text is longer than this (bytes, or with KiB, MiB, GiB)")
 }
 
+// options returns the corpus options the flags ask for.
 func (cf *corpusFlags) options() corpus.Options {
-	return corpus.Options{Field: cf.field, Column: cf.column, Include: cf.include, Exclude: cf.exclude, Hidden: cf.hidden, Format: cf.as}
+	return corpus.Options{Field: cf.field, Column: cf.column, Include: cf.include, Exclude: cf.exclude,
+		Hidden: cf.hidden, Format: cf.as, MaxDocument: int64(cf.maxDocument)}
 }
 
 // progress returns a progress line on standard error when it is a

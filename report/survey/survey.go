@@ -21,6 +21,7 @@ import (
 type Weight struct {
 	Source        string  `json:"source"`
 	Record        int     `json:"record"`
+	Line          int     `json:"line,omitempty"` // a CSV or TSV row's first line
 	Format        string  `json:"format"`
 	Bytes         int64   `json:"bytes"`
 	Chars         int64   `json:"characters"`
@@ -37,7 +38,7 @@ type Weight struct {
 // Weigh counts one document's tokens, characters and words, streaming it
 // when it comes as a Stream.
 func Weigh(enc *bpe.Encoder, d *corpus.Document) (Weight, error) {
-	w := Weight{Source: d.Source, Record: d.Record, Format: d.Format}
+	w := Weight{Source: d.Source, Record: d.Record, Line: d.Line, Format: d.Format}
 	var tc measure.TextCounter
 	var st bpe.Stats
 	if d.Stream != nil {
