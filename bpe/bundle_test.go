@@ -283,3 +283,37 @@ func FuzzMetaspaceCutKeepsIDs(f *testing.F) {
 		}
 	})
 }
+
+// A --split-pattern that matches the empty text is refused; one whose
+// empty matches come only in context cuts nothing there, so the pieces
+// still rebuild the text; one that backtracks past the limit is reported.
+func TestSplitPatternHostile(t *testing.T) {
+	for _, p := range []string{"a*", "(?:)", "x?"} {
+		if _, err := NewEncoder(Default(), Options{SplitPattern: p}); err == nil || !strings.Contains(err.Error(), "empty text") {
+			t.Errorf("pattern %q: %v, want a refusal", p, err)
+		}
+	}
+	enc, err := NewEncoder(Default(), Options{SplitPattern: `(?=b)|\w+`})
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := []byte("ab cb\xff b")
+	var rebuilt []byte
+	enc.Split(text, func(a, b int, _ bool) { rebuilt = append(rebuilt, text[a:b]...) })
+	if !bytes.Equal(rebuilt, text) {
+		t.Fatalf("pieces rebuild %q of %q", rebuilt, text)
+	}
+	if n := enc.Count(text); n > len(text) {
+		t.Fatalf("%d tokens for %d bytes", n, len(text))
+	}
+	if testing.Short() {
+		return
+	}
+	slow, err := NewEncoder(Default(), Options{SplitPattern: `(a+)+$`})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st := slow.CountStats([]byte(strings.Repeat("a", 40) + "b")); !errors.Is(st.Err, ErrPatternTimeout) {
+		t.Fatalf("Err = %v, want ErrPatternTimeout", st.Err)
+	}
+}

@@ -150,7 +150,7 @@ func encodeTo[T int | uint32](e *Encoder, dst []T, text []byte) ([]T, Stats) {
 			return
 		}
 		if e.re != nil {
-			e.re.spans(seg, func(a, b int) { dst = appendPiece(s, dst, seg[a:b]) })
+			keepErr(&st, e.re.spans(seg, func(a, b int) { dst = appendPiece(s, dst, seg[a:b]) }))
 			return
 		}
 		for i := 0; i < len(seg); {
@@ -189,7 +189,7 @@ func (e *Encoder) CountStats(text []byte) Stats {
 			return
 		}
 		if e.re != nil {
-			e.re.spans(seg, func(a, b int) { st.Tokens += len(s.piece(seg[a:b])) })
+			keepErr(&st, e.re.spans(seg, func(a, b int) { st.Tokens += len(s.piece(seg[a:b])) }))
 			return
 		}
 		for i := 0; i < len(seg); {
@@ -290,7 +290,7 @@ func (e *Encoder) segments(text []byte, st *Stats, fn func(seg []byte, special i
 
 func (e *Encoder) spans(seg []byte, fn func(a, b int)) {
 	if e.re != nil {
-		e.re.spans(seg, fn)
+		e.re.spans(seg, fn) // a timeout leaves the rest as one span, still tiling the text
 		return
 	}
 	for i := 0; i < len(seg); {
@@ -414,5 +414,12 @@ func (e *Encoder) runBundle(s *state, text []byte, st *Stats, added func(id uint
 	s.err = nil
 	for _, sp := range e.specials {
 		st.Specials += bytes.Count(text, sp)
+	}
+}
+
+// keepErr records err in st unless st holds one already.
+func keepErr(st *Stats, err error) {
+	if err != nil && st.Err == nil {
+		st.Err = err
 	}
 }

@@ -4,8 +4,6 @@ import (
 	"fmt"
 	"unicode"
 	"unicode/utf8"
-
-	"github.com/dlclark/regexp2"
 )
 
 // GPT2Pattern is the pre-tokenization rule of GPT-2, as a regular
@@ -163,47 +161,34 @@ func nextGPT2(t []byte, i int) int {
 // regexSplitter pre-tokenizes with a user's regular expression. Text that
 // no match covers becomes pieces of its own, so no byte is lost.
 type regexSplitter struct {
-	re *regexp2.Regexp
+	re *splitRegex
 }
 
+// newRegexSplitter compiles pattern; it fails as compileSplitRegex does
+// (a pattern that does not compile, or that matches the empty text).
 func newRegexSplitter(pattern string) (*regexSplitter, error) {
-	re, err := regexp2.Compile(pattern, regexp2.None)
+	re, err := compileSplitRegex(pattern)
 	if err != nil {
-		return nil, fmt.Errorf("split pattern %q: %w", pattern, err)
+		return nil, fmt.Errorf("split pattern: %w", err)
 	}
 	return &regexSplitter{re: re}, nil
 }
 
-// spans calls fn with the byte span of every piece of t, in order.
-func (s *regexSplitter) spans(t []byte, fn func(start, end int)) {
-	if len(t) == 0 {
-		return
-	}
-	// regexp2 matches over runes; map rune indexes back to byte offsets.
-	// Every invalid byte is one rune (U+FFFD), as utf8.DecodeRune steps.
-	runes := make([]rune, 0, len(t))
-	offs := make([]int, 0, len(t)+1)
-	for i := 0; i < len(t); {
-		r, n := utf8.DecodeRune(t[i:])
-		runes = append(runes, r)
-		offs = append(offs, i)
-		i += n
-	}
-	offs = append(offs, len(t))
+// spans calls fn with the byte span of every piece of t, in order; the
+// pieces tile t. It returns an error wrapping ErrPatternTimeout when the
+// search ran past MatchTimeout (the rest of t is then one piece).
+func (s *regexSplitter) spans(t []byte, fn func(start, end int)) error {
+	ms, err := s.re.matches(t, nil, nil)
 	pos := 0
-	m, err := s.re.FindRunesMatch(runes)
-	for err == nil && m != nil {
-		a, b := m.Index, m.Index+m.Length
-		if a > pos {
-			fn(offs[pos], offs[a])
+	for i := 0; i < len(ms); i += 2 {
+		if ms[i] > pos {
+			fn(pos, ms[i])
 		}
-		if b > a {
-			fn(offs[a], offs[b])
-			pos = b
-		}
-		m, err = s.re.FindNextMatch(m)
+		fn(ms[i], ms[i+1])
+		pos = ms[i+1]
 	}
-	if pos < len(runes) {
-		fn(offs[pos], len(t))
+	if pos < len(t) {
+		fn(pos, len(t))
 	}
+	return err
 }

@@ -92,5 +92,5 @@ func splitPattern(e *Encoder) string {
 	if e.re == nil {
 		return ""
 	}
-	return e.re.re.String()
+	return e.re.re.src
 }

@@ -111,3 +111,18 @@ func TestTemplateTokensInRequests(t *testing.T) {
 		t.Fatalf("input tokens %v without the template, %v with; stderr %q", a, c, note)
 	}
 }
+
+// A document on which the split pattern runs past its time limit is
+// skipped with the reason; the others are counted.
+func TestSurveyPatternTimeout(t *testing.T) {
+	if testing.Short() {
+		t.Skip("waits for the match timeout")
+	}
+	dir := t.TempDir()
+	os.WriteFile(filepath.Join(dir, "bad.txt"), []byte(strings.Repeat("a", 40)+"b"), 0o644)
+	os.WriteFile(filepath.Join(dir, "ok.txt"), []byte("hello world"), 0o644)
+	out, _, code := run(t, "", "survey", "--split-pattern", "(a+)+$", "--format", "json", dir)
+	if code != 1 || !strings.Contains(out, "time limit") || !strings.Contains(out, `"documents": 1`) {
+		t.Fatalf("exit %d\n%s", code, out)
+	}
+}

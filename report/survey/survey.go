@@ -51,6 +51,9 @@ func Weigh(enc *bpe.Encoder, d *corpus.Document) (Weight, error) {
 	} else {
 		tc.Write(d.Text)
 		st = enc.CountStats(d.Text)
+		if st.Err != nil {
+			return w, st.Err // a split pattern ran past its time limit: the count is not exact
+		}
 	}
 	w.Hash = d.Hash // a stream's is known once it is read to its end
 	w.Bytes, w.Chars, w.Words = tc.Bytes, tc.Chars, tc.Words
