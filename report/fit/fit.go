@@ -14,7 +14,6 @@ import (
 )
 
 // Doc is one document's verdict in morsel fit.
-
 type Doc struct {
 	Source      string `json:"source"`
 	Record      int    `json:"record"`

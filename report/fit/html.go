@@ -14,7 +14,6 @@ import (
 // counts, the overflowing documents with their overflow as bars, the
 // tightest fits with the room they leave, and every document's verdict (at
 // most rows of them; 0 lists all).
-
 func WriteHTML(w io.Writer, r *Report, rows int) error {
 	t := r.Totals
 	p := &render.Page{

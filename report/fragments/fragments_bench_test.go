@@ -12,7 +12,6 @@ import (
 
 // BenchmarkFragmentsScan is what fragments spends on a document: encoding,
 // word boundaries, pieces, and folding the words into the report.
-
 func BenchmarkFragmentsScan(b *testing.B) {
 	text, enc := reporttest.BenchText(b), reporttest.Encoder(b)
 	enc.Count(text)

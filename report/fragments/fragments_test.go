@@ -15,7 +15,6 @@ import (
 )
 
 // TestTokenInfo checks the token classes scanTokens reads words by.
-
 func TestTokenInfo(t *testing.T) {
 	for _, c := range []struct {
 		tok    string

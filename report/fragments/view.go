@@ -12,7 +12,6 @@ import (
 
 // readableRaw joins the readable forms of pieces with single spaces (a
 // space inside a piece shows as "␣", so the joins are unambiguous).
-
 func readableRaw(pieces [][]byte) string {
 	return strings.Join(readableParts(pieces), " ")
 }

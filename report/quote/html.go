@@ -16,7 +16,6 @@ import (
 // currencies do not share an axis), the costliest documents under the
 // dearest target, the figures behind the estimate, and the documents (at
 // most rows of them; 0 lists all).
-
 func WriteHTML(w io.Writer, q *Report, rows int) error {
 	p := &render.Page{
 		Command: "quote",

@@ -14,7 +14,6 @@ import (
 )
 
 // Caution is the line every quote carries.
-
 const Caution = "The prices are your own figures from the targets file, not fetched from anywhere; the cost is an estimate from exact token counts and the answer sizes you expect."
 
 // million is the unit prices are given per.

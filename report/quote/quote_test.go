@@ -13,7 +13,6 @@ import (
 
 // TestQuoteWorkedExamples prices documents whose token counts the test
 // takes from the encoder, with the arithmetic stated beside each case.
-
 func TestQuoteWorkedExamples(t *testing.T) {
 	enc := reporttest.Encoder(t)
 	ts, err := request.ParseTargets("m.toml", []byte(reporttest.DemoTargets))

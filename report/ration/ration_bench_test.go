@@ -11,7 +11,6 @@ import (
 
 // rationBenchText joins the demo and golden corpus texts into one document of
 // about 4 MB.
-
 func rationBenchText(b *testing.B) []byte {
 	texts := reporttest.RealTexts(b)
 	names := make([]string, 0, len(texts))

@@ -15,7 +15,6 @@ import (
 // largest documents, the sample document split into its tokens (when
 // sample is not nil), the breakdown by file type, the documents (at most
 // rows of them; 0 lists all) and what was not counted.
-
 func WriteHTML(w io.Writer, s *Report, sample *Sample, rows int) error {
 	p := &render.Page{
 		Command: "survey",

@@ -15,7 +15,6 @@ import (
 
 // SampleLimit is how many bytes of the sample document the HTML report
 // shows as pieces.
-
 const SampleLimit = 4096
 
 // SampleMinWords is the fewest words a document needs to be chosen as the

@@ -17,7 +17,6 @@ import (
 )
 
 // Weight is what one document weighs.
-
 type Weight struct {
 	Source        string  `json:"source"`
 	Record        int     `json:"record"`
