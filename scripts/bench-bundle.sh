@@ -5,9 +5,9 @@
 #   scripts/bench-bundle.sh           # RUNS=3 rounds, medians
 #
 # Survey: the corpus of scripts/bench-survey.sh ($BENCH_DIR/corpus, made by
-# that script), under qwen3 (testdata/vocab/qwen3), under qwen3 with the
+# that script), under the embedded GPT-2 pair for comparison, under qwen3 (testdata/vocab/qwen3), under qwen3 with the
 # digit-groups split pattern, and under metaspace-32k; each round runs
-# wc -w and the three in turns.
+# wc -w and the four in turns.
 # Load: a 250k-token bundle grown from qwen3 by scripts/bigbundle (never
 # committed), `morsel pieces --vocab BUNDLE hello` with the parsed-form cache
 # off (a first load), then warm (from the cache), wall time and peak memory.
@@ -36,12 +36,14 @@ wall() {
   echo "$t1 - $t0" | bc
 }
 median() { sort -n | awk '{a[NR]=$1} END {print a[int((NR+1)/2)]}'; }
-names=(wc qwen3 digit-groups metaspace-32k)
+names=(wc gpt2 qwen3 digit-groups metaspace-32k)
 declare -A times
 for ((r = 0; r <= runs; r++)); do
   for n in "${names[@]}"; do
     if [ "$n" = wc ]; then
       t=$(wall sh -c "find '$corpus' -type f -print0 | xargs -0 cat | wc -w")
+    elif [ "$n" = gpt2 ]; then
+      t=$(wall "$dir/morsel" survey --quiet --format json "$corpus")
     else
       t=$(wall "$dir/morsel" survey --quiet --format json --vocab "$dir/bundles/$n" "$corpus")
     fi
@@ -50,7 +52,7 @@ for ((r = 0; r <= runs; r++)); do
 done
 w=$(echo "${times[wc]}" | tr ' ' '\n' | grep . | median)
 printf '%-16s %8s s\n' "wc -w" "$w"
-for n in qwen3 digit-groups metaspace-32k; do
+for n in gpt2 qwen3 digit-groups metaspace-32k; do
   m=$(echo "${times[$n]}" | tr ' ' '\n' | grep . | median)
   printf '%-16s %8s s  %5.2fx wc -w\n' "survey $n" "$m" "$(echo "$m / $w" | bc -l)"
 done
