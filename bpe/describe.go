@@ -12,6 +12,9 @@ import (
 // in the order they run; "none" for a step that is absent. A pair (or the
 // embedded default) has no normalizer and splits by its pattern.
 func (v *Vocab) Chain() (normalizer, preTokenizer string) {
+	if v.spm != nil {
+		return v.spm.chain()
+	}
 	if v.pipe == nil {
 		return "none", "split by the GPT-2 pattern (hand scanner), bytes as tokens"
 	}
@@ -95,6 +98,9 @@ func describeStage(st stage) string {
 // when any of those differ. The name and the window are left out: they
 // do not change a count.
 func (v *Vocab) Fingerprint() string {
+	if v.spm != nil {
+		return v.spm.m.Fingerprint // the model file's own hash
+	}
 	h := sha256.New()
 	var n [binary.MaxVarintLen64]byte
 	num := func(x uint64) { h.Write(n[:binary.PutUvarint(n[:], x)]) }

@@ -2,6 +2,7 @@ package bpe
 
 import (
 	"cmp"
+	"fmt"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -81,13 +82,11 @@ func (u *userMatcher) match(s []byte) (id uint32, n int) {
 // LoadSentencePiece reads a SentencePiece BPE model file into a
 // vocabulary. It fails, naming the file, as spmodel.Parse does.
 func LoadSentencePiece(path string) (*Vocab, error) {
-	m, err := spmodel.Load(path)
+	data, err := readVocabFile(path)
 	if err != nil {
-		return nil, err
+		return nil, fmt.Errorf("reading SentencePiece model: %w", err)
 	}
-	v := newSentencePieceVocab(m)
-	v.name = strings.TrimSuffix(filepath.Base(path), ".model")
-	return v, nil
+	return parseSentencePiece(path, data)
 }
 
 // newSentencePieceVocab makes the vocabulary of a parsed model.
@@ -153,9 +152,8 @@ func newSPM(m *spmodel.Model) *spmModel {
 	return sp
 }
 
-// raw returns the bytes a piece stands for in decoded text: the mark as a
-// space, a byte piece as its byte, the unknown piece as its surface and
-// other control pieces as nothing.
+// raw returns the bytes a piece stands for: the mark as a space, a byte
+// piece as its byte, the unknown and control pieces as their names.
 func (sp *spmModel) raw(id int) []byte {
 	p := sp.m.Pieces[id]
 	switch p.Type {
@@ -163,9 +161,9 @@ func (sp *spmModel) raw(id int) []byte {
 		b, _ := spmodel.ByteOf(p.Text)
 		return []byte{b}
 	case spmodel.Control:
-		return []byte{}
+		return []byte(p.Text) // as a byte-level vocabulary's special tokens
 	case spmodel.Unknown:
-		return []byte(sp.m.UnknownSurface)
+		return []byte(p.Text) // shown by name, as control pieces are
 	}
 	return []byte(strings.ReplaceAll(p.Text, "\u2581", " "))
 }
@@ -274,6 +272,41 @@ func (sp *spmModel) cutRule() cutRule {
 	return cutNone
 }
 
+// chain describes the normalizer and the pre-tokenizer for Chain.
+func (sp *spmModel) chain() (normalizer, preTokenizer string) {
+	n := sp.m.Normalizer
+	var parts []string
+	if n.Map.Len() > 0 {
+		parts = append(parts, fmt.Sprintf("SentencePiece %s character map (%d rules)", n.Name, n.Map.Len()))
+	} else {
+		parts = append(parts, "SentencePiece "+n.Name+" (no character map)")
+	}
+	if n.RemoveExtraWhitespaces {
+		parts = append(parts, "extra white space removed")
+	}
+	if n.EscapeWhitespaces {
+		parts = append(parts, "spaces as ▁")
+	}
+	if n.AddDummyPrefix {
+		if sp.m.TreatWhitespaceAsSuffix {
+			parts = append(parts, "a mark appended")
+		} else {
+			parts = append(parts, "a mark prepended")
+		}
+	}
+	pre := "none: the whole text is one merge problem"
+	switch sp.cut {
+	case cutBeforeMarks:
+		pre += ", cut before each mark (no piece spans one)"
+	case cutAfterMarks:
+		pre += ", cut after each mark (no piece spans one)"
+	}
+	if sp.m.ByteFallback {
+		pre += "; characters with no piece as <0xNN> bytes"
+	}
+	return strings.Join(parts, ", "), pre
+}
+
 // spmFamily is Family's name for a SentencePiece model.
 const spmFamily = "sentencepiece-bpe"
 
@@ -341,4 +374,36 @@ type SentencePieceInfo struct {
 	Unused                 int    `json:"unused_pieces"`
 	Byte                   int    `json:"byte_pieces"`
 	Fingerprint            string `json:"fingerprint"` // "sha256:" and the model file's hash
+}
+
+// looksLikeSentencePiece tells a SentencePiece model file from a JSON
+// vocabulary: by its name, or by its first byte, the key of a ModelProto's
+// first piece (field 1, length-delimited), which no JSON text starts with.
+func looksLikeSentencePiece(path string, data []byte) bool {
+	return strings.HasSuffix(path, ".model") || len(data) > 0 && data[0] == 0x0a
+}
+
+// parseSentencePiece makes the vocabulary of the model file data read from
+// path.
+func parseSentencePiece(path string, data []byte) (*Vocab, error) {
+	m, err := spmodel.Parse(path, data)
+	if err != nil {
+		return nil, err
+	}
+	v := newSentencePieceVocab(m)
+	v.name = strings.TrimSuffix(filepath.Base(path), ".model")
+	if v.name == "tokenizer" { // a model folder's file: the folder names it
+		v.name = filepath.Base(filepath.Dir(path))
+	}
+	return v, nil
+}
+
+// hasPair reports whether dir holds a vocabulary pair.
+func hasPair(dir string) bool {
+	for _, p := range pairNames {
+		if fileExists(filepath.Join(dir, p[0])) && fileExists(filepath.Join(dir, p[1])) {
+			return true
+		}
+	}
+	return false
 }

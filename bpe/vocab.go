@@ -132,11 +132,20 @@ func LoadFiles(vocabPath, mergesPath string) (*Vocab, error) {
 		if fileExists(filepath.Join(vocabPath, "tokenizer.json")) {
 			return LoadBundle(vocabPath)
 		}
+		if m := filepath.Join(vocabPath, "tokenizer.model"); fileExists(m) && !hasPair(vocabPath) {
+			return LoadSentencePiece(m) // spm.go
+		}
 		return LoadDir(vocabPath)
 	}
 	vj, err := readVocabFile(vocabPath)
 	if err != nil {
 		return nil, fmt.Errorf("reading vocabulary: %w", err)
+	}
+	if looksLikeSentencePiece(vocabPath, vj) {
+		if mergesPath != "" {
+			return nil, fmt.Errorf("%s is a SentencePiece model, which holds its merges; leave out --merges", vocabPath)
+		}
+		return parseSentencePiece(vocabPath, vj)
 	}
 	if looksLikeBundle(vj) {
 		if mergesPath != "" {
