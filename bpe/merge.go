@@ -3,7 +3,6 @@ package bpe
 import (
 	"encoding/binary"
 	"math"
-	"slices"
 )
 
 // state is one worker's scratch space: a word cache and the buffers of the
@@ -44,10 +43,8 @@ type state struct {
 	spmIDs     []uint32
 	spmCounted []uint32
 	spmOut     []uint32
-	// for long pre-tokens
-	next, prev []int32
-	heap       []uint64
-	buckets    map[uint32][]int32
+	cells      []uint32 // mergeLong's cells
+	tree       []uint32 // and its minTree's nodes
 }
 
 const (
@@ -292,162 +289,289 @@ func (s *state) mergeShort(p []byte) []uint32 {
 	return s.out
 }
 
-// mergeLong applies the merges to a long pre-token in O(n log n). The
-// symbols form a linked list; the mergeable pairs wait in one bucket per
-// rank, and a min-heap holds the ranks that have a bucket. The lowest rank's
-// bucket is worked through leftmost first, as a heap of single pairs would
-// order it, but a long run of one pair costs a sort instead of a heap
-// operation per pair. A learned merge list never makes a pair of its own
-// rank or a lower one by a merge; ranks shared by several tokens (equal
-// SentencePiece scores) and lists that are not learned can: then the
-// bucket, with the new pair, is put back, and the lowest rank's leftmost
-// pair goes first again. Entries made stale by a merge are dropped when
-// reached.
+// mergeLong applies the merges to a long pre-token in O(n log n) time and
+// at most 9 bytes of memory per byte of p (8 in cells, at most 1 in the
+// tree), with the same result as mergeShort: the pair of lowest rank merges
+// first, the leftmost on ties.
+//
+// Each starting symbol (one a byte of p, for byte-level vocabularies) has
+// a cell of two words, its symbol and its rank. A
+// token's first cell holds its id and the rank of the pair it starts with
+// the next token (noPair if none); its other cells are dead, and its second
+// and last hold its length, so that both neighbours are found in O(1)
+// without linked lists. A tree of block minima (minTree) finds the lowest
+// rank, leftmost. Once found, a rank's pairs are worked through left to
+// right. A learned merge list never makes a pair of its own rank or a lower
+// one by a merge; ranks shared by several tokens (equal SentencePiece
+// scores) and lists that are not learned can, and such a merge stops the
+// run: the search starts again from the top.
+//
+// A pre-token longer than maxLong (2 GiB), more than a cell can measure, is
+// merged in pieces of maxLong bytes, as if it were several.
 func (s *state) mergeLong(p []byte) []uint32 {
-	if cap(s.syms) < len(p) {
-		s.syms = make([]uint32, 0, len(p))
-		s.out = make([]uint32, 0, len(p))
+	if len(p) <= maxLong {
+		return s.mergeTree(p)
 	}
-	syms := s.initial(s.syms[:0], p)
-	n := len(syms)
-	if n < 2 {
-		s.syms = syms
-		s.out = append(s.out[:0], syms...)
-		return s.out
+	var out []uint32
+	for len(p) > 0 {
+		k := min(len(p), maxLong)
+		out = append(out, s.mergeTree(p[:k])...)
+		p = p[k:]
 	}
-	next, prev := grow32(s.next, n), grow32(s.prev, n)
-	for i := 0; i < n; i++ {
-		next[i], prev[i] = int32(i+1), int32(i-1)
-	}
-	next[n-1] = -1
-	if s.buckets == nil {
-		s.buckets = map[uint32][]int32{}
-	}
-	buckets := s.buckets
-	ranks := s.heap[:0]
-	add := func(r uint32, pos int32) {
-		b, ok := buckets[r]
-		if !ok || len(b) == 0 {
-			ranks = heapPush(ranks, uint64(r))
-		}
-		buckets[r] = append(b, pos)
-	}
-	for i := 0; i+1 < n; i++ {
-		if r, _ := s.rankOf(syms[i], syms[i+1]); r != noRank {
-			add(r, int32(i))
-		}
-	}
-	const dead = math.MaxUint32
-	for len(ranks) > 0 {
-		r := uint32(ranks[0])
-		ranks = heapPop(ranks)
-		bucket := buckets[r]
-		slices.Sort(bucket)
-		k := 0
-		for k < len(bucket) {
-			pos := bucket[k]
-			k++
-			if syms[pos] == dead {
-				continue
-			}
-			nx := next[pos]
-			if nx < 0 {
-				continue
-			}
-			cr, merged := s.rankOf(syms[pos], syms[nx])
-			if cr != r {
-				continue // stale
-			}
-			syms[pos] = merged
-			syms[nx] = dead
-			nn := next[nx]
-			next[pos] = nn
-			lower := false
-			if nn >= 0 {
-				prev[nn] = pos
-				if r2, _ := s.rankOf(merged, syms[nn]); r2 != noRank {
-					add(r2, pos)
-					lower = lower || r2 <= r
-				}
-			}
-			if pv := prev[pos]; pv >= 0 {
-				if r2, _ := s.rankOf(syms[pv], merged); r2 != noRank {
-					add(r2, pv)
-					lower = lower || r2 <= r
-				}
-			}
-			if lower {
-				break
-			}
-		}
-		cur := buckets[r] // bucket and the pairs of rank r that merges made
-		rest := append(cur[:0], cur[k:]...)
-		buckets[r] = rest // an empty bucket keeps its room for the next word
-		if len(rest) > 0 {
-			ranks = heapPush(ranks, uint64(r))
-		}
-	}
-	if len(buckets) > 4096 {
-		clear(buckets)
-	}
-	out := s.out[:0]
-	for i := int32(0); i >= 0; i = next[i] {
-		out = append(out, syms[i])
-	}
-	s.syms, s.next, s.prev, s.heap, s.out = syms, next, prev, ranks, out
+	s.out = out
 	return out
 }
 
-func grow32(b []int32, n int) []int32 {
+// maxLong is the longest pre-token that mergeTree takes.
+const maxLong = 1<<31 - 1
+
+// mergeTree is mergeLong for a pre-token of at most maxLong bytes.
+func (s *state) mergeTree(p []byte) []uint32 {
+	c := s.cells
+	if cap(c) < 2*len(p) {
+		c = make([]uint32, 0, 2*len(p))
+	}
+	syms := s.initial(c[:0], p)
+	n := len(syms)
+	if n < 2 {
+		s.out = append(s.out[:0], syms...)
+		return s.out
+	}
+	if cap(syms) < 2*n {
+		c = make([]uint32, 2*n)
+		copy(c, syms)
+	} else {
+		c = syms[:2*n]
+	}
+	for i := n - 1; i > 0; i-- {
+		c[2*i] = c[i] // spread the symbols into their cells, from the end
+	}
+	for i := 0; i+1 < n; i++ {
+		c[2*i+1] = s.pairRank(c[2*i], c[2*i+2])
+	}
+	c[2*n-1] = noPair
+	t := newMinTree(s.tree, c)
+	// next and prev return the first cell of the token after or before the
+	// one that starts at i, or -1.
+	next := func(i int) int {
+		j := i + 1
+		if j < n && c[2*j+1] == deadCell {
+			j = i + int(c[2*j])
+		}
+		if j >= n {
+			return -1
+		}
+		return j
+	}
+	prev := func(i int) int {
+		j := i - 1
+		if j >= 0 && c[2*j+1] == deadCell {
+			j = i - int(c[2*j])
+		}
+		return j
+	}
+	r, pos := t.min()
+	for r < noPair {
+		nx := next(pos)
+		_, merged := s.rankOf(c[2*pos], c[2*nx])
+		nn := next(nx)
+		end := nn // the new token is cells pos to end
+		if end < 0 {
+			end = n
+		}
+		length := uint32(end - pos)
+		c[2*nx], c[2*pos+2], c[2*end-2] = length, length, length
+		c[2*pos] = merged
+		c[2*nx+1] = deadCell // the cells pos+1 and end-1 are nx or were dead
+		lower := false
+		r2 := uint32(noPair)
+		if nn >= 0 {
+			r2 = s.pairRank(merged, c[2*nn])
+			lower = r2 <= r
+		}
+		t.set(pos, r2)
+		if pv := prev(pos); pv >= 0 {
+			r3 := s.pairRank(c[2*pv], merged)
+			t.set(pv, r3)
+			lower = lower || r3 <= r
+		}
+		if lower {
+			r, pos = t.min()
+			continue
+		}
+		b := pos >> blockBits
+		if pos = t.find(b, end, r); pos < 0 {
+			r, pos = t.after(b, r)
+		}
+	}
+	w := 0
+	for i := 0; i >= 0; i = next(i) {
+		c[w] = c[2*i] // w <= i: this overwrites only cells already passed
+		w++
+	}
+	if n <= keepLong {
+		s.cells, s.tree = c, t.nodes
+	} else {
+		// Give a huge pre-token's room back once the caller is done with it.
+		s.cells, s.tree = nil, nil
+	}
+	return c[:w]
+}
+
+// pairRank is rankOf's rank, with noPair for none.
+func (s *state) pairRank(a, b uint32) uint32 {
+	if r, _ := s.rankOf(a, b); r != noRank {
+		return r
+	}
+	return noPair
+}
+
+const (
+	// deadCell, as a cell's rank, marks a cell that is not a token's
+	// first; noPair, a token's first cell whose pair with the next token
+	// has no merge (or that is the last). The symbol word is then free for
+	// the length, whatever ids a model uses (SentencePiece's noSym).
+	deadCell = noRank
+	noPair   = noRank - 1
+	// keepLong is the longest pre-token whose buffers a state keeps for
+	// the next one.
+	keepLong = 1 << 16
+)
+
+func growU32(b []uint32, n int) []uint32 {
 	if cap(b) < n {
-		return make([]int32, n)
+		return make([]uint32, n)
 	}
 	return b[:n]
 }
 
-// A binary min-heap of uint64 keys.
+// blockBits sets the leaves of minTree: blocks of 16 cells.
+const blockBits = 4
 
-func siftDown(h []uint64, i int) {
-	n := len(h)
-	x := h[i]
+// minTree is a binary tree over the ranks of mergeLong's cells: each leaf
+// at most the lowest rank of its block (a rank that grew is not
+// propagated; a search mends the leaf when it meets it), each node above
+// exactly the lower of its children.
+type minTree struct {
+	nodes  []uint32 // nodes[1] is the root, nodes[leaves+b] block b's leaf
+	leaves int
+	cells  []uint32
+	n      int // cells
+}
+
+func newMinTree(buf []uint32, cells []uint32) minTree {
+	t := minTree{cells: cells, n: len(cells) / 2, leaves: 1}
+	for t.leaves<<blockBits < t.n {
+		t.leaves *= 2
+	}
+	t.nodes = growU32(buf, 2*t.leaves)
+	for b := range t.leaves {
+		t.nodes[t.leaves+b] = t.blockMin(b)
+	}
+	for k := t.leaves - 1; k >= 1; k-- {
+		t.nodes[k] = min(t.nodes[2*k], t.nodes[2*k+1])
+	}
+	return t
+}
+
+// block returns the ranks of block b's cells, every other word from the
+// first.
+func (t *minTree) block(b int) []uint32 {
+	lo := min(b<<blockBits, t.n)
+	hi := min(lo+1<<blockBits, t.n)
+	return t.cells[2*lo : 2*hi]
+}
+
+// blockMin returns the lowest rank in block b.
+func (t *minTree) blockMin(b int) uint32 {
+	m := uint32(noRank)
+	c := t.block(b)
+	for j := 1; j < len(c); j += 2 {
+		m = min(m, c[j])
+	}
+	return m
+}
+
+// set sets the rank of cell i, lowering its leaf and their ancestors if
+// needed.
+func (t *minTree) set(i int, r uint32) {
+	t.cells[2*i+1] = r
+	for k := t.leaves + i>>blockBits; k >= 1 && t.nodes[k] > r; k >>= 1 {
+		t.nodes[k] = r
+	}
+}
+
+// find returns the first cell of block b from cell i on with rank r, or -1.
+func (t *minTree) find(b, i int, r uint32) int {
+	lo := b << blockBits
+	c := t.block(b)
+	for j := 2*(i-lo) + 1; j < len(c); j += 2 {
+		if c[j] == r {
+			return lo + j/2
+		}
+	}
+	return -1
+}
+
+// mend sets block b's leaf to the block's lowest rank and updates its
+// ancestors.
+func (t *minTree) mend(b int) {
+	k := t.leaves + b
+	t.nodes[k] = t.blockMin(b)
+	for k > 1 {
+		k >>= 1
+		m := min(t.nodes[2*k], t.nodes[2*k+1])
+		if t.nodes[k] == m {
+			return
+		}
+		t.nodes[k] = m
+	}
+}
+
+// down returns the leftmost leaf under node k that holds k's rank.
+func (t *minTree) down(k int) int {
+	r := t.nodes[k]
+	for k < t.leaves {
+		k *= 2
+		if t.nodes[k] != r {
+			k++
+		}
+	}
+	return k - t.leaves
+}
+
+// min returns the lowest rank and its leftmost cell, or noRank.
+func (t *minTree) min() (uint32, int) {
 	for {
-		c := 2*i + 1
-		if c >= n {
-			break
+		r := t.nodes[1]
+		if r >= noPair {
+			return noRank, -1
 		}
-		if c+1 < n && h[c+1] < h[c] {
-			c++
+		b := t.down(1)
+		if i := t.find(b, b<<blockBits, r); i >= 0 {
+			return r, i
 		}
-		if h[c] >= x {
-			break
-		}
-		h[i] = h[c]
-		i = c
+		t.mend(b) // the leaf was below its block
 	}
-	h[i] = x
 }
 
-func heapPop(h []uint64) []uint64 {
-	last := len(h) - 1
-	h[0] = h[last]
-	h = h[:last]
-	if last > 0 {
-		siftDown(h, 0)
-	}
-	return h
-}
-
-func heapPush(h []uint64, x uint64) []uint64 {
-	h = append(h, x)
-	i := len(h) - 1
-	for i > 0 {
-		parent := (i - 1) / 2
-		if h[parent] <= x {
-			break
+// after is find for the blocks after b, when b has no rank r left and no
+// cell before it has r nor any cell a lower rank: it mends b and returns
+// the next cell with rank r, or else what min returns.
+func (t *minTree) after(b int, r uint32) (uint32, int) {
+	for {
+		t.mend(b)
+		// Climb until a right sibling holds r, then go down it.
+		k := t.leaves + b
+		for k&1 == 1 || t.nodes[k+1] != r {
+			if k >>= 1; k == 0 {
+				return t.min()
+			}
 		}
-		h[i] = h[parent]
-		i = parent
+		b = t.down(k + 1)
+		if i := t.find(b, b<<blockBits, r); i >= 0 {
+			return r, i
+		}
+		// the leaf was below its block
 	}
-	h[i] = x
-	return h
 }
