@@ -94,14 +94,35 @@ type Report struct {
 }
 
 // Price prices text, the document source (record), under every pricer.
-// A document that cannot be rationed under one target fails the whole
-// document, naming the target.
+// The text is encoded once per distinct vocabulary (bpe.Interior), however
+// many targets share it: each target's frame costs only the text's edges,
+// and targets with the same frame share the count. A document that cannot
+// be rationed under one target fails the whole document, naming the
+// target.
 func Price(ps []*Pricer, source string, record int, text []byte) (Doc, error) {
 	d := Doc{Source: source, Record: record, Targets: make([]Line, len(ps))}
 	name := report.Where(source, record)
+	interiors := map[*bpe.Encoder]bpe.Interior{}
+	type framed struct {
+		enc           *bpe.Encoder
+		before, after string
+	}
+	counted := map[framed]int{}
 	for i, p := range ps {
 		l := Line{Target: p.Target.Name}
-		in := request.InputTokens(p.Enc, p.Frame, name, text, p.Overhead)
+		before, after := p.Frame.Parts(name)
+		key := framed{p.Enc, string(before), string(after)}
+		n, ok := counted[key]
+		if !ok {
+			in, ok := interiors[p.Enc]
+			if !ok {
+				in = p.Enc.Interior(text)
+				interiors[p.Enc] = in
+			}
+			n = in.Count(before, after)
+			counted[key] = n
+		}
+		in := n + p.Overhead
 		out := p.Answer.For(in)
 		if in+out <= p.Window || !p.Ration {
 			l.InputTokens, l.OutputTokens, l.Requests = in, out, 1

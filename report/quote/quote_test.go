@@ -80,3 +80,38 @@ func TestQuoteRation(t *testing.T) {
 		t.Fatalf("cost %s, want %s", l.Cost, want)
 	}
 }
+
+// Targets that share a vocabulary but not a frame get each their own
+// frame's count, from one encoding of the document.
+func TestPriceFramesShareOneEncoding(t *testing.T) {
+	enc := reporttest.Encoder(t)
+	ts, err := request.ParseTargets("m.toml", []byte(reporttest.DemoTargets))
+	if err != nil {
+		t.Fatal(err)
+	}
+	small, _ := ts.Lookup("small")
+	var frames []*request.Frame
+	for _, f := range []string{"Summarise {{source}}:\n{{document}}\nAnswer:", "{{document}}", "Q:{{document}}!"} {
+		fr, err := request.ParseFrame("f.txt", []byte(f))
+		if err != nil {
+			t.Fatal(err)
+		}
+		frames = append(frames, fr)
+	}
+	frames = append(frames, nil)
+	var ps []*Pricer
+	for k, fr := range frames {
+		ps = append(ps, &Pricer{Target: small, Enc: enc, Frame: fr, Window: 1 << 20, Answer: small.Answer, Overhead: k})
+	}
+	for _, doc := range []string{"Replace the swivel on VS-4 before the spring cruise.", "one", "", "  lead and trail  ", "\xff\xfe word \xc3"} {
+		d, err := Price(ps, "a.txt", 0, []byte(doc))
+		if err != nil {
+			t.Fatal(err)
+		}
+		for k, p := range ps {
+			if want := request.InputTokens(enc, p.Frame, "a.txt", []byte(doc), p.Overhead); d.Targets[k].InputTokens != want {
+				t.Fatalf("%q, frame %d: %d input tokens, want %d", doc, k, d.Targets[k].InputTokens, want)
+			}
+		}
+	}
+}
