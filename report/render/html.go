@@ -22,6 +22,11 @@ var palette = struct {
 	Ink, Muted, Paper, Card, Rule, Bar, Over, Mark, Mean string
 	Shade                                                [3]string
 	Split                                                string
+	// Bytes shades a token by the bytes it covers: Bytes[0] for one byte
+	// (darkest: text that costs a token a byte), then two or three, four
+	// or five, and six or more (lightest).
+	Bytes [4]string
+	Edge  string // the thin rule at the end of each token
 }{
 	Ink:   "#1c2230",
 	Muted: "#4f5869",
@@ -34,6 +39,8 @@ var palette = struct {
 	Mean:  "#5c4a8a",
 	Shade: [3]string{"#c9def0", "#f5d3a8", "#cde6c0"},
 	Split: "#6b3590",
+	Bytes: [4]string{"#86a3c8", "#afc4de", "#d3dfee", "#eef3f9"},
+	Edge:  "#53637a",
 }
 
 // css is the page's style sheet. It names no fonts to fetch and no url().
@@ -42,6 +49,8 @@ var css = strings.NewReplacer(
 	"$rule", palette.Rule, "$bar", palette.Bar, "$over", palette.Over, "$mark", palette.Mark,
 	"$mean", palette.Mean, "$shade0", palette.Shade[0], "$shade1", palette.Shade[1],
 	"$shade2", palette.Shade[2], "$split", palette.Split,
+	"$bytes0", palette.Bytes[0], "$bytes1", palette.Bytes[1], "$bytes2", palette.Bytes[2], "$bytes3", palette.Bytes[3],
+	"$edge", palette.Edge,
 ).Replace(`
 :root { color-scheme: light; }
 * { box-sizing: border-box; }
@@ -60,10 +69,10 @@ dl.facts div { display: flex; gap: 6px; }
 dl.facts dt { color: $muted; }
 dl.facts dd { margin: 0; font-weight: 600; }
 section { background: $card; border: 1px solid $rule; border-radius: 6px; padding: 14px 16px; margin: 14px 0; }
-.cards { display: grid; grid-template-columns: repeat(auto-fill, minmax(110px, 1fr)); gap: 8px; margin: 6px 0 12px; }
+.cards { display: flex; flex-wrap: wrap; gap: 8px; margin: 6px 0 12px; }
 .card { border: 1px solid $rule; border-left: 4px solid $bar; border-radius: 4px; padding: 6px 10px; background: $card; }
 .card.warn { border-left-color: $over; }
-.card .v { display: block; font-size: 1.35em; font-weight: 700; font-variant-numeric: tabular-nums; }
+.card .v { display: block; font-size: 1.35em; font-weight: 700; font-variant-numeric: tabular-nums; white-space: nowrap; }
 .card .l { display: block; color: $muted; font-size: 0.85em; }
 figure { margin: 8px 0 14px; overflow-x: auto; }
 svg.chart { width: 100%; min-width: 540px; height: auto; display: block; font-family: system-ui, sans-serif; }
@@ -86,12 +95,17 @@ caption { text-align: left; font-weight: 600; padding: 4px 0; }
 th, td { padding: 3px 10px 3px 0; border-bottom: 1px solid $rule; text-align: left; vertical-align: top; }
 th { color: $muted; font-weight: 600; }
 td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; }
-td.src { overflow-wrap: anywhere; }
+td.num, td.src { white-space: nowrap; }
+td.warn { color: $over; font-weight: 600; white-space: nowrap; }
+code.flag { font: 0.92em ui-monospace, "DejaVu Sans Mono", monospace; white-space: nowrap; }
 ul.notes { padding-left: 20px; }
 ul.notes li { margin: 4px 0; }
 .pieces { white-space: pre-wrap; overflow-wrap: anywhere; font: 14px/1.9 ui-monospace, "Cascadia Mono", "DejaVu Sans Mono", monospace; border: 1px solid $rule; border-radius: 4px; padding: 10px; max-height: 34em; overflow-y: auto; background: $card; }
-.p { border-radius: 2px; box-shadow: inset -1px 0 0 $card; -webkit-print-color-adjust: exact; print-color-adjust: exact; }
-.p0 { background: $shade0; } .p1 { background: $shade1; } .p2 { background: $shade2; }
+.p { box-shadow: inset -1px 0 0 $edge; -webkit-print-color-adjust: exact; print-color-adjust: exact; }
+.b1 { background: $bytes0; } .b2 { background: $bytes1; } .b3 { background: $bytes2; } .b4 { background: $bytes3; }
+.b1 .nl, .b2 .nl { color: $ink; }
+.legend .key { display: inline-block; margin-right: 10px; white-space: nowrap; }
+.legend .key .p { display: inline-block; min-width: 2.2em; text-align: center; }
 .p.multi { text-decoration: underline dotted $split 1px; text-underline-offset: 4px; }
 .nl { color: $muted; font-size: 0.8em; }
 .legend { font-size: 0.9em; color: $muted; }
@@ -102,7 +116,7 @@ footer { color: $muted; font-size: 0.85em; margin-top: 20px; }
   body { font-size: 14px; }
   main { padding: 10px 8px 30px; }
   section { padding: 10px; }
-  .cards { grid-template-columns: repeat(2, 1fr); }
+  .card { min-width: 40%; }
 }
 @media print {
   body { background: #fff; font-size: 11pt; }
@@ -131,6 +145,7 @@ type Page struct {
 type Fact struct {
 	Label, Value string
 	Warn         bool
+	Exact        string // the exact figure when Value is rounded, shown on hover
 }
 
 // section is one part of a page, each part optional.
@@ -156,6 +171,8 @@ type CellView struct {
 	Text string
 	Num  bool
 	Src  bool
+	Warn bool   // a figure that calls for attention (an overflow)
+	Tip  string // the whole text when Text is cut
 }
 
 // tableOf turns a grid into a table view. srcCol is the column holding
@@ -185,6 +202,12 @@ type SampleView struct {
 	Units      []UnitView
 	Cut        bool
 	Summary    string
+	Keys       []ShadeKey // the legend: one key per shade
+}
+
+// ShadeKey is one shade of the legend with the share of tokens it marks.
+type ShadeKey struct {
+	Class, Label, Share string
 }
 
 // unitView is one shaded run: one token, or several tokens that share the
@@ -232,36 +255,37 @@ const pageTemplate = `<!DOCTYPE html>
 <main>
 <header class="top">
 <h1><span class="cmd">morsel {{.Command}}</span> · {{.Title}}</h1>
-{{with .Lead}}<p class="lead">{{.}}</p>{{end}}
+{{with .Lead}}<p class="lead">{{prose .}}</p>{{end}}
 {{with .Facts}}<dl class="facts">{{range .}}<div><dt>{{.Label}}</dt><dd>{{.Value}}</dd></div>{{end}}</dl>{{end}}
 {{with .Sections}}<nav class="toc" aria-label="Contents">{{range .}}<a href="#{{.ID}}">{{.Heading}}</a> {{end}}</nav>{{end}}
 </header>
 {{range .Sections}}
 <section id="{{.ID}}" aria-labelledby="{{.ID}}-h">
 <h2 id="{{.ID}}-h">{{.Heading}}</h2>
-{{with .Intro}}<p class="intro">{{.}}</p>{{end}}
-{{with .Cards}}<div class="cards">{{range .}}<div class="card{{if .Warn}} warn{{end}}"><span class="v">{{.Value}}</span><span class="l">{{.Label}}</span></div>{{end}}</div>{{end}}
+{{with .Intro}}<p class="intro">{{prose .}}</p>{{end}}
+{{with .Cards}}<div class="cards">{{range .}}<div class="card{{if .Warn}} warn{{end}}"><span class="v"{{with .Exact}} title="{{.}}"{{end}}>{{.Value}}</span><span class="l">{{.Label}}</span></div>{{end}}</div>{{end}}
 {{range .Charts}}<figure>{{.}}</figure>
 {{end}}
-{{with .Sample}}<p class="legend">From <strong>{{.Where}}</strong>, chosen as {{.Why}}. Each shaded run is one token (<span class="p p0">one</span><span class="p p1">two</span><span class="p p2">three</span>); hover over a run for its id and size. <span class="p p0 multi">Underlined</span> runs are several tokens that split one character's bytes between them. ↵ marks a line feed inside a token.</p>
+{{with .Sample}}<p class="legend">From <strong>{{.Where}}</strong>, chosen as {{.Why}}. A thin rule ends each token, and its shade says how many bytes of text it covers: the darker, the fewer, so dark stretches are where the text costs the most tokens. Hover over a token for its id and size. <span class="p b2 multi">Underlined</span> runs are several tokens that split one character's bytes between them. ↵ marks a line feed inside a token.</p>
+<p class="legend" aria-label="Shades by bytes per token">{{range .Keys}}<span class="key"><span class="p {{.Class}}">{{.Label}}</span> {{.Share}}</span>{{end}}</p>
 <p class="legend">{{.Summary}}</p>
 <div class="pieces" role="region" aria-label="Sample document split into tokens" tabindex="0">{{range .Units}}{{template "unit" .}}{{end}}</div>
 {{if .Cut}}<p class="muted">The document goes on past this point; the page shows its start only.</p>{{end}}
 {{end}}
 {{with .Words}}<div class="tablewrap"><table class="split">{{with .Title}}<caption>{{.}}</caption>{{end}}
 <thead><tr>{{range .Header}}<th scope="col"{{if .Num}} class="num"{{end}}>{{.Text}}</th>{{end}}</tr></thead>
-<tbody>{{range .Rows}}<tr>{{range .Cells}}<td{{if .Num}} class="num"{{end}}>{{.Text}}</td>{{end}}<td>{{range $i, $p := .Pieces}}<span class="p p{{shade $i}}">{{$p}}</span>{{end}}</td>{{range .After}}<td{{if .Num}} class="num"{{end}}>{{.Text}}</td>{{end}}</tr>
+<tbody>{{range .Rows}}<tr>{{range .Cells}}<td{{if .Num}} class="num"{{end}}>{{.Text}}</td>{{end}}<td>{{range .Pieces}}<span class="p {{shade .}}">{{.}}</span>{{end}}</td>{{range .After}}<td{{if .Num}} class="num"{{end}}>{{.Text}}</td>{{end}}</tr>
 {{end}}</tbody></table></div>
 {{end}}
 {{range .Tables}}<div class="tablewrap"><table>{{with .Title}}<caption>{{.}}</caption>{{end}}
 <thead><tr>{{range .Header}}<th scope="col"{{if .Num}} class="num"{{end}}>{{.Text}}</th>{{end}}</tr></thead>
-<tbody>{{range .Rows}}<tr>{{range .}}<td{{if .Num}} class="num"{{else if .Src}} class="src"{{end}}>{{.Text}}</td>{{end}}</tr>
-{{end}}</tbody></table>{{range .Notes}}<p class="muted">{{.}}</p>{{end}}</div>
+<tbody>{{range .Rows}}<tr>{{range .}}<td{{if .Warn}} class="warn"{{else if .Num}} class="num"{{else if .Src}} class="src"{{end}}{{with .Tip}} title="{{.}}"{{end}}>{{.Text}}</td>{{end}}</tr>
+{{end}}</tbody></table>{{range .Notes}}<p class="muted">{{prose .}}</p>{{end}}</div>
 {{end}}
-{{with .Notes}}<ul class="notes">{{range .}}<li>{{.}}</li>{{end}}</ul>{{end}}
+{{with .Notes}}<ul class="notes">{{range .}}<li>{{prose .}}</li>{{end}}</ul>{{end}}
 </section>
 {{end}}
-{{with .Notes}}<section id="notes" aria-labelledby="notes-h"><h2 id="notes-h">Notes</h2><ul class="notes">{{range .}}<li>{{.}}</li>{{end}}</ul></section>{{end}}
+{{with .Notes}}<section id="notes" aria-labelledby="notes-h"><h2 id="notes-h">Notes</h2><ul class="notes">{{range .}}<li>{{prose .}}</li>{{end}}</ul></section>{{end}}
 <footer>Written by morsel. Token counts are exact for the vocabulary named at the top; costs, where shown, are estimates at the rates given. This page loads nothing from the network and runs no script.</footer>
 </main>
 </body>
@@ -269,11 +293,13 @@ const pageTemplate = `<!DOCTYPE html>
 `
 
 var pageTmpl = template.Must(template.New("page").Funcs(template.FuncMap{
-	"shade": func(i int) int { return i % 2 },
+	"shade": func(piece string) string { return BytesClass(readableBytes(piece)) },
+	"prose": prose,
 }).Parse(pieceTemplate + pageTemplate))
 
 // writePage renders p.
 func WritePage(w io.Writer, p *Page) error {
+	fitPage(p, ViewOf(w))
 	bw := bufio.NewWriter(w)
 	data := struct {
 		*Page

@@ -49,6 +49,9 @@ func TestContrast(t *testing.T) {
 		{"muted on page", p.Muted, p.Paper}, {"muted on card", p.Muted, p.Card},
 		{"link on page", p.Bar, p.Paper}, {"window label", p.Mark, p.Card}, {"spread label", p.Mean, p.Card},
 		{"piece 0", p.Ink, p.Shade[0]}, {"piece 1", p.Ink, p.Shade[1]}, {"piece 2", p.Ink, p.Shade[2]},
+		{"1-byte token", p.Ink, p.Bytes[0]}, {"2-3 byte token", p.Ink, p.Bytes[1]}, {"4-5 byte token", p.Ink, p.Bytes[2]}, {"6+ byte token", p.Ink, p.Bytes[3]},
+		// The line-feed mark takes the ink colour on the two darkest shades (.b1 .nl, .b2 .nl).
+		{"line-feed mark on 4-5 byte token", p.Muted, p.Bytes[2]}, {"line-feed mark on 6+ byte token", p.Muted, p.Bytes[3]},
 		{"line-feed mark on piece", p.Muted, p.Shade[1]},
 	}
 	for _, pr := range pairs {

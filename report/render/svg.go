@@ -5,6 +5,7 @@ import (
 	"html"
 	"html/template"
 	"math"
+	"morsel/internal/screen"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -237,7 +238,7 @@ func (c *BarList) SVG() template.HTML {
 			cls += " " + r.Class
 		}
 		fmt.Fprintf(&b, `<g><title>%s</title>`, esc(r.Tip))
-		fmt.Fprintf(&b, `<text class="rowlabel" x="%s" y="%s" text-anchor="end">%s</text>`, num(left-8), num(y+rowH/2+4), esc(clip(strings.TrimPrefix(r.Label, dir), 38)))
+		fmt.Fprintf(&b, `<text class="rowlabel" x="%s" y="%s" text-anchor="end">%s</text>`, num(left-8), num(y+rowH/2+4), esc(screen.CutMiddle(strings.TrimPrefix(r.Label, dir), rowLabelColumns)))
 		fmt.Fprintf(&b, `<rect class="%s" x="%s" y="%s" width="%s" height="%s"/>`, esc(cls), num(left), num(y+4), num(math.Max(x(r.Value)-left, 0)), num(rowH-8))
 		fmt.Fprintf(&b, `<text class="val" x="%s" y="%s">%s</text>`, num(x(r.Value)+5), num(y+rowH/2+4), esc(r.Text))
 		b.WriteString(`</g>`)
@@ -245,7 +246,8 @@ func (c *BarList) SVG() template.HTML {
 	fmt.Fprintf(&b, `<line class="axis" x1="%s" x2="%s" y1="%s" y2="%s"/>`, num(left), num(left), num(top-4), num(base))
 	for _, m := range c.Marks {
 		fmt.Fprintf(&b, `<line class="mark %s" x1="%s" x2="%s" y1="%s" y2="%s"/>`, esc(m.Class), num(x(m.At)), num(x(m.At)), num(top-10), num(base))
-		fmt.Fprintf(&b, `<text class="marklabel %s" x="%s" y="%s" text-anchor="middle">%s</text>`, esc(m.Class), num(x(m.At)), num(top-14), esc(m.Label))
+		lx, anchor := markLabelAt(x(m.At), m.Label, left, w)
+		fmt.Fprintf(&b, `<text class="marklabel %s" x="%s" y="%s" text-anchor="%s">%s</text>`, esc(m.Class), num(lx), num(top-14), anchor, esc(m.Label))
 	}
 	fmt.Fprintf(&b, `<text class="alabel" x="%s" y="%s" text-anchor="middle">%s</text>`, num(left+pw/2), num(h-10), esc(c.XLabel))
 	if c.YLabel != "" {
@@ -254,6 +256,29 @@ func (c *BarList) SVG() template.HTML {
 	b.WriteString(`</svg>`)
 	return template.HTML(b.String())
 }
+
+// rowLabelColumns is the most columns of a bar's label: about 210 px at
+// the labels' 11 px, inside the 242 px left of the bars.
+const rowLabelColumns = 34
+
+// markLabelAt returns where a mark's label goes on the line above the
+// bars: centred on the mark, unless it would reach left of the bars (over
+// the row labels' heading) or past the chart's edge, in which case it
+// starts just right of the mark, or ends just left of it.
+func markLabelAt(x float64, label string, left, width float64) (float64, string) {
+	half := labelPixels(label) / 2
+	switch {
+	case x-half < left:
+		return x + 4, "start"
+	case x+half > width-4:
+		return x - 4, "end"
+	}
+	return x, "middle"
+}
+
+// labelPixels estimates the width of a 12 px semibold label: 7 px a
+// column, a wide character two columns.
+func labelPixels(s string) float64 { return 7 * float64(screen.Width(s)) }
 
 // clip shortens s to at most n characters, keeping its end (where file
 // names differ) behind an ellipsis.

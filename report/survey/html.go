@@ -62,7 +62,7 @@ func WriteHTML(w io.Writer, s *Report, sample *Sample, rows int) error {
 	if rows > 0 && len(s.Documents) > rows {
 		docs.Notes = []string{fmt.Sprintf("%s more documents are not listed here; --rows 0 lists all of them, and --format csv or json gives every row.", render.Num(len(s.Documents)-rows))}
 	}
-	p.Sections = append(p.Sections, render.Section{ID: "documents", Heading: "Documents", Tables: []render.TableView{render.TableOf(docs, 0)}})
+	p.Sections = append(p.Sections, render.Section{ID: "documents", Heading: "Documents", Tables: []render.TableView{markOverWindow(render.TableOf(docs, 0), s)}})
 	if len(s.Skipped) > 0 {
 		p.Sections = append(p.Sections, render.SkipSection(render.ViewOf(w), s.Skipped))
 	}
@@ -151,4 +151,22 @@ func largestChart(s *Report) *render.BarList {
 		c.Desc += fmt.Sprintf(" A line marks the %s-token window.", render.Num(win))
 	}
 	return c
+}
+
+// markOverWindow adds a column to the documents table that marks, in
+// words, each document whose tokens alone exceed the window.
+func markOverWindow(t render.TableView, s *Report) render.TableView {
+	win := s.Vocabulary.Window
+	if win <= 0 {
+		return t
+	}
+	t.Header = append(t.Header, render.CellView{Text: fmt.Sprintf("%s-token window", render.Num(win))})
+	for i := range t.Rows {
+		c := render.CellView{}
+		if d := s.Documents[i]; d.Tokens > win {
+			c = render.CellView{Text: "over by " + render.Num(d.Tokens-win), Warn: true}
+		}
+		t.Rows[i] = append(t.Rows[i], c)
+	}
+	return t
 }

@@ -204,12 +204,15 @@ func sampleViewOf(s *Sample) *render.SampleView {
 	v := &render.SampleView{Where: report.Where(s.Source, s.Record), Why: s.Why, Cut: s.Cut}
 	text := s.Text
 	start, first := 0, 0
+	counts := map[string]int{}
 	for i, p := range s.Pieces {
 		if p.End < len(text) && !utf8.RuneStart(text[p.End]) {
 			continue
 		}
-		u := render.UnitView{Class: fmt.Sprintf("p p%d", len(v.Units)%3)}
 		group := s.Pieces[first : i+1]
+		class := render.BytesClass((p.End - start) / len(group))
+		u := render.UnitView{Class: "p " + class}
+		counts[class] += len(group)
 		if len(group) == 1 {
 			u.Tip = fmt.Sprintf("token %d · %d byte(s)", p.ID, p.End-p.Start)
 		} else {
@@ -223,6 +226,9 @@ func sampleViewOf(s *Sample) *render.SampleView {
 		u.Parts = render.SplitLines(strings.ToValidUTF8(string(text[start:p.End]), "\uFFFD"))
 		v.Units = append(v.Units, u)
 		start, first = p.End, i+1
+	}
+	for _, b := range render.BytesClasses {
+		v.Keys = append(v.Keys, render.ShadeKey{Class: b.Class, Label: b.Label, Share: render.Percent(float64(counts[b.Class]), float64(len(s.Pieces)))})
 	}
 	w := s.Weight
 	shown := fmt.Sprintf("%s tokens in the %s byte(s) shown", render.Num(len(s.Pieces)), render.Num(len(text)))
