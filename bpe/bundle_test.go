@@ -317,3 +317,36 @@ func TestSplitPatternHostile(t *testing.T) {
 		t.Fatalf("Err = %v, want ErrPatternTimeout", st.Err)
 	}
 }
+
+// Pieces gives the ids of Encode, with spans of the original text that
+// follow each other and cover it, under every test bundle.
+func TestBundlePieces(t *testing.T) {
+	texts := corpusTexts(t)
+	texts["hostile"] = []byte("  x\xff\xfe  \u2581 é 🧬 <think>a</think>")
+	for _, name := range bundleGoldenNames(t) {
+		v, _ := loadTestBundle(t, name)
+		enc, _ := NewEncoder(v, Options{})
+		for tn, text := range texts {
+			var ids []int
+			at := 0
+			enc.Pieces(text, func(id, a, b int) {
+				if a != at || b < a || b > len(text) {
+					t.Fatalf("%s, %s: token %d spans [%d,%d) after %d", name, tn, id, a, b, at)
+				}
+				ids = append(ids, id)
+				at = b
+			})
+			if at != len(text) || !eqInts(ids, enc.Encode(text)) {
+				t.Fatalf("%s, %s: spans end at %d of %d; ids equal Encode: %v", name, tn, at, len(text), eqInts(ids, enc.Encode(text)))
+			}
+		}
+	}
+	v, _ := loadTestBundle(t, "metaspace-32k")
+	enc, _ := NewEncoder(v, Options{})
+	var got []string
+	text := []byte("a 🧬")
+	enc.Pieces(text, func(id, a, b int) { got = append(got, string(text[a:b])) })
+	if strings.Join(got, "|") != "a| |\xf0|\x9f|\xa7|\xac" {
+		t.Errorf("pieces %q", got)
+	}
+}

@@ -423,3 +423,43 @@ func keepErr(st *Stats, err error) {
 		st.Err = err
 	}
 }
+
+// Pieces calls fn with every token of text, in order, and the span of text
+// it stands for; the spans follow each other and cover the text. Under a
+// bundle whose pipeline changes the text, a span is that of the original
+// bytes the token came from (with any text the pipeline dropped after
+// it): a token for something the pipeline added (a marker put before the
+// text) has an empty span.
+func (e *Encoder) Pieces(text []byte, fn func(id, start, end int)) {
+	if e.v.pipe == nil {
+		at := 0
+		for _, id := range e.Encode(text) {
+			t, _ := e.v.Token(id)
+			end := min(at+len(t), len(text))
+			fn(id, at, end)
+			at = end
+		}
+		return
+	}
+	// Each token's span runs to where the next one's starts, so that text
+	// a pipeline dropped (white space a pre-tokenizer removes) joins the
+	// token before it and the spans cover the text.
+	pid, ps, have := 0, 0, false
+	next := func(id, a, _ int) {
+		if have {
+			a = max(a, ps)
+			fn(pid, ps, a)
+			ps = a
+		}
+		pid, have = id, true
+	}
+	s := e.get()
+	defer e.put(s)
+	var st Stats
+	s.mode, s.tokenFn = sinkTokens, next
+	e.runBundle(s, text, &st, func(id uint32, a, b int) { next(int(id), a, b) })
+	s.tokenFn = nil
+	if have {
+		fn(pid, ps, len(text))
+	}
+}

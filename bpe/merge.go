@@ -29,6 +29,7 @@ type state struct {
 	ints       []int
 	u32        []uint32
 	spanFn     func(start, end int, special bool)
+	tokenFn    func(id, start, end int)
 	pieceFn    func(p []byte)
 	cur        int
 	err        error

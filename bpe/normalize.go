@@ -30,8 +30,15 @@ func (s *state) normOut(k int) ([]byte, []int32) {
 	return s.nbuf[k][:0], s.nal[k][:0]
 }
 
-func (s *state) normKeep(k int, b []byte, al []int32) {
+// normKeep keeps slot k's buffers for the next text and returns them, the
+// alignment only when one was asked for (aligned): an empty one would read
+// as asked for to the next normalizer.
+func (s *state) normKeep(k int, b []byte, al []int32, aligned bool) ([]byte, []int32) {
 	s.nbuf[k], s.nal[k] = b, al
+	if !aligned {
+		return b, nil
+	}
+	return b, al
 }
 
 type normSpec struct {
@@ -168,8 +175,7 @@ func (n *nfx) normalize(s *state, src []byte, al []int32) ([]byte, []int32) {
 	out, oal := s.normOut(n.k)
 	if al == nil {
 		out = n.form.Append(out, src...)
-		s.normKeep(n.k, out, nil)
-		return out, nil
+		return s.normKeep(n.k, out, nil, al != nil)
 	}
 	for i := 0; i < len(src); {
 		j := i + n.form.NextBoundary(src[i:], true)
@@ -184,8 +190,7 @@ func (n *nfx) normalize(s *state, src []byte, al []int32) ([]byte, []int32) {
 		i = j
 	}
 	oal = append(oal, al[len(src)])
-	s.normKeep(n.k, out, oal)
-	return out, oal
+	return s.normKeep(n.k, out, oal, al != nil)
 }
 
 // lowercase maps every character to its lower case, as Unicode's full
@@ -236,8 +241,7 @@ func (n *lowercase) normalize(s *state, src []byte, al []int32) ([]byte, []int32
 	if al != nil {
 		oal = append(oal, al[len(src)])
 	}
-	s.normKeep(n.k, out, oal)
-	return out, oal
+	return s.normKeep(n.k, out, oal, al != nil)
 }
 
 // strip removes white space at either end.
@@ -287,8 +291,7 @@ func (n *prepend) normalize(s *state, src []byte, al []int32) ([]byte, []int32) 
 		}
 		oal = append(oal, al...)
 	}
-	s.normKeep(n.k, out, oal)
-	return out, oal
+	return s.normKeep(n.k, out, oal, al != nil)
 }
 
 // replaceString replaces every occurrence of a literal, left to right.
@@ -321,8 +324,7 @@ func (n *replaceString) normalize(s *state, src []byte, al []int32) ([]byte, []i
 	if al != nil {
 		oal = append(oal, al[last:]...)
 	}
-	s.normKeep(n.k, out, oal)
-	return out, oal
+	return s.normKeep(n.k, out, oal, al != nil)
 }
 
 // replaceRegex replaces every match of a regular expression with a
@@ -358,6 +360,5 @@ func (n *replaceRegex) normalize(s *state, src []byte, al []int32) ([]byte, []in
 	if al != nil {
 		oal = append(oal, al[last:]...)
 	}
-	s.normKeep(n.k, out, oal)
-	return out, oal
+	return s.normKeep(n.k, out, oal, al != nil)
 }

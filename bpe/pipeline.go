@@ -32,6 +32,7 @@ const (
 	sinkU32
 	sinkSpans
 	sinkPieces
+	sinkTokens
 )
 
 // sink runs the model on one pre-token.
@@ -45,6 +46,14 @@ func (s *state) sink(p []byte, al []int32) {
 		s.u32 = appendPiece(s, s.u32, p)
 	case sinkPieces:
 		s.pieceFn(p)
+	case sinkTokens:
+		s.u32 = append(s.u32[:0], s.piece(p)...)
+		off := 0
+		for i, id := range s.u32 {
+			n := min(s.unitLen(id, p[off:], i == 0, i == len(s.u32)-1), len(p)-off)
+			s.tokenFn(int(id), int(al[off]), int(al[off+n]))
+			off += n
+		}
 	case sinkSpans:
 		// A piece that covers no original byte (a prepended marker alone)
 		// joins the next one, so that the spans tile the text.
@@ -84,7 +93,7 @@ func (s *state) run(text []byte, honor bool, added func(id uint32, start, end in
 func (s *state) segment(seg []byte, base int, honor bool, added func(id uint32, start, end int)) {
 	p := s.v.pipe
 	var al []int32
-	if s.mode == sinkSpans {
+	if s.mode == sinkSpans || s.mode == sinkTokens {
 		al = s.identity(base, len(seg))
 	}
 	t := seg
@@ -241,4 +250,28 @@ func cutsFor(v *Vocab, p *pipeline) *cutTable {
 		}
 	}
 	return c
+}
+
+// unitLen returns how many bytes of the pre-token, from rest, token id
+// stands for.
+func (s *state) unitLen(id uint32, rest []byte, first, last bool) int {
+	v := s.v
+	m := &v.model
+	switch {
+	case !m.charLevel:
+		return len(v.tokens[id])
+	case m.fallback && v.IsByteFallback(int(id)):
+		return 1
+	case int32(id) == m.unk:
+		_, n := utf8.DecodeRune(rest)
+		return max(n, 1)
+	}
+	sp := v.spell[id]
+	if !first {
+		sp = bytes.TrimPrefix(sp, []byte(m.prefix))
+	}
+	if last {
+		sp = bytes.TrimSuffix(sp, []byte(m.suffix))
+	}
+	return len(sp)
 }

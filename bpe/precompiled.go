@@ -129,6 +129,5 @@ func (n *precompiled) normalize(s *state, src []byte, al []int32) ([]byte, []int
 	if al != nil {
 		oal = append(oal, al[len(src)])
 	}
-	s.normKeep(n.k, out, oal)
-	return out, oal
+	return s.normKeep(n.k, out, oal, al != nil)
 }

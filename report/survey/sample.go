@@ -144,20 +144,22 @@ func (sp *Sampler) Sample() (*Sample, error) {
 	return s, nil
 }
 
-// PiecesOf encodes text and returns its tokens with their byte spans. It
-// fails when the tokens' bytes do not spell text again, which a
-// byte-level vocabulary never does.
+// PiecesOf encodes text and returns its tokens with their byte spans
+// (bpe.Encoder.Pieces). It fails when the spans do not cover text in
+// order, which no vocabulary does.
 func PiecesOf(enc *bpe.Encoder, text []byte) ([]Piece, error) {
-	ids := enc.Encode(text)
-	out := make([]Piece, 0, len(ids))
+	var out []Piece
 	at := 0
-	for _, id := range ids {
-		raw, ok := enc.Vocab().Token(id)
-		if !ok || at+len(raw) > len(text) || string(text[at:at+len(raw)]) != string(raw) {
-			return nil, fmt.Errorf("token %d at byte %d does not match the text", id, at)
+	var bad error
+	enc.Pieces(text, func(id, start, end int) {
+		if bad == nil && (start != at || end < start || end > len(text)) {
+			bad = fmt.Errorf("token %d spans bytes %d to %d, after byte %d", id, start, end, at)
 		}
-		out = append(out, Piece{ID: id, Start: at, End: at + len(raw)})
-		at += len(raw)
+		out = append(out, Piece{ID: id, Start: start, End: end})
+		at = max(at, end)
+	})
+	if bad != nil {
+		return nil, bad
 	}
 	if at != len(text) {
 		return nil, fmt.Errorf("tokens cover %d of %d bytes", at, len(text))
