@@ -350,3 +350,46 @@ func TestBundlePieces(t *testing.T) {
 		t.Errorf("pieces %q", got)
 	}
 }
+
+// Under every test bundle, in both special modes, Split's spans and
+// Pieces' spans tile any text, and Pieces gives Encode's ids.
+func FuzzBundleSpans(f *testing.F) {
+	var encs []*Encoder
+	for _, name := range []string{"metaspace-32k", "words", "precompiled"} {
+		v, _ := loadTestBundle(f, name)
+		for _, m := range []SpecialMode{SpecialsAsText, SpecialsHonor} {
+			e, _ := NewEncoder(v, Options{Specials: m})
+			encs = append(encs, e)
+		}
+	}
+	for _, s := range []string{"  Hello, World 123 [MASK]  x", "\u2581\u2581a \xff <s></s>", "Ａ́ é\r\n\t🧬"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		text := []byte(s)
+		for _, e := range encs {
+			at := 0
+			e.Split(text, func(a, b int, _ bool) {
+				if a != at || b <= a {
+					t.Fatalf("Split: span [%d,%d) after %d", a, b, at)
+				}
+				at = b
+			})
+			if at != len(text) {
+				t.Fatalf("Split spans end at %d of %d", at, len(text))
+			}
+			var ids []int
+			at = 0
+			e.Pieces(text, func(id, a, b int) {
+				if a != at || b < a {
+					t.Fatalf("Pieces: span [%d,%d) after %d", a, b, at)
+				}
+				ids = append(ids, id)
+				at = b
+			})
+			if (len(ids) > 0 && at != len(text)) || !eqInts(ids, e.Encode(text)) {
+				t.Fatalf("Pieces end at %d of %d, or its ids differ from Encode's", at, len(text))
+			}
+		}
+	})
+}

@@ -425,7 +425,8 @@ func keepErr(st *Stats, err error) {
 }
 
 // Pieces calls fn with every token of text, in order, and the span of text
-// it stands for; the spans follow each other and cover the text. Under a
+// it stands for; the spans follow each other and cover the text (unless
+// it has no token: a pipeline may drop a text of white space). Under a
 // bundle whose pipeline changes the text, a span is that of the original
 // bytes the token came from (with any text the pipeline dropped after
 // it): a token for something the pipeline added (a marker put before the
