@@ -27,7 +27,7 @@ into many pieces, and ranks them by the tokens they waste: excess = occurrences 
 A word's pieces are the tokens that spell it where it stands in the text, its leading space
 included; a token shared by two words counts for both.
 
-Beside the ranking it gives tokens per word over the corpus, by script (Latin, Cyrillic,
+Beside the ranking it gives tokens per word (UAX #29 words) over the corpus, by script (Latin, Cyrillic,
 Greek, Arabic, Hebrew, Devanagari, Han, Hiragana and Katakana, Hangul, digits, other) and by
 document, with the share of words that are one token; and the saving: the listed words'
 excess as a share of all tokens, the most that adding them to the vocabulary could save (an
@@ -102,6 +102,6 @@ flag when it reaches --min-pieces.`,
 	fl.Int64Var(&minCount, "min-count", 1, "list words that occur at least this many times")
 	fl.IntVar(&top, "top", 50, "list at most this many words (0: all)")
 	fl.StringVar(&termsFile, "terms", "", "glossary file to check, one term a line")
-	fl.IntVar(&docRows, "doc-rows", 10, "documents in the table of tokens per word (0: all)")
+	fl.IntVar(&docRows, "doc-rows", 10, "documents in the table of tokens per UAX #29 word (0: all)")
 	return c
 }

@@ -19,7 +19,8 @@ func newSurvey(sh *shared) *cobra.Command {
 		Long: `survey walks files, folders (recursively, in name order), glob patterns and - (standard
 input), reads each as plain text, Markdown, code, HTML (visible text), JSON Lines, JSON, CSV
 or TSV (also gzip- or zstd-compressed), and counts every document's bytes, characters,
-words and tokens. A JSON Lines line, JSON array element or CSV row is one document.
+words (as wc -w counts them) and tokens. A JSON Lines line, JSON array element or CSV
+row is one document.
 
 The report gives the totals, the spread of tokens per document (min, median, p90, p99,
 max) with a histogram, a breakdown by file type, the largest documents, and every input or
@@ -70,7 +71,7 @@ be read; the report still covers all the rest.`,
 	}
 	addCorpusFlags(c, &cf)
 	c.Flags().IntVar(&rows, "rows", 50, "per-document rows in the table and html views (0: all)")
-	c.Flags().StringVar(&sampleOf, "sample", "", "with --format html: the document (SOURCE or SOURCE:RECORD) shown split into tokens (default: the one with the most tokens per word)")
+	c.Flags().StringVar(&sampleOf, "sample", "", "with --format html: the document (SOURCE or SOURCE:RECORD) shown split into tokens (default: the one with the most tokens per wc -w word)")
 	return c
 }
 

@@ -52,7 +52,7 @@ func WriteHTML(w io.Writer, r *Report, docRows int) error {
 
 	if len(r.Fertility.ByScript) > 0 {
 		p.Sections = append(p.Sections, render.Section{
-			ID: "scripts", Heading: "Tokens per word by script",
+			ID: "scripts", Heading: "Tokens per UAX #29 word, by script",
 			Intro:  "How many tokens a word takes on average, by the script it is written in. A vocabulary learnt mostly from one script spends more tokens on the others.",
 			Charts: []template.HTML{scriptChart(r).SVG()},
 			Tables: []render.TableView{render.TableOf(scriptGrid(r), -1), render.TableOf(docFertilityGrid(r, docRows), 0)},
@@ -121,12 +121,12 @@ func excessChart(r *Report) *render.BarList {
 }
 
 func scriptChart(r *Report) *render.BarList {
-	c := &render.BarList{YLabel: "script", ID: "script-chart", Title: "Tokens per word, by script", XLabel: "tokens per word", Decimals: true}
+	c := &render.BarList{YLabel: "script", ID: "script-chart", Title: "Tokens per UAX #29 word, by script", XLabel: "tokens per UAX #29 word", Decimals: true}
 	for _, s := range r.Fertility.ByScript {
 		c.Rows = append(c.Rows, render.BarRow{Label: s.Script, Value: s.Fertility, Text: fmt.Sprintf("%.2f", s.Fertility),
 			Tip: fmt.Sprintf("%s: %s words, %s tokens, %.2f tokens per word", s.Script, render.Num(s.Words), render.Num(s.Tokens), s.Fertility)})
 	}
 	c.Marks = []render.ChartMark{{At: 1, Label: "one token a word", Class: "spread"}}
-	c.Desc = fmt.Sprintf("Bar chart of tokens per word for %d scripts; a line marks one token a word.", len(c.Rows))
+	c.Desc = fmt.Sprintf("Bar chart of tokens per UAX #29 word for %d scripts; a line marks one token a word.", len(c.Rows))
 	return c
 }

@@ -94,7 +94,7 @@ func totals(r *Report) []render.Measure {
 		{Label: "tokens", Value: render.Num(t.Tokens)},
 		{Label: "words", Value: render.Num(t.Words)},
 		{Label: "distinct words", Value: render.Num(t.DistinctWords), Only: render.InGrid},
-		{Label: "tokens per word, in words", Value: fmt.Sprintf("%.2f", r.Fertility.Fertility), Only: render.InCards},
+		{Label: "tokens per UAX #29 word", Value: fmt.Sprintf("%.2f", r.Fertility.Fertility), Only: render.InCards},
 		{Label: "words that are one token", Value: render.Percent(float64(r.Fertility.OneTokenShare), 1), Only: render.InCards},
 		{Label: fmt.Sprintf("words with %g+ pieces, %d+ times", r.Options.MinPieces, r.Options.MinCount), Value: render.Num(t.Qualifying),
 			CardLabel: fmt.Sprintf("words of %g+ pieces", r.Options.MinPieces), Warn: t.Qualifying > 0},
@@ -115,7 +115,7 @@ func savingGrid(r *Report) *render.Grid {
 
 func scriptGrid(r *Report) *render.Grid {
 	fe := r.Fertility
-	g := &render.Grid{Title: fmt.Sprintf("Tokens per word by script (all words: %s, one-token words %s)",
+	g := &render.Grid{Title: fmt.Sprintf("Tokens per UAX #29 word by script (all words: %s, one-token words %s)",
 		render.Ratio(float64(fe.WordTokens), float64(fe.Words)), render.Percent(float64(fe.OneTokenShare), 1)),
 		Header: []string{"script", "words", "tokens", "tokens/word", "one-token words"}, Right: []int{1, 2, 3, 4}}
 	for _, s := range fe.ByScript {
@@ -127,7 +127,7 @@ func scriptGrid(r *Report) *render.Grid {
 func docFertilityGrid(r *Report, rows int) *render.Grid {
 	docs := append([]DocFertility(nil), r.Fertility.Documents...)
 	sort.SliceStable(docs, func(i, j int) bool { return docs[i].Fertility > docs[j].Fertility })
-	g := &render.Grid{Sources: true, Title: "Documents by tokens per word", Header: []string{"document", "words", "tokens", "tokens/word", "one-token words"}, Right: []int{1, 2, 3, 4}}
+	g := &render.Grid{Sources: true, Title: "Documents by tokens per UAX #29 word", Header: []string{"document", "words", "tokens", "tokens/word", "one-token words"}, Right: []int{1, 2, 3, 4}}
 	for i, d := range docs {
 		if rows > 0 && i == rows {
 			g.Notes = append(g.Notes, fmt.Sprintf("... and %s more documents (--doc-rows 0 lists all; --format json gives every one)", render.Num(len(docs)-rows)))

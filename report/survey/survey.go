@@ -289,7 +289,7 @@ func Write(w io.Writer, f render.Format, s *Report, rows int) error {
 	return nil
 }
 
-var weightHeader = []string{"document", "format", "bytes", "chars", "words", "tokens", "bytes/token", "tokens/word"}
+var weightHeader = []string{"document", "format", "bytes", "chars", "wc words", "tokens", "bytes/token", "tokens/wc word"}
 
 func weightRow(d Weight) []string {
 	return []string{report.Where(d.Source, d.Record), d.Format, render.Num(d.Bytes), render.Num(d.Chars), render.Num(d.Words), render.Num(d.Tokens),
@@ -326,9 +326,9 @@ func totals(s *Report) []render.Measure {
 		{Label: "tokens", Value: render.Num(t.Tokens)},
 		{Label: "bytes", Value: render.Num(t.Bytes)},
 		{Label: "characters", Value: render.Num(t.Chars), Only: render.InGrid},
-		{Label: "words", Value: render.Num(t.Words)},
+		{Label: "words (wc -w)", Value: render.Num(t.Words)},
 		{Label: "bytes per token", Value: bytesPerToken, Only: render.InGrid},
-		{Label: "tokens per word", Value: render.Ratio(float64(t.Tokens), float64(t.Words))},
+		{Label: "tokens per wc -w word", Value: render.Ratio(float64(t.Tokens), float64(t.Words))},
 		{Label: "bytes per token", Value: bytesPerToken, Only: render.InCards},
 		{Label: render.WindowLabel(s.Vocabulary.Window), Value: overWindowValue(s), Warn: t.OverWindow > 0, Only: render.InCards},
 		{Label: "not counted", Value: fmt.Sprintf("%s (%s failed)", render.Num(t.Skipped), render.Num(t.Failed)),
