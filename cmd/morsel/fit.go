@@ -14,6 +14,7 @@ func init() { extraCommands = append(extraCommands, newFit) }
 
 func newFit(sh *shared) *cobra.Command {
 	var cf corpusFlags
+	var sf sortFlag
 	var tf targetFlags
 	var rf requestFlags
 	c := &cobra.Command{
@@ -45,6 +46,10 @@ overflows, else 0.`,
 			if err != nil {
 				return err
 			}
+			order, err := sf.order("fit")
+			if err != nil {
+				return err
+			}
 			rq, err := sh.request(c, "fit", &tf, &rf)
 			if err != nil {
 				return err
@@ -59,6 +64,7 @@ overflows, else 0.`,
 				return err
 			}
 			r := fc.Finish(skipped)
+			r.Sort(order)
 			write := func() error { return fit.Write(sh.stdout, f, r) }
 			if f == render.HTML {
 				write = func() error { return fit.WriteHTML(sh.stdout, r, 0) }
@@ -74,6 +80,7 @@ overflows, else 0.`,
 		},
 	}
 	addCorpusFlags(c, &cf)
+	addSortFlag(c, &sf, fit.Orders)
 	addTargetFlags(c, &tf, false)
 	addRequestFlags(c, &rf)
 	return c

@@ -16,6 +16,7 @@ func init() { extraCommands = append(extraCommands, newQuote) }
 
 func newQuote(sh *shared) *cobra.Command {
 	var cf corpusFlags
+	var sf sortFlag
 	var tf targetFlags
 	var rf requestFlags
 	var answer int
@@ -47,6 +48,10 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 		RunE: func(c *cobra.Command, args []string) error {
 			boundMemory()
 			f, err := sh.outFormat("quote", render.Table, render.JSON, render.CSV, render.Markdown, render.HTML)
+			if err != nil {
+				return err
+			}
+			order, err := sf.order("quote")
 			if err != nil {
 				return err
 			}
@@ -136,6 +141,7 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 				return err
 			}
 			q := qc.Finish(skipped)
+			q.Sort(order)
 			write := func() error { return quote.Write(sh.stdout, f, q) }
 			if f == render.HTML {
 				write = func() error { return quote.WriteHTML(sh.stdout, q, 0) }
@@ -147,6 +153,7 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 		},
 	}
 	addCorpusFlags(c, &cf)
+	addSortFlag(c, &sf, quote.Orders)
 	addTargetFlags(c, &tf, true)
 	f := c.Flags()
 	f.StringVar(&rf.frame, "frame", "", "prompt frame file for every target, instead of each target's frame")

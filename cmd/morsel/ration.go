@@ -17,6 +17,7 @@ func init() { extraCommands = append(extraCommands, newRation) }
 
 func newRation(sh *shared) *cobra.Command {
 	var cf corpusFlags
+	var sf sortFlag
 	var tf targetFlags
 	var rf requestFlags
 	var budget, overlap int
@@ -52,6 +53,10 @@ because the budget cannot hold the frame and one character, else 0.`,
 		RunE: func(c *cobra.Command, args []string) error {
 			boundMemory()
 			f, err := sh.outFormat("ration", render.Table, render.JSON, render.CSV, render.Markdown)
+			if err != nil {
+				return err
+			}
+			order, err := sf.order("ration")
 			if err != nil {
 				return err
 			}
@@ -111,6 +116,7 @@ because the budget cannot hold the frame and one character, else 0.`,
 				}
 			}
 			rep := rc.Finish(skipped)
+			rep.Sort(order)
 			if err := ration.Write(sh.stdout, f, rep); err != nil {
 				return err
 			}
@@ -122,6 +128,7 @@ because the budget cannot hold the frame and one character, else 0.`,
 		},
 	}
 	addCorpusFlags(c, &cf)
+	addSortFlag(c, &sf, ration.Orders)
 	addTargetFlags(c, &tf, false)
 	addRequestFlags(c, &rf)
 	c.Flags().IntVar(&budget, "budget", 0, "tokens a chunk's request may take, frame and overhead included (default: window - reserve)")

@@ -11,6 +11,7 @@ import (
 
 func newSurvey(sh *shared) *cobra.Command {
 	var cf corpusFlags
+	var sf sortFlag
 	var rows int
 	var sampleOf string
 	c := &cobra.Command{
@@ -39,6 +40,10 @@ be read; the report still covers all the rest.`,
 			if err != nil {
 				return err
 			}
+			order, err := sf.order("survey")
+			if err != nil {
+				return err
+			}
 			enc, err := sh.encoder()
 			if err != nil {
 				return err
@@ -58,6 +63,7 @@ be read; the report still covers all the rest.`,
 				return err
 			}
 			s := sv.Finish(skipped)
+			s.Sort(order)
 			if f == render.HTML {
 				err = writeSurveyHTML(sh, s, sampler, sampleOf, rows)
 			} else {
@@ -70,6 +76,7 @@ be read; the report still covers all the rest.`,
 		},
 	}
 	addCorpusFlags(c, &cf)
+	addSortFlag(c, &sf, survey.Orders)
 	c.Flags().IntVar(&rows, "rows", 50, "per-document rows in the table and html views (0: all)")
 	c.Flags().StringVar(&sampleOf, "sample", "", "with --format html: the document (SOURCE or SOURCE:RECORD) shown split into tokens (default: the one with the most tokens per wc -w word)")
 	return c

@@ -27,6 +27,7 @@ type targetFlags struct {
 func addTargetFlags(c *cobra.Command, tf *targetFlags, many bool) {
 	f := c.Flags()
 	f.StringVar(&tf.file, "targets", "", "targets file (TOML) with [target.NAME] tables (default: "+defaultTargets+" in the working folder)")
+	defer c.RegisterFlagCompletionFunc("target", completeTargets(tf))
 	if many {
 		f.StringArrayVar(&tf.names, "target", nil, "price for this target (repeatable; default: every target in the file)")
 	} else {

@@ -166,3 +166,14 @@ func totals(r *Report) []render.Measure {
 			CardLabel: fmt.Sprintf("not counted (%s failed)", render.Num(t.Failed)), CardValue: render.Num(t.Skipped), Warn: t.Failed > 0},
 	}
 }
+
+// Orders are the orders of --sort for the documents (fit has no bytes).
+var Orders = []report.Order{report.ByTokens, report.ByName, report.ByOverflow}
+
+// Sort puts the documents in order o; without one they stay overflowing
+// first, worst first.
+func (r *Report) Sort(o report.Order) {
+	report.SortDocs(r.Documents, o, func(d *Doc) report.DocKey {
+		return report.DocKey{Source: d.Source, Record: d.Record, Tokens: int64(d.Tokens), Over: int64(-d.Margin)}
+	})
+}

@@ -308,3 +308,24 @@ func quoteLongGrid(q *Report) *render.Grid {
 	}
 	return g
 }
+
+// Orders are the orders of --sort for the documents: tokens are the first
+// target's input tokens, overflow the number of targets whose window the
+// document's request overflows.
+var Orders = []report.Order{report.ByTokens, report.ByName, report.ByOverflow}
+
+// Sort puts the documents in order o.
+func (q *Report) Sort(o report.Order) {
+	report.SortDocs(q.Documents, o, func(d *Doc) report.DocKey {
+		k := report.DocKey{Source: d.Source, Record: d.Record}
+		for i, l := range d.Targets {
+			if i == 0 {
+				k.Tokens = int64(l.InputTokens)
+			}
+			if l.Overflow {
+				k.Over++
+			}
+		}
+		return k
+	})
+}

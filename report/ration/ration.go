@@ -710,3 +710,14 @@ func Write(w io.Writer, f render.Format, r *Report) error {
 	}
 	return render.WriteGrids(w, f, grids...)
 }
+
+// Orders are the orders of --sort for the documents; overflow puts the
+// documents cut into the most chunks first.
+var Orders = []report.Order{report.ByTokens, report.ByBytes, report.ByName, report.ByOverflow}
+
+// Sort puts the documents in order o.
+func (r *Report) Sort(o report.Order) {
+	report.SortDocs(r.Documents, o, func(d *Doc) report.DocKey {
+		return report.DocKey{Source: d.Source, Record: d.Record, Tokens: int64(d.Tokens), Bytes: int64(d.Bytes), Over: int64(d.Chunks)}
+	})
+}

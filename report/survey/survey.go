@@ -478,3 +478,18 @@ func identicalGrid(s *Report) *render.Grid {
 	}
 	return g
 }
+
+// Orders are the orders of --sort for the documents.
+var Orders = []report.Order{report.ByTokens, report.ByBytes, report.ByName, report.ByOverflow}
+
+// Sort puts the documents in order o; overflow is tokens past the window.
+func (s *Report) Sort(o report.Order) {
+	win := int64(s.Vocabulary.Window)
+	report.SortDocs(s.Documents, o, func(d *Weight) report.DocKey {
+		k := report.DocKey{Source: d.Source, Record: d.Record, Tokens: int64(d.Tokens), Bytes: d.Bytes}
+		if win > 0 {
+			k.Over = k.Tokens - win
+		}
+		return k
+	})
+}
