@@ -52,7 +52,7 @@ func WriteHTML(w io.Writer, r *Report, docRows int) error {
 
 	if len(r.Fertility.ByScript) > 0 {
 		p.Sections = append(p.Sections, render.Section{
-			ID: "scripts", Heading: "Tokens per UAX #29 word, by script",
+			ID: "scripts", Heading: "Tokens per UAX #29 word by script",
 			Intro:  "How many tokens a word takes on average, by the script it is written in. A vocabulary learnt mostly from one script spends more tokens on the others.",
 			Charts: []template.HTML{scriptChart(r).SVG()},
 			Tables: []render.TableView{render.TableOf(scriptGrid(r), -1), render.TableOf(docFertilityGrid(r, docRows), 0)},
