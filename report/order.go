@@ -74,5 +74,3 @@ func SortDocs[T any](docs []T, o Order, key func(*T) DocKey) {
 		return byName(a, b)
 	})
 }
-
-
