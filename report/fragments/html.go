@@ -121,7 +121,7 @@ func excessChart(r *Report) *render.BarList {
 }
 
 func scriptChart(r *Report) *render.BarList {
-	c := &render.BarList{YLabel: "script", ID: "script-chart", Title: "Tokens per UAX #29 word, by script", XLabel: "tokens per UAX #29 word", Decimals: true}
+	c := &render.BarList{YLabel: "script", ID: "script-chart", Title: "Tokens per UAX #29 word for each script", XLabel: "tokens per UAX #29 word", Decimals: true}
 	for _, s := range r.Fertility.ByScript {
 		c.Rows = append(c.Rows, render.BarRow{Label: s.Script, Value: s.Fertility, Text: fmt.Sprintf("%.2f", s.Fertility),
 			Tip: fmt.Sprintf("%s: %s words, %s tokens, %.2f tokens per word", s.Script, render.Num(s.Words), render.Num(s.Tokens), s.Fertility)})
