@@ -26,6 +26,19 @@ func (sp *spmModel) normalizePrefix(text []byte) ([]byte, int) {
 
 var replacementChar = []byte("\uFFFD")
 
+// plain returns the length of the start of text that normalizes to itself
+// with nothing to escape or drop: ASCII bytes the map copies, no space,
+// no byte that may begin a user-defined piece.
+func (sp *spmModel) plain(text []byte) int {
+	k := sp.cmap.Plain(text)
+	for i, c := range text[:k] {
+		if c == ' ' || sp.user.first[c] != nil {
+			return i
+		}
+	}
+	return k
+}
+
 // normalize appends the model's normalization of text to dst: the rules of
 // normalizePrefix, then, as the model's normalizer settings say, white
 // space dropped at the ends and kept once inside runs, spaces written as
@@ -70,6 +83,13 @@ func (sp *spmModel) normalize(dst, text []byte, orig *[]int32) []byte {
 	}
 	prevSpace := n.RemoveExtraWhitespaces
 	for len(text) > 0 {
+		if k := sp.plain(text); k > 0 {
+			emit(text[:k])
+			prevSpace = false
+			consumed += k
+			text = text[k:]
+			continue
+		}
 		p, k := sp.normalizePrefix(text)
 		if prevSpace {
 			for len(p) > 0 && p[0] == ' ' {

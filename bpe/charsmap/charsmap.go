@@ -312,3 +312,9 @@ func (m *Map) each(fn func(key, repl []byte)) {
 	}
 	walk(offset(m.units[0]))
 }
+
+// Plain returns the length of the start of s that Normalize copies
+// unchanged byte for byte without a trie walk: ASCII bytes that no rule
+// touches, each followed by another ASCII byte. It may be shorter than
+// all that the map leaves unchanged.
+func (m *Map) Plain(s []byte) int { return m.plainRun(s, 0) }
