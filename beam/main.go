@@ -28,6 +28,7 @@ var (
 	column     = flag.String("column", "text", "CSV / TSV column holding the text")
 	as         = flag.String("as", "", "read every input as this format")
 	hidden     = flag.Bool("hidden", false, "weigh hidden files too")
+	workers    = flag.Int("workers", 0, "files weighed at once in one bundle (0: one a core)")
 	splitAbove = flag.Int64("split-above", 64<<20, "read files of records larger than this many bytes in shares on several workers (0: never)")
 )
 
@@ -39,7 +40,7 @@ func main() {
 		os.Exit(2)
 	}
 	c := Config{Inputs: strings.Split(*input, ","), Output: *output, Format: *format, Command: *command,
-		Field: *field, Column: *column, As: *as, Hidden: *hidden, SplitAbove: *splitAbove}
+		Field: *field, Column: *column, As: *as, Hidden: *hidden, SplitAbove: *splitAbove, Workers: *workers}
 	p, s := beam.NewPipelineWithRoot()
 	Build(s, c)
 	if err := beamx.Run(context.Background(), p); err != nil {

@@ -7,10 +7,14 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"path"
+	"path/filepath"
 	"reflect"
+	"runtime"
 	"strings"
+	"sync"
 
 	"github.com/apache/beam/sdks/v2/go/pkg/beam"
 	"github.com/apache/beam/sdks/v2/go/pkg/beam/io/fileio"
@@ -44,6 +48,8 @@ type Config struct {
 	// several workers, each weighing its own share of the records
 	// (corpus.Shard); 0 never splits.
 	SplitAbove int64
+	// Workers weigh the units of one bundle at once; 0 means one a core.
+	Workers int
 }
 
 func (c Config) options() corpus.Options {
@@ -58,6 +64,8 @@ type Unit struct {
 }
 
 func init() {
+	register.DoFn3x1[context.Context, string, func(fileio.FileMetadata), error](&matchFn{})
+	register.Emitter1[fileio.FileMetadata]()
 	register.DoFn2x0[fileio.FileMetadata, func(Unit)](&splitFn{})
 	register.Emitter1[Unit]()
 	register.DoFn3x1[context.Context, Unit, func([]byte), error](&weighFn{})
@@ -86,7 +94,7 @@ func decodePartial(b []byte) (partial.Partial, error) {
 // report.
 func Build(s beam.Scope, c Config) {
 	pats := beam.CreateList(s, c.Inputs)
-	files := fileio.MatchAll(s, pats, fileio.MatchEmptyAllow())
+	files := beam.ParDo(s, &matchFn{Cfg: c}, pats)
 	units := beam.ParDo(s, &splitFn{Cfg: c}, files)
 	units = beam.Reshuffle(s, units)
 	parts := beam.ParDo(s, &weighFn{Cfg: c}, units)
@@ -94,14 +102,59 @@ func Build(s beam.Scope, c Config) {
 	beam.ParDo0(s, &writeFn{Cfg: c}, merged)
 }
 
-// splitFn turns a matched file into the units that weigh it, leaving out
-// hidden files as a walk does.
+// matchFn expands one input: a local folder is walked as morsel walks it
+// (recursively, hidden files and folders left out unless Config.Hidden);
+// anything else is a pattern for the file system its scheme names.
+type matchFn struct{ Cfg Config }
+
+func (fn *matchFn) ProcessElement(ctx context.Context, pattern string, emit func(fileio.FileMetadata)) error {
+	if fi, err := os.Stat(pattern); err == nil && fi.IsDir() && !strings.Contains(pattern, "://") {
+		return filepath.WalkDir(pattern, func(p string, d fs.DirEntry, err error) error {
+			if err != nil {
+				return err
+			}
+			if p != pattern && !fn.Cfg.Hidden && strings.HasPrefix(d.Name(), ".") {
+				if d.IsDir() {
+					return filepath.SkipDir
+				}
+				return nil
+			}
+			if d.Type().IsRegular() {
+				info, err := d.Info()
+				if err != nil {
+					return err
+				}
+				emit(fileio.FileMetadata{Path: p, Size: info.Size()})
+			}
+			return nil
+		})
+	}
+	fsys, err := filesystem.New(ctx, pattern)
+	if err != nil {
+		return err
+	}
+	defer fsys.Close()
+	paths, err := fsys.List(ctx, pattern)
+	if err != nil {
+		return fmt.Errorf("%s: %w", pattern, err)
+	}
+	for _, p := range paths {
+		if !fn.Cfg.Hidden && strings.HasPrefix(path.Base(p), ".") {
+			continue
+		}
+		size, err := fsys.Size(ctx, p)
+		if err != nil {
+			return fmt.Errorf("%s: %w", p, err)
+		}
+		emit(fileio.FileMetadata{Path: p, Size: size})
+	}
+	return nil
+}
+
+// splitFn turns a matched file into the units that weigh it.
 type splitFn struct{ Cfg Config }
 
 func (fn *splitFn) ProcessElement(md fileio.FileMetadata, emit func(Unit)) {
-	if !fn.Cfg.Hidden && strings.HasPrefix(path.Base(md.Path), ".") {
-		return
-	}
 	n := 1
 	if fn.Cfg.SplitAbove > 0 && md.Size > fn.Cfg.SplitAbove && !corpus.WholeFile(md.Path, fn.Cfg.options()) {
 		n = int((md.Size + fn.Cfg.SplitAbove - 1) / fn.Cfg.SplitAbove)
@@ -115,12 +168,17 @@ func (fn *splitFn) ProcessElement(md fileio.FileMetadata, emit func(Unit)) {
 	}
 }
 
-// weighFn weighs the units of a bundle and emits their partial report
-// when the bundle ends.
+// weighFn weighs the units of a bundle on Config.Workers goroutines and
+// emits their partial report when the bundle ends, so that a runner that
+// hands one worker one bundle at a time still uses every core.
 type weighFn struct {
 	Cfg Config
 	enc *bpe.Encoder
-	p   *partial.Partial
+
+	units chan Unit
+	wg    sync.WaitGroup
+	parts []*partial.Partial
+	errs  []error
 }
 
 func (fn *weighFn) Setup() error {
@@ -129,17 +187,36 @@ func (fn *weighFn) Setup() error {
 	return err
 }
 
-func (fn *weighFn) StartBundle(_ context.Context, _ func([]byte)) {
-	fn.p = newPartial(fn.Cfg, fn.enc)
+func (fn *weighFn) StartBundle(ctx context.Context, _ func([]byte)) {
+	n := fn.Cfg.Workers
+	if n <= 0 {
+		n = runtime.NumCPU()
+	}
+	fn.units = make(chan Unit, n)
+	fn.parts = make([]*partial.Partial, n)
+	fn.errs = make([]error, n)
+	for i := range n {
+		fn.parts[i] = newPartial(fn.Cfg, fn.enc)
+		fn.wg.Add(1)
+		go func() {
+			defer fn.wg.Done()
+			for u := range fn.units {
+				if err := fn.weigh(ctx, u, fn.parts[i]); err != nil && fn.errs[i] == nil {
+					fn.errs[i] = err
+				}
+			}
+		}()
+	}
 }
 
-func (fn *weighFn) ProcessElement(ctx context.Context, u Unit, _ func([]byte)) error {
+func (fn *weighFn) ProcessElement(_ context.Context, u Unit, _ func([]byte)) error {
+	fn.units <- u
+	return nil
+}
+
+// weigh reads one unit and adds its items to p.
+func (fn *weighFn) weigh(ctx context.Context, u Unit, p *partial.Partial) error {
 	share := corpus.Shard{K: u.K, N: u.N}
-	fs, err := filesystem.New(ctx, u.Path)
-	if err != nil {
-		return err
-	}
-	defer fs.Close()
 	seq := 0
 	add := func(it corpus.Item) error {
 		k := partial.Key{Src: u.Path, Seq: seq}
@@ -147,7 +224,7 @@ func (fn *weighFn) ProcessElement(ctx context.Context, u Unit, _ func([]byte)) e
 		if it.Skip != nil {
 			if share.Owns(it.Skip.Source, it.Skip.Record) {
 				s := it.Skip
-				fn.p.Items = append(fn.p.Items, partial.Item{Key: k, Record: s.Record,
+				p.Items = append(p.Items, partial.Item{Key: k, Record: s.Record,
 					Skip: &partial.Skip{Reason: s.Reason, Detail: s.Detail, Failed: s.Failed}})
 			}
 			return nil
@@ -166,10 +243,15 @@ func (fn *weighFn) ProcessElement(ctx context.Context, u Unit, _ func([]byte)) e
 		} else if item.Result, err = json.Marshal(w); err != nil {
 			return err
 		}
-		fn.p.Items = append(fn.p.Items, item)
+		p.Items = append(p.Items, item)
 		return nil
 	}
-	rc, err := fs.OpenRead(ctx, u.Path)
+	fsys, err := filesystem.New(ctx, u.Path)
+	if err != nil {
+		return err
+	}
+	defer fsys.Close()
+	rc, err := fsys.OpenRead(ctx, u.Path)
 	if err != nil {
 		return add(corpus.Item{Skip: &corpus.Skip{Source: u.Path, Reason: corpus.ReasonUnreadable, Detail: err.Error(), Failed: true}})
 	}
@@ -178,12 +260,23 @@ func (fn *weighFn) ProcessElement(ctx context.Context, u Unit, _ func([]byte)) e
 }
 
 func (fn *weighFn) FinishBundle(_ context.Context, emit func([]byte)) error {
-	b, err := encodePartial(*fn.p)
+	close(fn.units)
+	fn.wg.Wait()
+	if err := errors.Join(fn.errs...); err != nil {
+		return err
+	}
+	p := fn.parts[0]
+	for _, q := range fn.parts[1:] {
+		if err := p.Combine(q); err != nil {
+			return err
+		}
+	}
+	b, err := encodePartial(*p)
 	if err != nil {
 		return err
 	}
 	emit(b)
-	fn.p = nil
+	fn.parts = nil
 	return nil
 }
 
@@ -229,12 +322,12 @@ type writeFn struct{ Cfg Config }
 func (fn *writeFn) ProcessElement(ctx context.Context, b []byte) error {
 	var out io.Writer = os.Stdout
 	if fn.Cfg.Output != "-" && fn.Cfg.Output != "" {
-		fs, err := filesystem.New(ctx, fn.Cfg.Output)
+		fsys, err := filesystem.New(ctx, fn.Cfg.Output)
 		if err != nil {
 			return err
 		}
-		defer fs.Close()
-		wc, err := fs.OpenWrite(ctx, fn.Cfg.Output)
+		defer fsys.Close()
+		wc, err := fsys.OpenWrite(ctx, fn.Cfg.Output)
 		if err != nil {
 			return err
 		}
