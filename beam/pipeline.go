@@ -31,6 +31,8 @@ import (
 	"morsel/corpus"
 	"morsel/report"
 	"morsel/report/partial"
+	"morsel/report/render"
+	"morsel/report/survey"
 )
 
 // Config is what a run weighs and how; it travels to the workers inside
@@ -237,7 +239,7 @@ func (fn *weighFn) weigh(ctx context.Context, u Unit, p *partial.Partial) error 
 			return nil
 		}
 		item := partial.Item{Key: k, Record: d.Record, Format: d.Format}
-		w, err := report.Weigh(fn.enc, d)
+		w, err := survey.Weigh(fn.enc, d)
 		if err != nil {
 			item.Err = err.Error()
 		} else if item.Result, err = json.Marshal(w); err != nil {
@@ -346,25 +348,32 @@ func (fn *writeFn) ProcessElement(ctx context.Context, b []byte) error {
 	if err != nil {
 		return err
 	}
-	sv := report.NewSurveyor(enc.Vocab().Info())
+	sv := survey.NewSurveyor(enc.Vocab().Info())
+	skipped := []report.Skipped{}
 	for _, it := range p.Items {
 		ci, w, failed, err := replay(it)
-		if err != nil {
+		switch {
+		case err != nil:
 			return err
+		case ci.Skip != nil:
+			skipped = append(skipped, report.SkipOf(ci.Skip))
+		case failed != nil:
+			skipped = append(skipped, report.FailedDoc(ci.Doc, failed))
+		default:
+			sv.Add(w)
 		}
-		sv.Add(ci, w, failed)
 	}
-	f, err := report.ParseFormat(fn.Cfg.Format, report.Table, report.JSON, report.CSV, report.Markdown)
+	f, err := render.ParseFormat(fn.Cfg.Format, render.Table, render.JSON, render.CSV, render.Markdown)
 	if err != nil {
 		return err
 	}
-	return report.WriteSurvey(out, f, sv.Finish(), 50)
+	return survey.Write(out, f, sv.Finish(skipped), 50)
 }
 
 // replay turns a partial's item back into the walk item, weight and work
 // error that a single run's aggregation takes; err is for a result that
 // does not decode.
-func replay(it partial.Item) (ci corpus.Item, w report.Weight, failed, err error) {
+func replay(it partial.Item) (ci corpus.Item, w survey.Weight, failed, err error) {
 	if it.Skip != nil {
 		return corpus.Item{Skip: &corpus.Skip{Source: it.Src, Record: it.Record, Reason: it.Skip.Reason, Detail: it.Skip.Detail, Failed: it.Skip.Failed}}, w, nil, nil
 	}

@@ -31,6 +31,22 @@ type Progress interface {
 // error from emit stops the walk and is returned.
 func Walk[R any](paths []string, opt corpus.Options, workers int, prog Progress,
 	work func(d *corpus.Document) (R, error), emit func(it corpus.Item, r R, err error) error) error {
+	return Shard(paths, opt, corpus.Shard{}, workers, prog, work,
+		func(_ Place, it corpus.Item, r R, err error) error { return emit(it, r, err) })
+}
+
+// Place is an item's place in the order of the whole walk: In is its
+// input's place in the listing (-1 for a skip that listing found), Seq its
+// place among the items of that input (or among the listing's skips),
+// counting the items of every shard.
+type Place struct{ In, Seq int }
+
+// Shard walks as Walk does but only the items that share owns (the whole
+// walk for the zero Shard), and gives emit each item's Place, so that the
+// items of all shards can be put back in the whole walk's order. An input
+// that can hold no item of share is not opened.
+func Shard[R any](paths []string, opt corpus.Options, share corpus.Shard, workers int, prog Progress,
+	work func(d *corpus.Document) (R, error), emit func(at Place, it corpus.Item, r R, err error) error) error {
 	if workers <= 0 {
 		workers = runtime.NumCPU()
 	}
@@ -47,13 +63,16 @@ func Walk[R any](paths []string, opt corpus.Options, workers int, prog Progress,
 	}
 	var zero R
 	for i := range skips {
-		if err := emit(corpus.Item{Skip: &skips[i]}, zero, nil); err != nil {
+		if !share.Owns(skips[i].Source, skips[i].Record) {
+			continue
+		}
+		if err := emit(Place{In: -1, Seq: i}, corpus.Item{Skip: &skips[i]}, zero, nil); err != nil {
 			return err
 		}
 	}
 
 	type job struct {
-		seq  int
+		at   Place
 		item corpus.Item
 		res  R
 		err  error
@@ -88,10 +107,15 @@ func Walk[R any](paths []string, opt corpus.Options, workers int, prog Progress,
 	go func() {
 		defer close(ordered)
 		defer close(todo)
-		seq := 0
+		var at Place
 		send := func(it corpus.Item) error {
-			j := &job{seq: seq, item: it, done: make(chan struct{})}
-			seq++
+			here := at
+			at.Seq++
+			if src, rec := itemAt(it); !share.Owns(src, rec) {
+				closeStream(it)
+				return nil
+			}
+			j := &job{at: here, item: it, done: make(chan struct{})}
 			select {
 			case ordered <- j:
 			case <-stop:
@@ -111,7 +135,14 @@ func Walk[R any](paths []string, opt corpus.Options, workers int, prog Progress,
 			}
 			return nil
 		}
-		for _, in := range inputs {
+		for i, in := range inputs {
+			at = Place{In: i}
+			if !share.Wants(in, opt) {
+				if prog != nil {
+					prog.FileDone(in.Size)
+				}
+				continue
+			}
 			if err := corpus.Read(in, opt, send); err != nil {
 				return
 			}
@@ -127,7 +158,7 @@ func Walk[R any](paths []string, opt corpus.Options, workers int, prog Progress,
 		if emitErr != nil {
 			continue
 		}
-		if err := emit(j.item, j.res, j.err); err != nil {
+		if err := emit(j.at, j.item, j.res, j.err); err != nil {
 			emitErr = err
 			halt()
 		}
@@ -137,6 +168,14 @@ func Walk[R any](paths []string, opt corpus.Options, workers int, prog Progress,
 }
 
 var errStopped = fmt.Errorf("walk stopped")
+
+// itemAt returns an item's source and record.
+func itemAt(it corpus.Item) (string, int) {
+	if it.Doc != nil {
+		return it.Doc.Source, it.Doc.Record
+	}
+	return it.Skip.Source, it.Skip.Record
+}
 
 func closeStream(it corpus.Item) {
 	if it.Doc != nil && it.Doc.Stream != nil {
