@@ -36,10 +36,19 @@ func checkFloors(c *cobra.Command) error {
 			continue
 		}
 		n, err := strconv.Atoi(f.Value.String())
-		if err != nil || n >= fl.min {
+		if err != nil {
 			continue
 		}
-		return usagef(c.Name(), "--%s %d: give %d or more (%s)", fl.name, n, fl.min, fl.hint)
+		if n < fl.min {
+			return usagef(c.Name(), "--%s %d: give %d or more (%s)", fl.name, n, fl.min, fl.hint)
+		}
+		if fl.name == "workers" && n > maxWorkers {
+			return usagef(c.Name(), "--workers %d: give at most %d (each worker keeps its own word cache)", n, maxWorkers)
+		}
 	}
 	return nil
 }
+
+// maxWorkers is the most workers a run takes: past a few per core they only
+// cost memory, and a billion of them would exhaust the runtime.
+const maxWorkers = 1024

@@ -87,3 +87,17 @@ func TestFragmentsCSVHasTerms(t *testing.T) {
 		t.Errorf("no glossary rows in\n%s", out)
 	}
 }
+
+// A worker count past maxWorkers, zero or negative is a usage error, not a
+// crash of the runtime.
+func TestWorkersBounded(t *testing.T) {
+	for _, n := range []string{"1000000000", "1025", "0", "-3"} {
+		_, stderr, code := run(t, "", "survey", "../../testdata/demo", "--workers", n)
+		if code != exitUsage || !strings.Contains(stderr, "--workers") {
+			t.Errorf("--workers %s: exit %d, stderr %q; want %d naming --workers", n, code, stderr, exitUsage)
+		}
+	}
+	if _, _, code := run(t, "", "survey", "../../testdata/demo", "--workers", "1024"); code != exitOK {
+		t.Errorf("--workers 1024: exit %d", code)
+	}
+}
