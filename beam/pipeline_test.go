@@ -77,8 +77,8 @@ func runBeam(t *testing.T, c Config) []byte {
 // The pipeline's report is morsel survey's, byte for byte, on the demo.
 func TestSurveyDemoMatchesCLI(t *testing.T) {
 	for _, f := range []string{"json", "table", "csv", "md"} {
-		want := cli(t, "survey", "../testdata/demo", "--format", f)
-		got := runBeam(t, Config{Inputs: []string{"../testdata/demo/*"}, Format: f, Command: "survey", Field: "text", Column: "text"})
+		want := cli(t, "survey", "../testdata/demo/docs", "--format", f)
+		got := runBeam(t, Config{Inputs: []string{"../testdata/demo/docs/*"}, Format: f, Command: "survey", Field: "text", Column: "text"})
 		if !bytes.Equal(got, want) {
 			t.Errorf("--format %s: the pipeline's report differs from morsel survey's:\n%s", f, firstDiff(got, want))
 		}

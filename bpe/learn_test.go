@@ -325,7 +325,7 @@ func checkAgainstToy(t *testing.T, got *Learned, toy []toyWord, counts []int64) 
 // demoTexts returns the demo corpus's files.
 func demoTexts(t testing.TB) []string {
 	t.Helper()
-	paths, err := filepath.Glob("../testdata/demo/*")
+	paths, err := filepath.Glob("../testdata/demo/docs/*")
 	if err != nil || len(paths) == 0 {
 		t.Fatalf("demo corpus: %v", err)
 	}

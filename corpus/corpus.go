@@ -140,6 +140,10 @@ const (
 	// longer than Options.MaxRecord, or a document whose text is longer
 	// than Options.MaxDocument. Failed.
 	ReasonTooLarge = "too-large"
+	// ReasonSetting: a file the run reads as one of its settings (an
+	// Options.Settings entry: targets, frame, glossary), met in the walk or
+	// named. It is not a document of the collection. Not failed.
+	ReasonSetting = "setting"
 )
 
 // Format names reported in Document.Format.
@@ -250,6 +254,17 @@ type Options struct {
 	Format string
 	// Stdin is read for the path "-"; default os.Stdin.
 	Stdin io.Reader
+	// Settings are the files the run reads as settings. A listed file that
+	// is the same file (os.SameFile: same device and inode, whatever the
+	// path or link it is reached by) is left out as ReasonSetting.
+	Settings []Setting
+}
+
+// Setting is a file a run reads as a setting rather than a document.
+type Setting struct {
+	Path string
+	// What names its role, as in "frame" or "targets file".
+	What string
 }
 
 // DefaultStreamAbove is the default Options.StreamAbove.

@@ -46,10 +46,24 @@ type lister struct {
 	only string            // a "**" glob the walked files must match
 	// matched[i] is set once Include[i] has matched a file.
 	matched []bool
+	// settings are the Options.Settings that exist, with their file info.
+	settings []setting
+}
+
+type setting struct {
+	Setting
+	fi fs.FileInfo
 }
 
 func list(paths []string, opt Options) []entry {
 	l := &lister{opt: opt, seen: map[string]string{}, matched: make([]bool, len(opt.Include))}
+	for _, s := range opt.Settings {
+		// A setting that cannot be read is the command's error to report;
+		// here it only cannot match.
+		if fi, err := os.Stat(s.Path); err == nil {
+			l.settings = append(l.settings, setting{s, fi})
+		}
+	}
 	for _, p := range paths {
 		l.arg(p)
 	}
@@ -229,6 +243,12 @@ func (l *lister) visit(p, root, real string, lfi fs.FileInfo, explicit bool, anc
 	case fi.Mode().IsRegular():
 		if !l.wanted(p, root) {
 			return
+		}
+		for _, s := range l.settings {
+			if os.SameFile(fi, s.fi) {
+				l.skip(p, ReasonSetting, "read by this run as the "+s.What+", not a document", false)
+				return
+			}
 		}
 		if prev, ok := l.seen[real]; ok {
 			l.skip(p, ReasonDuplicate, "same file as "+prev, false)

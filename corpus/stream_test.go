@@ -57,7 +57,7 @@ func TestReadStreamMatchesRead(t *testing.T) {
 			t.Fatal(err)
 		}
 	}
-	ins, _ := List([]string{"../testdata/demo", "../testdata/corpus", dir}, Options{Hidden: true})
+	ins, _ := List([]string{"../testdata/demo/docs", "../testdata/corpus", dir}, Options{Hidden: true})
 	if len(ins) < 20 {
 		t.Fatalf("only %d inputs listed", len(ins))
 	}

@@ -31,8 +31,8 @@ echo "machine: $(nproc) cores, load $(cut -d' ' -f1-3 /proc/loadavg); corpus $(f
 for c in $CMDS; do
 	set -- "$c" --quiet --format json
 	case $c in
-	fit | ration) set -- "$@" --targets testdata/demo/morsel.toml --target harbor-small ;;
-	quote) set -- "$@" --targets testdata/demo/morsel.toml ;;
+	fit | ration) set -- "$@" --targets testdata/demo/settings/morsel.toml --target harbor-small ;;
+	quote) set -- "$@" --targets testdata/demo/settings/morsel.toml ;;
 	esac
 	"$base" "$@" "$corpus" >/dev/null 2>&1 || true
 	"$new" "$@" "$corpus" >/dev/null 2>&1 || true

@@ -2,7 +2,7 @@
 # bench-fragments.sh: time `morsel fragments` against `morsel survey` on the
 # same input, whole process, and print the ratio (the bound is 2).
 #
-#   scripts/bench-fragments.sh [PATH...]      (default: testdata/demo)
+#   scripts/bench-fragments.sh [PATH...]      (default: testdata/demo/docs)
 #   RUNS=15 scripts/bench-fragments.sh /tmp/morsel-bench/corpus
 #
 # The two commands take turns, RUNS times each (default 9), after one
@@ -14,7 +14,7 @@
 set -eu
 cd "$(dirname "$0")/.."
 RUNS=${RUNS:-9}
-[ $# -gt 0 ] || set -- testdata/demo
+[ $# -gt 0 ] || set -- testdata/demo/docs
 bin=$(mktemp -d)
 trap 'rm -rf "$bin"' EXIT
 go build -o "$bin/morsel" ./cmd/morsel

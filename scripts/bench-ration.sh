@@ -3,7 +3,7 @@
 # input; the two should differ by at most 1.5x.
 #
 #   scripts/bench-ration.sh                 # the corpus of bench-survey.sh (100+ MB)
-#   scripts/bench-ration.sh testdata/demo   # any folder or files, e.g. a quick check
+#   scripts/bench-ration.sh testdata/demo/docs   # any folder or files, e.g. a quick check
 #   RUNS=3 BUDGET=512 scripts/bench-ration.sh
 #
 # With no argument it uses the corpus scripts/bench-survey.sh gathers under

@@ -7,7 +7,7 @@
 #   scripts/compare-outputs.sh BASE NEW CORPUS...
 #   go build -o /tmp/morsel-base ./cmd/morsel     # before a change
 #   go build -o /tmp/morsel-new ./cmd/morsel      # after it
-#   scripts/compare-outputs.sh /tmp/morsel-base /tmp/morsel-new testdata/demo /tmp/big-corpus
+#   scripts/compare-outputs.sh /tmp/morsel-base /tmp/morsel-new testdata/demo/docs /tmp/big-corpus
 #
 # The demo's targets, frame and glossary are used on every corpus, so that
 # fit, ration and quote have a frame and prices wherever they run. Exit
@@ -21,7 +21,7 @@ fi
 base=$1 new=$2
 shift 2
 demo=testdata/demo
-targets=$demo/morsel.toml frame=$demo/frame.txt terms=$demo/terms.txt
+targets=$demo/settings/morsel.toml frame=$demo/settings/frame.txt terms=$demo/settings/terms.txt
 work=$(mktemp -d)
 trap 'rm -rf "$work"' EXIT
 runs=0 diffs=0

@@ -13,7 +13,7 @@ cd "$(dirname "$0")/.."
 out=${1:-docs/survey-report.png}
 size=${2:-1200,1600}
 [ $# -ge 2 ] && shift 2 || set --
-[ $# -ge 2 ] || set -- survey testdata/demo/corpus
+[ $# -ge 2 ] || set -- survey testdata/demo/docs
 browser=$(command -v chromium || command -v chromium-browser || true)
 if [ -z "$browser" ]; then
 	echo "screenshot.sh: chromium not found (Debian: apt-get install chromium)" >&2

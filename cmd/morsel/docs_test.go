@@ -91,7 +91,7 @@ func TestSort(t *testing.T) {
 		t.Errorf("fit --sort bytes: exit %d, %q", code, serr)
 	}
 	name, _, _ := runMorsel(t, "quote", demoDir, "--targets", demoTargets, "--sort", "name", "--format", "csv")
-	if !strings.Contains(strings.Split(name, "\n")[1], "README.md") {
+	if !strings.Contains(strings.Split(name, "\n")[1], "calibrate_th9_chain.py") {
 		t.Errorf("--sort name: first row %q", strings.Split(name, "\n")[1])
 	}
 }

@@ -33,8 +33,8 @@ target with answer_ratio reserves that share of each request's input, rounded up
 Exit status: 1 when an input could not be read (the report still covers the rest; a
 failure to read wins, since an unread document may overflow too), else 3 when any document
 overflows, else 0.`,
-		Example: `  morsel fit testdata/demo --frame testdata/demo/frame.txt --reserve 200
-  morsel fit testdata/demo --targets testdata/demo/morsel.toml --target harbor-large
+		Example: `  morsel fit testdata/demo/docs --frame testdata/demo/settings/frame.txt --reserve 200
+  morsel fit testdata/demo/docs --targets testdata/demo/settings/morsel.toml --target harbor-large
   morsel fit exports/ --window 8192 --format json | jq '.totals'`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {

@@ -12,9 +12,12 @@ import (
 )
 
 const (
-	demoDir     = "../../testdata/demo"
-	demoTargets = "../../testdata/demo/morsel.toml"
-	demoFrame   = "../../testdata/demo/frame.txt"
+	demoDir     = "../../testdata/demo/docs"
+	demoTargets = "../../testdata/demo/settings/morsel.toml"
+	demoFrame   = "../../testdata/demo/settings/frame.txt"
+	// demoSettings holds the demo's targets, frame and glossary, apart
+	// from its documents.
+	demoSettings = "../../testdata/demo/settings"
 )
 
 // runMorsel runs the command line in-process and returns its standard
@@ -68,16 +71,24 @@ func TestFitExitAndMargins(t *testing.T) {
 	}
 	// The input is the assembled request, counted whole.
 	enc, _ := bpe.NewEncoder(bpe.Default(), bpe.Options{})
-	frame, err := loadFrame("test", demoFrame)
+	frame, err := (&shared{}).loadFrame("test", demoFrame)
 	if err != nil {
 		t.Fatal(err)
 	}
-	text, _ := os.ReadFile(filepath.Join(demoDir, "terms.txt"))
-	want := enc.Count(frame.Assemble(filepath.Join(demoDir, "terms.txt"), text))
+	memo := filepath.Join(demoDir, "memo-ja-kirisaki-shipping.txt")
+	text, _ := os.ReadFile(memo)
+	want := enc.Count(frame.Assemble(memo, text))
+	seen := false
 	for _, d := range r.Documents {
-		if strings.HasSuffix(d.Source, "terms.txt") && d.InputTokens != want {
-			t.Fatalf("terms.txt input %d, want %d", d.InputTokens, want)
+		if d.Source == memo {
+			seen = true
+			if d.InputTokens != want {
+				t.Fatalf("%s input %d, want %d", memo, d.InputTokens, want)
+			}
 		}
+	}
+	if !seen {
+		t.Fatalf("%s not in the report", memo)
 	}
 
 	for _, tc := range []struct {
@@ -86,10 +97,10 @@ func TestFitExitAndMargins(t *testing.T) {
 		code int
 		err  string
 	}{
-		{"all fit", []string{"fit", filepath.Join(demoDir, "terms.txt"), "--window", "100000", "--quiet"}, exitOK, ""},
-		{"flag beats target", []string{"fit", filepath.Join(demoDir, "terms.txt"), "--targets", demoTargets, "--target", "harbor-small", "--reserve", "5000", "--quiet"}, exitUsage, "--reserve 5000 leaves no room"},
-		{"unreadable input wins", []string{"fit", filepath.Join(demoDir, "terms.txt"), filepath.Join(demoDir, "no-such-file.txt"), "--window", "10", "--quiet"}, exitInput, ""},
-		{"frame without placeholder", []string{"fit", demoDir, "--frame", filepath.Join(demoDir, "terms.txt")}, exitUsage, "has no {{document}} placeholder"},
+		{"all fit", []string{"fit", filepath.Join(demoSettings, "terms.txt"), "--window", "100000", "--quiet"}, exitOK, ""},
+		{"flag beats target", []string{"fit", filepath.Join(demoSettings, "terms.txt"), "--targets", demoTargets, "--target", "harbor-small", "--reserve", "5000", "--quiet"}, exitUsage, "--reserve 5000 leaves no room"},
+		{"unreadable input wins", []string{"fit", filepath.Join(demoSettings, "terms.txt"), filepath.Join(demoDir, "no-such-file.txt"), "--window", "10", "--quiet"}, exitInput, ""},
+		{"frame without placeholder", []string{"fit", demoDir, "--frame", filepath.Join(demoSettings, "terms.txt")}, exitUsage, "has no {{document}} placeholder"},
 		{"unknown target", []string{"fit", demoDir, "--targets", demoTargets, "--target", "harbor-huge"}, exitUsage, `no target "harbor-huge"`},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

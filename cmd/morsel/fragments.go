@@ -36,8 +36,8 @@ upper bound, never a promise).
 --terms checks a glossary, one term a line (several words allowed; lines starting with # are
 comments): each term's pieces alone and after a space, its occurrences in the corpus, and a
 flag when it reaches --min-pieces.`,
-		Example: `  morsel fragments testdata/demo
-  morsel fragments testdata/demo --terms testdata/demo/terms.txt
+		Example: `  morsel fragments testdata/demo/docs
+  morsel fragments testdata/demo/docs --terms testdata/demo/settings/terms.txt
   morsel fragments exports/tickets.jsonl --min-pieces 4 --min-count 5 --top 20 --format json`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
@@ -59,6 +59,7 @@ flag when it reaches --min-pieces.`,
 			}
 			var terms []fragments.Term
 			if termsFile != "" {
+				sh.reads(termsFile, "glossary")
 				fh, err := os.Open(termsFile)
 				if err != nil {
 					return &inputError{fmt.Errorf("glossary: %w", err)}

@@ -9,7 +9,7 @@ import (
 )
 
 func TestFragmentsJSONContract(t *testing.T) {
-	out, _, code := run(t, "", "fragments", "../../testdata/demo", "--terms", "../../testdata/demo/terms.txt", "--top", "5", "--format", "json")
+	out, _, code := run(t, "", "fragments", "../../testdata/demo/docs", "--terms", "../../testdata/demo/settings/terms.txt", "--top", "5", "--format", "json")
 	if code != 0 {
 		t.Fatalf("exit %d", code)
 	}
@@ -50,15 +50,15 @@ func TestFragmentsJSONContract(t *testing.T) {
 }
 
 func TestFragmentsFormats(t *testing.T) {
-	out, _, code := run(t, "", "fragments", "../../testdata/demo/notes-species-bathyphorus-quillandri.txt", "--format", "csv")
+	out, _, code := run(t, "", "fragments", "../../testdata/demo/docs/notes-species-bathyphorus-quillandri.txt", "--format", "csv")
 	if code != 0 || !strings.HasPrefix(out, "rank,word,script,count,documents,pieces,excess,split,split_share,kind,pieces_alone,flagged,line\n") {
 		t.Fatalf("exit %d\n%s", code, out)
 	}
-	out, _, code = run(t, "", "fragments", "../../testdata/demo/notes-species-bathyphorus-quillandri.txt")
+	out, _, code = run(t, "", "fragments", "../../testdata/demo/docs/notes-species-bathyphorus-quillandri.txt")
 	if code != 0 || !strings.Contains(out, "Bathyphorus") || !strings.Contains(out, "saving, at most") || !strings.Contains(out, "upper bound") {
 		t.Fatalf("exit %d\n%s", code, out)
 	}
-	out, _, code = run(t, "", "fragments", "../../testdata/demo/notes-species-bathyphorus-quillandri.txt", "--format", "md")
+	out, _, code = run(t, "", "fragments", "../../testdata/demo/docs/notes-species-bathyphorus-quillandri.txt", "--format", "md")
 	if code != 0 || !strings.Contains(out, "| --- |") {
 		t.Fatalf("exit %d\n%s", code, out)
 	}
@@ -70,7 +70,7 @@ func TestFragmentsErrors(t *testing.T) {
 	if err := os.WriteFile(bad, []byte("alpha\n# c\nalpha\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	doc := "../../testdata/demo/notes-species-bathyphorus-quillandri.txt"
+	doc := "../../testdata/demo/docs/notes-species-bathyphorus-quillandri.txt"
 	for _, c := range []struct {
 		args []string
 		code int
@@ -94,8 +94,8 @@ func TestFragmentsErrors(t *testing.T) {
 // TestFragmentsWorkers checks that the report does not depend on how many
 // workers share the documents.
 func TestFragmentsWorkers(t *testing.T) {
-	one, _, c1 := run(t, "", "fragments", "../../testdata/demo", "--workers", "1", "--top", "0", "--format", "json")
-	many, _, c8 := run(t, "", "fragments", "../../testdata/demo", "--workers", "8", "--top", "0", "--format", "json")
+	one, _, c1 := run(t, "", "fragments", "../../testdata/demo/docs", "--workers", "1", "--top", "0", "--format", "json")
+	many, _, c8 := run(t, "", "fragments", "../../testdata/demo/docs", "--workers", "8", "--top", "0", "--format", "json")
 	if c1 != 0 || c8 != 0 || one != many {
 		t.Fatalf("exit %d, %d; reports differ: %v", c1, c8, one != many)
 	}

@@ -8,8 +8,8 @@ import (
 // Every command that offers --format html writes one whole page on
 // standard output, with nothing loaded from elsewhere.
 func TestHTMLFormats(t *testing.T) {
-	demo := "../../testdata/demo"
-	targets := demo + "/morsel.toml"
+	demo := "../../testdata/demo/docs"
+	targets := "../../testdata/demo/settings/morsel.toml"
 	for _, c := range []struct {
 		args []string
 		code int
@@ -18,7 +18,7 @@ func TestHTMLFormats(t *testing.T) {
 		{[]string{"survey", demo, "--format", "html", "--sample", demo + "/memo-ja-kirisaki-shipping.txt"}, 0},
 		{[]string{"fit", demo, "--format", "html", "--targets", targets, "--target", "harbor-small"}, 3},
 		{[]string{"quote", demo, "--format", "html", "--targets", targets}, 0},
-		{[]string{"fragments", demo, "--format", "html", "--terms", demo + "/terms.txt"}, 0},
+		{[]string{"fragments", demo, "--format", "html", "--terms", "../../testdata/demo/settings/terms.txt"}, 0},
 	} {
 		out, errs, code := run(t, "", c.args...)
 		if code != c.code {

@@ -49,9 +49,9 @@ document is then encoded again under both vocabularies, and the report gives the
 saving on the held-out and on the learning documents, per document and in total, the new
 tokens with the words they serve, and with --target the input cost before and after at
 the target's price. learn reads its inputs twice, so standard input is not taken.`,
-		Example: `  morsel learn testdata/demo --add 200 --holdout 0.25 --out /tmp/demo-vocab
+		Example: `  morsel learn testdata/demo/docs --add 200 --holdout 0.25 --out /tmp/demo-vocab
   morsel learn docs/ --extend models/x/tokenizer.json --add 2000 --out models/x-domain --write bundle
-  morsel learn testdata/demo --add 200 --out /tmp/v --targets testdata/demo/morsel.toml --target harbor-small`,
+  morsel learn testdata/demo/docs --add 200 --out /tmp/v --targets testdata/demo/settings/morsel.toml --target harbor-small`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
 			return runLearn(sh, &cf, &tf, &lf, args)
@@ -94,6 +94,9 @@ func runLearn(sh *shared, cf *corpusFlags, tf *targetFlags, lf *learnFlags, args
 	target, err := tf.one(cmd)
 	if err != nil {
 		return err
+	}
+	if target != nil {
+		sh.reads(target.File, "targets file")
 	}
 	if target != nil && !target.Set["price_in"] {
 		return usagef(cmd, "%s: target %q has no price_in", target.Where(), target.Name)

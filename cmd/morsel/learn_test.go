@@ -12,8 +12,8 @@ import (
 // are those of re-encoding with it.
 func TestLearnCommand(t *testing.T) {
 	out := t.TempDir()
-	stdout, stderr, code := run(t, "", "learn", "../../testdata/demo", "--extend", "../../bpe/gpt2", "--add", "120", "--holdout", "0.25",
-		"--out", out, "--format", "json", "--targets", "../../testdata/demo/morsel.toml", "--target", "harbor-small")
+	stdout, stderr, code := run(t, "", "learn", "../../testdata/demo/docs", "--extend", "../../bpe/gpt2", "--add", "120", "--holdout", "0.25",
+		"--out", out, "--format", "json", "--targets", "../../testdata/demo/settings/morsel.toml", "--target", "harbor-small")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -43,8 +43,8 @@ func TestLearnCommand(t *testing.T) {
 		t.Fatalf("pair %d tokens, bundle %d", pair.Size(), bundle.Size())
 	}
 	// The written pair counts the demo as the report says.
-	sv, _, code := run(t, "", "survey", "../../testdata/demo", "--vocab", filepath.Join(out, "vocab.json"), "--merges", filepath.Join(out, "merges.txt"), "--format", "json")
-	base, _, _ := run(t, "", "survey", "../../testdata/demo", "--format", "json")
+	sv, _, code := run(t, "", "survey", "../../testdata/demo/docs", "--vocab", filepath.Join(out, "vocab.json"), "--merges", filepath.Join(out, "merges.txt"), "--format", "json")
+	base, _, _ := run(t, "", "survey", "../../testdata/demo/docs", "--format", "json")
 	var a, b struct{ Totals struct{ Tokens int64 } }
 	json.Unmarshal([]byte(sv), &a)
 	json.Unmarshal([]byte(base), &b)
@@ -55,11 +55,11 @@ func TestLearnCommand(t *testing.T) {
 
 func TestLearnUsage(t *testing.T) {
 	for _, args := range [][]string{
-		{"learn", "../../testdata/demo", "--out", t.TempDir()},
-		{"learn", "../../testdata/demo", "--add", "5"},
+		{"learn", "../../testdata/demo/docs", "--out", t.TempDir()},
+		{"learn", "../../testdata/demo/docs", "--add", "5"},
 		{"learn", "-", "--add", "5", "--out", t.TempDir()},
-		{"learn", "../../testdata/demo", "--add", "5", "--out", t.TempDir(), "--holdout", "1"},
-		{"learn", "../../testdata/demo", "--add", "5", "--out", t.TempDir(), "--write", "zip"},
+		{"learn", "../../testdata/demo/docs", "--add", "5", "--out", t.TempDir(), "--holdout", "1"},
+		{"learn", "../../testdata/demo/docs", "--add", "5", "--out", t.TempDir(), "--write", "zip"},
 	} {
 		if _, stderr, code := run(t, "", args...); code != 2 || stderr == "" {
 			t.Errorf("%v: exit %d, %s", args, code, stderr)

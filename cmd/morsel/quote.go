@@ -41,8 +41,8 @@ Flags given override every target's fields: --vocab/--merges, --window, --frame,
 output says so.
 
 Exit status: 1 when an input could not be read (the bill covers the rest), else 0.`,
-		Example: `  morsel quote testdata/demo --targets testdata/demo/morsel.toml
-  morsel quote testdata/demo --targets testdata/demo/morsel.toml --target harbor-small --target harbor-large --ration
+		Example: `  morsel quote testdata/demo/docs --targets testdata/demo/settings/morsel.toml
+  morsel quote testdata/demo/docs --targets testdata/demo/settings/morsel.toml --target harbor-small --target harbor-large --ration
   morsel quote exports/ --target harbor-large --batch --format json`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
@@ -59,6 +59,7 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 			if err != nil {
 				return err
 			}
+			sh.reads(ts.File, "targets file")
 			targets := ts.List
 			if len(tf.names) > 0 {
 				targets = nil
@@ -107,9 +108,9 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 					return usagef("quote", "%s: target %q has no window and its vocabulary does not say one; give --window", t.Where(), t.Name)
 				}
 				if flags.Changed("frame") {
-					p.Frame, err = loadFrame("quote", rf.frame)
+					p.Frame, err = sh.loadFrame("quote", rf.frame)
 				} else {
-					p.Frame, err = targetFrame("quote", t)
+					p.Frame, err = sh.targetFrame("quote", t)
 				}
 				if err != nil {
 					return err

@@ -53,7 +53,7 @@ func TestQuoteJSON(t *testing.T) {
 	if code != exitUsage || !strings.Contains(serr, noPrice+":1: target \"free\" has no price_in") {
 		t.Fatalf("exit %d: %s", code, serr)
 	}
-	out, _, code = runMorsel(t, "quote", filepath.Join(demoDir, "terms.txt"), "--targets", demoTargets)
+	out, _, code = runMorsel(t, "quote", filepath.Join(demoSettings, "terms.txt"), "--targets", demoTargets)
 	if code != exitOK || !strings.Contains(out, "caution:") || !strings.Contains(out, "harbor-medium") {
 		t.Fatalf("table view: exit %d\n%s", code, out)
 	}

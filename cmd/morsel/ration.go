@@ -46,8 +46,8 @@ text.
 
 Exit status: 1 when an input could not be read, else 3 when a document cannot be cut
 because the budget cannot hold the frame and one character, else 0.`,
-		Example: `  morsel ration testdata/demo --budget 512 --frame testdata/demo/frame.txt
-  morsel ration testdata/demo --target harbor-small --targets testdata/demo/morsel.toml --emit plan.jsonl
+		Example: `  morsel ration testdata/demo/docs --budget 512 --frame testdata/demo/settings/frame.txt
+  morsel ration testdata/demo/docs --target harbor-small --targets testdata/demo/settings/morsel.toml --emit plan.jsonl
   morsel ration notes/ --budget 2000 --overlap 100 --format json`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {

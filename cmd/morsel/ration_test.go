@@ -30,7 +30,7 @@ func TestRationEmit(t *testing.T) {
 	}
 	defer f.Close()
 	enc, _ := bpe.NewEncoder(bpe.Default(), bpe.Options{})
-	frame, _ := loadFrame("test", demoFrame)
+	frame, _ := (&shared{}).loadFrame("test", demoFrame)
 	docs := map[string][]byte{}
 	lines := 0
 	sc := bufio.NewScanner(f)
@@ -62,7 +62,7 @@ func TestRationEmit(t *testing.T) {
 		}
 	}
 	// A budget the frame alone fills is one usage error.
-	_, serr, code = runMorsel(t, "ration", filepath.Join(demoDir, "terms.txt"), "--budget", "100", "--frame", demoFrame, "--quiet")
+	_, serr, code = runMorsel(t, "ration", filepath.Join(demoSettings, "terms.txt"), "--budget", "100", "--frame", demoFrame, "--quiet")
 	if code != exitUsage || !strings.Contains(serr, "100-token budget") {
 		t.Fatalf("exit %d, want 2: %s", code, serr)
 	}

@@ -34,9 +34,20 @@ type shared struct {
 	once          bool // count each text once
 	specials      string
 	splitPattern  string
+	// read are the settings files this run reads (targets, frames,
+	// glossary); a walk leaves them out.
+	read []corpus.Setting
 
 	stdin          io.Reader
 	stdout, stderr io.Writer
+}
+
+// reads records that the run reads path as a setting (what names its
+// role), so that a walk leaves it out rather than count it as a document.
+func (sh *shared) reads(path, what string) {
+	if path != "" {
+		sh.read = append(sh.read, corpus.Setting{Path: path, What: what})
+	}
 }
 
 func newRoot() *cobra.Command { return newRootIO(os.Stdin, os.Stdout, os.Stderr) }
@@ -54,9 +65,9 @@ the prompt frame and the reserved answer are added, how to split them, what the 
 at your rates, and which words the vocabulary breaks into many pieces.
 
 With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-token window).`,
-		Example: `  morsel survey testdata/demo
+		Example: `  morsel survey testdata/demo/docs
   morsel pieces "Bathyphorus quillandri"
-  morsel fit testdata/demo --frame testdata/demo/frame.txt --reserve 200
+  morsel fit testdata/demo/docs --frame testdata/demo/settings/frame.txt --reserve 200
   morsel survey exports/ --vocab models/mine/ --format json > weights.json`,
 		SilenceUsage:  true,
 		SilenceErrors: true,

@@ -27,7 +27,7 @@ The report gives the totals, the spread of tokens per document (min, median, p90
 max) with a histogram, a breakdown by file type, the largest documents, and every input or
 record that was not counted, with the reason. The exit status is 1 when any input could not
 be read; the report still covers all the rest.`,
-		Example: `  morsel survey testdata/demo
+		Example: `  morsel survey testdata/demo/docs
   morsel survey exports/tickets.jsonl --field body.text --format json
   morsel survey docs/ --include '*.md' --exclude 'drafts/**' --format csv > weights.csv`,
 		Args: cobra.MinimumNArgs(1),

@@ -47,12 +47,12 @@ func runSurvey(t *testing.T, args ...string) (surveyJSON, string, int) {
 // The survey's totals equal the sum of what pieces counts for the same
 // texts, document by document.
 func TestSurveyTotalsMatchPieces(t *testing.T) {
-	s, _, code := runSurvey(t, "../../testdata/demo")
+	s, _, code := runSurvey(t, "../../testdata/demo/docs")
 	if code != 0 {
 		t.Fatalf("exit %d", code)
 	}
 	texts := map[string]string{}
-	inputs, _ := corpus.List([]string{"../../testdata/demo"}, corpus.Options{})
+	inputs, _ := corpus.List([]string{"../../testdata/demo/docs"}, corpus.Options{})
 	for _, in := range inputs {
 		corpus.Read(in, corpus.Options{}, func(it corpus.Item) error {
 			if it.Doc != nil {
@@ -87,7 +87,7 @@ func TestSurveyTotalsMatchPieces(t *testing.T) {
 
 // One worker or eight: the same report, byte for byte.
 func TestSurveyWorkersAgree(t *testing.T) {
-	inputs := []string{"../../testdata/demo", "../../testdata/golden/corpus"}
+	inputs := []string{"../../testdata/demo/docs", "../../testdata/golden/corpus"}
 	for _, f := range []string{"json", "table", "csv", "md"} {
 		one, _, c1 := run(t, "", append([]string{"survey", "--format", f, "--workers", "1"}, inputs...)...)
 		eight, _, c8 := run(t, "", append([]string{"survey", "--format", f, "--workers", "8"}, inputs...)...)

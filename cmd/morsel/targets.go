@@ -110,10 +110,11 @@ type settings struct {
 
 // loadFrame reads and parses a frame file: a file that cannot be read is
 // an input error (exit status 1), one without {{document}} bad usage.
-func loadFrame(cmd, path string) (*request.Frame, error) {
+func (sh *shared) loadFrame(cmd, path string) (*request.Frame, error) {
 	if path == "" {
 		return nil, nil
 	}
+	sh.reads(path, "frame")
 	data, err := os.ReadFile(path)
 	if err != nil {
 		return nil, &inputError{fmt.Errorf("reading frame: %w", err)}
@@ -139,6 +140,7 @@ func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *req
 	rq := &settings{overhead: rf.overhead, answer: request.Answer{Tokens: rf.reserve}}
 	framePath := rf.frame
 	if t != nil {
+		sh.reads(t.File, "targets file")
 		rq.target = t.Name
 		if t.Vocab != "" && !flags.Changed("vocab") && !flags.Changed("merges") {
 			sh.vocab, sh.merges = t.Vocab, t.Merges
@@ -176,9 +178,9 @@ func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *req
 		return nil, usagef(cmd, "%s leaves no room for a document in the %d-token window: reserve fewer tokens than the window, or give a larger --window", what, rq.window)
 	}
 	if t != nil && !flags.Changed("frame") {
-		rq.frame, err = targetFrame(cmd, t)
+		rq.frame, err = sh.targetFrame(cmd, t)
 	} else {
-		rq.frame, err = loadFrame(cmd, framePath)
+		rq.frame, err = sh.loadFrame(cmd, framePath)
 	}
 	if err != nil {
 		return nil, err
@@ -190,10 +192,11 @@ func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *req
 // targetFrame reads the frame a target names. The frame is part of the
 // targets file's settings, so a frame that cannot be read is bad usage
 // (exit status 2) at the target's line.
-func targetFrame(cmd string, t *request.Target) (*request.Frame, error) {
+func (sh *shared) targetFrame(cmd string, t *request.Target) (*request.Frame, error) {
 	if t.Frame == "" {
 		return nil, nil
 	}
+	sh.reads(t.Frame, "frame of target "+t.Name)
 	data, err := os.ReadFile(t.Frame)
 	if err != nil {
 		why := err.Error()

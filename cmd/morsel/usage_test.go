@@ -75,7 +75,7 @@ func TestStdinDash(t *testing.T) {
 }
 
 func TestFragmentsCSVHasTerms(t *testing.T) {
-	out, _, code := runMorsel(t, "fragments", demoDir, "--terms", demoDir+"/terms.txt", "--format", "csv")
+	out, _, code := runMorsel(t, "fragments", demoDir, "--terms", demoSettings+"/terms.txt", "--format", "csv")
 	if code != 0 {
 		t.Fatalf("exit %d", code)
 	}
@@ -92,12 +92,12 @@ func TestFragmentsCSVHasTerms(t *testing.T) {
 // crash of the runtime.
 func TestWorkersBounded(t *testing.T) {
 	for _, n := range []string{"1000000000", "1025", "0", "-3"} {
-		_, stderr, code := run(t, "", "survey", "../../testdata/demo", "--workers", n)
+		_, stderr, code := run(t, "", "survey", "../../testdata/demo/docs", "--workers", n)
 		if code != exitUsage || !strings.Contains(stderr, "--workers") {
 			t.Errorf("--workers %s: exit %d, stderr %q; want %d naming --workers", n, code, stderr, exitUsage)
 		}
 	}
-	if _, _, code := run(t, "", "survey", "../../testdata/demo", "--workers", "1024"); code != exitOK {
+	if _, _, code := run(t, "", "survey", "../../testdata/demo/docs", "--workers", "1024"); code != exitOK {
 		t.Errorf("--workers 1024: exit %d", code)
 	}
 }

@@ -51,12 +51,12 @@ func TestTablesFitTheWidth(t *testing.T) {
 
 func TestSourcesRelativeToThePathGiven(t *testing.T) {
 	out, _, _ := runMorsel(t, "survey", demoDir, "--rows", "0")
-	if strings.Contains(out, "testdata/demo/") || !strings.Contains(out, "\n README.md ") {
+	if strings.Contains(out, "testdata/demo/docs/") || !strings.Contains(out, "\n memo-ja-kirisaki-shipping.txt ") {
 		t.Errorf("sources not shown relative to %s:\n%s", demoDir, out)
 	}
 	// JSON and CSV keep the source as walked.
 	js, _, _ := runMorsel(t, "survey", demoDir, "--format", "csv")
-	if !strings.Contains(js, demoDir+"/README.md") {
+	if !strings.Contains(js, demoDir+"/memo-ja-kirisaki-shipping.txt") {
 		t.Errorf("CSV lost the walked source")
 	}
 }

@@ -57,6 +57,7 @@ func (c *collector[R]) emit(it corpus.Item, r R, err error) error {
 func walkDocs[R any](sh *shared, cf *corpusFlags, paths []string, work func(*corpus.Document) (R, error), c collector[R]) ([]report.Skipped, error) {
 	opt := cf.options()
 	opt.Stdin = sh.stdin
+	opt.Settings = sh.read
 	if err := corpus.CheckPatterns(opt); err != nil {
 		return nil, usagef("", "--%v", err)
 	}

@@ -319,7 +319,7 @@ func TestDemoPlantedTermsOnTop(t *testing.T) {
 			planted[w] = true
 		}
 	}
-	gf, err := os.Open("../../testdata/demo/terms.txt")
+	gf, err := os.Open("../../testdata/demo/settings/terms.txt")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -329,7 +329,7 @@ func TestDemoPlantedTermsOnTop(t *testing.T) {
 		t.Fatal(err)
 	}
 	fr := NewFragmenter(reporttest.Encoder(t), terms)
-	err = walk.Walk([]string{"../../testdata/demo"}, corpus.Options{}, 2, nil, fr.Scan,
+	err = walk.Walk([]string{"../../testdata/demo/docs"}, corpus.Options{}, 2, nil, fr.Scan,
 		func(it corpus.Item, dw *DocWords, err error) error {
 			if it.Doc != nil && err == nil {
 				fr.AddWords(it.Doc.Source, it.Doc.Record, dw)

@@ -47,7 +47,7 @@ func learnDemo(t *testing.T, holdout float64) *Report {
 	if err != nil {
 		t.Fatal(err)
 	}
-	paths, _ := filepath.Glob("../../testdata/demo/*")
+	paths, _ := filepath.Glob("../../testdata/demo/docs/*")
 	texts := map[string][]byte{}
 	words := bpe.NewWordCount(base)
 	for _, p := range paths {

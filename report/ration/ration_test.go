@@ -271,7 +271,7 @@ func TestRationHonorSpecials(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	text, err := os.ReadFile("../../testdata/demo/notes-logger-gateway-glitch.txt")
+	text, err := os.ReadFile("../../testdata/demo/docs/notes-logger-gateway-glitch.txt")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -291,7 +291,7 @@ func TestRationHonorSpecials(t *testing.T) {
 // demoFrame returns the demo corpus's prompt frame.
 func demoFrame(tb testing.TB) *request.Frame {
 	tb.Helper()
-	path := reporttest.Testdata("demo/frame.txt")
+	path := reporttest.Testdata("demo/settings/frame.txt")
 	data, err := os.ReadFile(path)
 	if err != nil {
 		tb.Fatal(err)

@@ -2,8 +2,11 @@ package render
 
 import (
 	"fmt"
+	"path/filepath"
 	"sort"
+	"strings"
 
+	"morsel/corpus"
 	"morsel/report"
 )
 
@@ -34,6 +37,7 @@ func SkipGrids(v View, skips []report.Skipped) []*Grid {
 		reason string
 		failed bool
 		n      int
+		names  []string // the settings files left out, which are few and named
 	}
 	var order []*tally
 	by := map[string]*tally{}
@@ -51,6 +55,9 @@ func SkipGrids(v View, skips []report.Skipped) []*Grid {
 			order = append(order, t)
 		}
 		t.n++
+		if s.Reason == corpus.ReasonSetting {
+			t.names = append(t.names, filepath.Base(s.Source))
+		}
 	}
 	sort.SliceStable(order, func(i, j int) bool { return order[i].n > order[j].n })
 	sum := &Grid{Title: fmt.Sprintf("Not counted (%s), by reason", Num(len(skips))), Header: []string{"reason", "inputs", ""}, Right: []int{1}}
@@ -58,6 +65,9 @@ func SkipGrids(v View, skips []report.Skipped) []*Grid {
 		kind := "left out"
 		if t.failed {
 			kind = "failed: listed below"
+		}
+		if len(t.names) > 0 {
+			kind = "left out: the run's own settings (" + strings.Join(t.names, ", ") + ")"
 		}
 		sum.AddRow(t.reason, Num(t.n), kind)
 	}

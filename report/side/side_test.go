@@ -19,7 +19,7 @@ func demo(t *testing.T) *Report {
 	if err != nil {
 		t.Fatal(err)
 	}
-	paths, _ := filepath.Glob("../../testdata/demo/*")
+	paths, _ := filepath.Glob("../../testdata/demo/docs/*")
 	words := bpe.NewWordCount(g)
 	var texts [][]byte
 	for _, p := range paths {

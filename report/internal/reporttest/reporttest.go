@@ -198,7 +198,7 @@ func Encoder(t testing.TB) *bpe.Encoder {
 func RealTexts(t testing.TB) map[string][]byte {
 	t.Helper()
 	out := map[string][]byte{}
-	for _, pat := range []string{Testdata("demo/*"), Testdata("golden/corpus/*")} {
+	for _, pat := range []string{Testdata("demo/docs/*"), Testdata("golden/corpus/*")} {
 		files, _ := filepath.Glob(pat)
 		for _, f := range files {
 			if fi, err := os.Stat(f); err != nil || fi.IsDir() {
@@ -228,7 +228,7 @@ func Testdata(rel string) string {
 // 200 kB: English with some German, French, Japanese and Russian.
 func BenchText(b *testing.B) []byte {
 	b.Helper()
-	paths, err := filepath.Glob(Testdata("demo/*.[mt][dx]*"))
+	paths, err := filepath.Glob(Testdata("demo/docs/*.[mt][dx]*"))
 	if err != nil || len(paths) == 0 {
 		b.Fatalf("demo corpus: %v", err)
 	}
