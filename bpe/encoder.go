@@ -167,6 +167,14 @@ func encodeTo[T int | uint32](e *Encoder, dst []T, text []byte) ([]T, Stats) {
 // ids.
 func (e *Encoder) Count(text []byte) int { return e.CountStats(text).Tokens }
 
+// CountChecked is Count with the error of a split pattern that ran past
+// its time limit (Stats.Err): a caller that reports counts as exact skips
+// the text on that error.
+func (e *Encoder) CountChecked(text []byte) (int, error) {
+	st := e.CountStats(text)
+	return st.Tokens, st.Err
+}
+
 // CountStats returns the token count of text and the special-token strings
 // it holds.
 func (e *Encoder) CountStats(text []byte) Stats {

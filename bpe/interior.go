@@ -31,12 +31,15 @@ func (e *Encoder) Interior(text []byte) Interior {
 }
 
 // Count returns the tokens of before, the text and after, joined, as
-// Encoder.Count would give them for the joined text.
-func (in Interior) Count(before, after []byte) int {
+// Encoder.Count would give them for the joined text, and the error of a
+// split pattern that ran past its time limit (see CountChecked).
+func (in Interior) Count(before, after []byte) (int, error) {
 	if in.head > in.end {
-		return in.e.Count(join(before, in.text, after))
+		return in.e.CountChecked(join(before, in.text, after))
 	}
-	return in.e.Count(join(before, in.text[:in.head], nil)) + in.tokens + in.e.Count(join(nil, in.text[in.end:], after))
+	// The interior exists only under the GPT-2 hand scanner, which has no
+	// time limit to run past.
+	return in.e.Count(join(before, in.text[:in.head], nil)) + in.tokens + in.e.Count(join(nil, in.text[in.end:], after)), nil
 }
 
 func join(a, b, c []byte) []byte {

@@ -30,7 +30,8 @@ func FuzzInteriorCount(f *testing.F) {
 	f.Fuzz(func(t *testing.T, before, text, after []byte) {
 		for _, e := range []*Encoder{plain, honor, other, bundle} {
 			in := e.Interior(text)
-			if got, want := in.Count(before, after), e.Count(join(before, text, after)); got != want {
+			got, _ := in.Count(before, after)
+			if want := e.Count(join(before, text, after)); got != want {
 				t.Fatalf("%q + %q + %q: %d tokens from the interior, %d joined", before, text, after, got, want)
 			}
 		}

@@ -113,16 +113,25 @@ func TestTemplateTokensInRequests(t *testing.T) {
 }
 
 // A document on which the split pattern runs past its time limit is
-// skipped with the reason; the others are counted.
-func TestSurveyPatternTimeout(t *testing.T) {
+// skipped with the reason, in every command that counts documents; the
+// others are counted.
+func TestPatternTimeoutSkips(t *testing.T) {
 	if testing.Short() {
 		t.Skip("waits for the match timeout")
 	}
 	dir := t.TempDir()
 	os.WriteFile(filepath.Join(dir, "bad.txt"), []byte(strings.Repeat("a", 40)+"b"), 0o644)
 	os.WriteFile(filepath.Join(dir, "ok.txt"), []byte("hello world"), 0o644)
-	out, _, code := run(t, "", "survey", "--split-pattern", "(a+)+$", "--format", "json", dir)
-	if code != 1 || !strings.Contains(out, "time limit") || !strings.Contains(out, `"documents": 1`) {
-		t.Fatalf("exit %d\n%s", code, out)
+	for _, args := range [][]string{
+		{"survey"},
+		{"fit", "--window", "1000"},
+		{"ration", "--budget", "1000"},
+		{"quote", "--targets", demoTargets, "--target", "harbor-small"},
+	} {
+		args = append(args, "--split-pattern", "(a+)+$", "--format", "json", "--quiet", dir)
+		out, _, code := run(t, "", args...)
+		if code != 1 || !strings.Contains(out, "time limit") || !strings.Contains(out, `"documents": 1`) || !strings.Contains(out, "bad.txt") {
+			t.Errorf("%s: exit %d\n%s", args[0], code, out)
+		}
 	}
 }

@@ -64,16 +64,25 @@ func (f *Fitter) Fit(d *corpus.Document) (Doc, error) {
 	if err != nil {
 		return Doc{}, err
 	}
-	return f.FitText(d.Source, d.Record, text), nil
+	return f.FitText(d.Source, d.Record, text)
 }
 
-// FitText returns the verdict for text, the document source (record).
-func (f *Fitter) FitText(source string, record int, text []byte) Doc {
-	in := request.InputTokens(f.Enc, f.Frame, report.Where(source, record), text, f.Overhead)
+// FitText returns the verdict for text, the document source (record). It
+// fails when a split pattern ran past its time limit on the text, as the
+// verdict would then rest on a count that is not exact.
+func (f *Fitter) FitText(source string, record int, text []byte) (Doc, error) {
+	in, err := request.InputTokens(f.Enc, f.Frame, report.Where(source, record), text, f.Overhead)
+	if err != nil {
+		return Doc{}, err
+	}
+	tokens, err := f.Enc.CountChecked(text)
+	if err != nil {
+		return Doc{}, err
+	}
 	res := f.Answer.For(in)
 	margin := f.Window - in - res
-	return Doc{Source: source, Record: record, Tokens: f.Enc.Count(text), InputTokens: in, Reserve: res,
-		Window: f.Window, Fits: margin >= 0, Margin: margin}
+	return Doc{Source: source, Record: record, Tokens: tokens, InputTokens: in, Reserve: res,
+		Window: f.Window, Fits: margin >= 0, Margin: margin}, nil
 }
 
 // Collector folds walk results into a Report.
@@ -82,8 +91,9 @@ type Collector struct{ r Report }
 // NewCollector starts a fit report.
 func NewCollector(f *Fitter, target string) *Collector {
 	name := "<empty>"
+	frameTok, _ := request.InputTokens(f.Enc, f.Frame, name, nil, f.Overhead) // the frame alone: a pattern timeout there shows on every document
 	return &Collector{r: Report{Vocabulary: f.Enc.Vocab().Info(), Target: target, Window: f.Window,
-		Frame: f.Frame.Label(), FrameTok: request.InputTokens(f.Enc, f.Frame, name, nil, f.Overhead), Overhead: f.Overhead,
+		Frame: f.Frame.Label(), FrameTok: frameTok, Overhead: f.Overhead,
 		Documents: []Doc{}, Skipped: []report.Skipped{}}}
 }
 

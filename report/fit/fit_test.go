@@ -30,7 +30,10 @@ func TestFitMargins(t *testing.T) {
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			f := &Fitter{Enc: enc, Window: tc.window, Answer: tc.answer, Overhead: tc.over}
-			d := f.FitText("a.txt", 0, doc)
+			d, err := f.FitText("a.txt", 0, doc)
+			if err != nil {
+				t.Fatal(err)
+			}
 			if d.Margin != tc.margin || d.Reserve != tc.reserve || d.Fits != (tc.margin >= 0) || d.InputTokens != n+tc.over {
 				t.Fatalf("got %+v, want margin %d reserve %d", d, tc.margin, tc.reserve)
 			}

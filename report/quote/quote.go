@@ -119,7 +119,10 @@ func Price(ps []*Pricer, source string, record int, text []byte) (Doc, error) {
 				in = p.Enc.Interior(text)
 				interiors[p.Enc] = in
 			}
-			n = in.Count(before, after)
+			var err error
+			if n, err = in.Count(before, after); err != nil {
+				return d, fmt.Errorf("target %s: %w", p.Target.Name, err)
+			}
 			counted[key] = n
 		}
 		in := n + p.Overhead

@@ -77,6 +77,9 @@ const blockMin = 128
 // the frame and one character.
 func (r *Rationer) Cut(source string, record int, text []byte, keepText bool) ([]Chunk, int, error) {
 	c := r.newCutter(report.Where(source, record), text)
+	if c.err != nil {
+		return nil, c.total, c.err
+	}
 	if len(text) == 0 {
 		return nil, 0, nil
 	}
@@ -84,6 +87,9 @@ func (r *Rationer) Cut(source string, record int, text []byte, keepText bool) ([
 	s, prevEnd := 0, 0
 	for {
 		e, cut, tok, err := c.next(s, prevEnd+1)
+		if err == nil {
+			err = c.err
+		}
 		if err != nil {
 			return out, c.total, err
 		}
@@ -124,6 +130,18 @@ type cutter struct {
 	// overhead included.
 	frameTok int
 	buf      []byte
+	// err is the first split-pattern timeout met while counting: the plan
+	// then rests on counts that are not exact, and the document fails.
+	err error
+}
+
+// count returns the tokens of t, keeping the first pattern timeout in c.err.
+func (c *cutter) count(t []byte) int {
+	n, err := c.r.Enc.CountChecked(t)
+	if err != nil && c.err == nil {
+		c.err = err
+	}
+	return n
 }
 
 func (r *Rationer) newCutter(name string, text []byte) *cutter {
@@ -133,14 +151,14 @@ func (r *Rationer) newCutter(name string, text []byte) *cutter {
 	if !c.generic {
 		if k := lastSafeCut(c.before, 0, len(c.before)); k > 0 {
 			c.preCut = k
-			c.preTok = r.Enc.Count(c.before[:k])
+			c.preTok = c.count(c.before[:k])
 		}
 		if k := firstSafeCut(c.after, 0, len(c.after)); k > 0 {
 			c.postCut = k
-			c.postTok = r.Enc.Count(c.after[k:])
+			c.postTok = c.count(c.after[k:])
 		}
 	}
-	c.frameTok = r.Enc.Count(r.Frame.Assemble(name, nil)) + r.Overhead
+	c.frameTok = c.count(r.Frame.Assemble(name, nil)) + r.Overhead
 	if c.generic {
 		c.encodeWhole()
 	} else {
@@ -162,7 +180,7 @@ func (c *cutter) countBlocks() {
 		if y == 0 {
 			y = n
 		}
-		sum += c.r.Enc.Count(c.text[x:y])
+		sum += c.count(c.text[x:y])
 		c.marks = append(c.marks, uint32(y))
 		c.cums = append(c.cums, uint32(sum))
 		x = y
@@ -175,7 +193,10 @@ func (c *cutter) countBlocks() {
 // as a split rule other than GPT-2's has no context-free edges.
 func (c *cutter) encodeWhole() {
 	v := c.r.Enc.Vocab()
-	ids := c.r.Enc.Encode(c.text)
+	ids, st := c.r.Enc.EncodeStats(nil, c.text)
+	if st.Err != nil && c.err == nil {
+		c.err = st.Err
+	}
 	c.marks = make([]uint32, 1, len(ids)+2)
 	c.cums = make([]uint32, 1, len(ids)+2)
 	pos := 0
@@ -446,14 +467,14 @@ func (c *cutter) framed(s, e int) int {
 		if ia < ib {
 			a, b := int(c.marks[ia])-s, int(c.marks[ib])-s
 			c.buf = append(append(c.buf[:0], c.before[c.preCut:]...), t[:a]...)
-			head := c.preTok + c.r.Enc.Count(c.buf)
+			head := c.preTok + c.count(c.buf)
 			c.buf = append(append(c.buf[:0], t[b:]...), c.after[:c.postCut]...)
-			tail := c.r.Enc.Count(c.buf) + c.postTok
+			tail := c.count(c.buf) + c.postTok
 			return head + int(c.cums[ib]-c.cums[ia]) + tail + c.r.Overhead
 		}
 	}
 	c.buf = append(append(append(c.buf[:0], c.before...), t...), c.after...)
-	return c.r.Enc.Count(c.buf) + c.r.Overhead
+	return c.count(c.buf) + c.r.Overhead
 }
 
 // safeCut reports whether i is a pre-token edge of t under the GPT-2 rule

@@ -73,12 +73,15 @@ func (f *Frame) Label() string {
 
 // InputTokens returns the input tokens of the request for doc: the tokens
 // of the assembled text, counted on that text itself (BPE does not add up
-// across the frame's edges), plus overhead.
-func InputTokens(enc *bpe.Encoder, f *Frame, source string, doc []byte, overhead int) int {
-	if f == nil {
-		return enc.Count(doc) + overhead
+// across the frame's edges), plus overhead. The error is that of a split
+// pattern that ran past its time limit (bpe.Encoder.CountChecked): the
+// count is then not exact.
+func InputTokens(enc *bpe.Encoder, f *Frame, source string, doc []byte, overhead int) (int, error) {
+	if f != nil {
+		doc = f.Assemble(source, doc)
 	}
-	return enc.Count(f.Assemble(source, doc)) + overhead
+	n, err := enc.CountChecked(doc)
+	return n + overhead, err
 }
 
 // unknownMarks returns an error naming the first {{name}} in data that is

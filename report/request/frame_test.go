@@ -44,7 +44,7 @@ func TestInputTokensOnAssembledText(t *testing.T) {
 	enc := reporttest.Encoder(t)
 	f, _ := ParseFrame("f", []byte("Note: {{document}}"))
 	doc := []byte("salt")
-	got := InputTokens(enc, f, "x", doc, 5)
+	got, _ := InputTokens(enc, f, "x", doc, 5)
 	if want := enc.Count([]byte("Note: salt")) + 5; got != want {
 		t.Fatalf("input tokens %d, want %d", got, want)
 	}
