@@ -1,8 +1,8 @@
 // Command bigbundle writes a large byte-level tokenizer bundle for the
 // load benchmark (scripts/bench-bundle.sh): the qwen3 bundle's components
-// and vocabulary, grown to -tokens tokens by joining pairs of existing
-// tokens, and its merges grown to -merges by adding, for existing tokens,
-// the other ways to split them in two. The result is valid (every merge
+// and vocabulary, grown to -tokens tokens by joining runs of existing
+// tokens, and its merges grown to -merges by adding, for the new tokens and
+// then the old, the other ways to split them in two. The result is valid (every merge
 // names tokens of the vocabulary and makes one) but its later merges are
 // not learned from any text. It is never committed. With -digit-groups
 // -tokens 0 -merges 0 it writes qwen3 with the digit-groups split pattern
@@ -85,25 +85,9 @@ func run(from, out string, wantTokens, wantMerges int, groups bool) error {
 		seen[m] = true
 	}
 	rng := rand.New(rand.NewPCG(1, 2))
-	for len(model.Vocab) < wantTokens && len(model.Merges) < wantMerges {
-		a, c := byID[rng.IntN(len(byID))], byID[rng.IntN(len(byID))]
-		if a == "" || c == "" || utf8.RuneCountInString(a)+utf8.RuneCountInString(c) > 32 {
-			continue
-		}
-		t := a + c
-		if _, ok := model.Vocab[t]; ok || seen[[2]string{a, c}] {
-			continue
-		}
-		model.Vocab[t] = next
-		byID = append(byID, t)
-		next++
-		model.Merges = append(model.Merges, [2]string{a, c})
-		seen[[2]string{a, c}] = true
-	}
-	for t := range model.Vocab {
-		if len(model.Merges) >= wantMerges {
-			break
-		}
+	// splits returns the ways to cut t in two tokens of the vocabulary
+	// that are not merges yet.
+	splits := func(t string, out [][2]string) [][2]string {
 		for k := 1; k < len(t); k++ {
 			if !utf8.RuneStart(t[k]) {
 				continue
@@ -112,9 +96,59 @@ func run(from, out string, wantTokens, wantMerges int, groups bool) error {
 			if _, ok := model.Vocab[p[0]]; !ok || seen[p] {
 				continue
 			}
-			if _, ok := model.Vocab[p[1]]; !ok {
+			if _, ok := model.Vocab[p[1]]; ok {
+				out = append(out, p)
+			}
+		}
+		return out
+	}
+	// A new token is x+y+z for two merges (x, y) and (y, z), so that it
+	// splits at least two ways (xy|z and x|yz), the best of several such
+	// tries by the ways it splits: the merges then outgrow the tokens
+	// about two to one, as in the large vocabularies that ship.
+	byLeft := map[string][]int{}
+	for i, m := range model.Merges {
+		byLeft[m[0]] = append(byLeft[m[0]], i)
+	}
+	var best, cand [][2]string
+	for len(model.Vocab) < wantTokens && len(model.Merges) < wantMerges {
+		best = best[:0]
+		for try := 0; try < 16; try++ {
+			xy := model.Merges[rng.IntN(len(model.Merges))]
+			after := byLeft[xy[1]]
+			if len(after) == 0 {
 				continue
 			}
+			t := xy[0] + xy[1] + model.Merges[after[rng.IntN(len(after))]][1]
+			if utf8.RuneCountInString(t) > 32 {
+				continue
+			}
+			if _, ok := model.Vocab[t]; ok {
+				continue
+			}
+			if cand = splits(t, cand[:0]); len(cand) > len(best) {
+				best = append(best[:0], cand...)
+			}
+		}
+		if len(best) == 0 {
+			continue
+		}
+		t := best[0][0] + best[0][1]
+		model.Vocab[t] = next
+		byID = append(byID, t)
+		next++
+		// Every token still to come needs one merge of its own.
+		room := wantMerges - len(model.Merges) - (wantTokens - len(model.Vocab))
+		for _, p := range best[:max(1, min(len(best), room))] {
+			model.Merges = append(model.Merges, p)
+			seen[p] = true
+		}
+	}
+	for t := range model.Vocab {
+		if len(model.Merges) >= wantMerges {
+			break
+		}
+		for _, p := range splits(t, cand[:0]) {
 			seen[p] = true
 			model.Merges = append(model.Merges, p)
 			if len(model.Merges) >= wantMerges {
