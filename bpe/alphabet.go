@@ -1,5 +1,7 @@
 package bpe
 
+import "unicode/utf8"
+
 // The byte alphabet of byte-level BPE: each of the 256 byte values is spelled
 // as one printable character, so that a vocabulary file can be plain text.
 // Printable Latin-1 bytes stand for themselves; the other 68 bytes (controls,
@@ -39,15 +41,21 @@ func SpellBytes(raw []byte) string {
 // A character outside the byte alphabet (as in some added tokens) stands for
 // its own UTF-8 bytes; ok reports whether every character was in the alphabet.
 func unspell(s string) (raw []byte, ok bool) {
-	raw = make([]byte, 0, len(s))
-	ok = true
-	for _, r := range s {
+	return appendUnspelled(make([]byte, 0, len(s)), []byte(s))
+}
+
+// appendUnspelled is unspell appending to dst.
+func appendUnspelled(dst, s []byte) ([]byte, bool) {
+	ok := true
+	for len(s) > 0 {
+		r, n := utf8.DecodeRune(s)
+		s = s[n:]
 		if b, in := runeToByte[r]; in {
-			raw = append(raw, b)
+			dst = append(dst, b)
 			continue
 		}
 		ok = false
-		raw = append(raw, string(r)...)
+		dst = utf8.AppendRune(dst, r)
 	}
-	return raw, ok
+	return dst, ok
 }

@@ -127,12 +127,16 @@ func ParseBundle(name string, data []byte, configName string, config []byte) (*V
 
 // bundleSpec is a bundle as read, before its components are built.
 type bundleSpec struct {
-	name       string
-	comps      map[string]json.RawMessage // the small members, by key
-	model      modelSpec
-	vocab      []vocabEntry
-	merges     []mergeEntry
-	vocabLines []int // line of each vocabulary entry, for errors
+	name  string
+	comps map[string]json.RawMessage // the small members, by key
+	model modelSpec
+	vocab []vocabEntry
+	// src reads the file; the merges array starts at src.data[mergesAt]
+	// (0: there is none) and holds nMerges entries. The merges are read
+	// straight into the vocabulary's table by buildMerges, never held as
+	// a list: on a large bundle that list was the biggest part of a load.
+	src      *jscan
+	mergesAt int
 
 	// digested: read from the cache, where the vocabulary's keys are raw
 	// bytes already checked and the merges come resolved, by rank.
@@ -149,12 +153,8 @@ type mergeTriple struct{ rank, a, b, merged uint32 }
 
 type vocabEntry struct {
 	key []byte
-	id  int
-}
-
-type mergeEntry struct {
-	a, b []byte
-	line int
+	id  int32
+	at  int32 // offset of the entry in the file, for errors (0 from the cache)
 }
 
 type modelSpec struct {
@@ -197,6 +197,9 @@ func parseBundleJSON(name string, data []byte) (*bundleSpec, error) {
 				vocabSpan = [2]int{s, e}
 			case "merges":
 				mergesSpan = [2]int{s, e}
+				if b.nMerges, err = j.count(s); err != nil {
+					return err
+				}
 			default:
 				small[mk] = data[s:e]
 			}
@@ -238,72 +241,83 @@ func parseBundleJSON(name string, data []byte) (*bundleSpec, error) {
 	if err := b.readVocab(j, vocabSpan[0]); err != nil {
 		return nil, err
 	}
-	if mergesSpan[1] != 0 {
-		if err := b.readMerges(j, mergesSpan[0]); err != nil {
-			return nil, err
-		}
-	}
+	b.src, b.mergesAt = j, mergesSpan[0]
 	return b, nil
 }
 
 func (b *bundleSpec) readVocab(j *jscan, at int) error {
 	j.pos = at
-	lines := lineCounter{data: j.data}
 	return j.objectBytes(func(key []byte, at int) error {
 		key = j.own(key)
 		n, nat, err := j.int()
 		if err != nil {
 			return j.errAt(nat, "model.vocab: token %q: the id must be a whole number", key)
 		}
-		line := lines.at(int64(at))
 		if n < 0 || n >= maxTokenID {
-			return &posError{b.name, line, fmt.Sprintf("model.vocab: token %q has id %d, outside 0..%d", key, n, maxTokenID-1)}
+			return j.errAt(at, "model.vocab: token %q has id %d, outside 0..%d", key, n, maxTokenID-1)
 		}
-		b.vocab = append(b.vocab, vocabEntry{key, int(n)})
-		b.vocabLines = append(b.vocabLines, line)
+		b.vocab = append(b.vocab, vocabEntry{key, int32(n), int32(at)})
 		return nil
 	})
 }
 
-func (b *bundleSpec) readMerges(j *jscan, at int) error {
-	j.pos = at
-	lines := lineCounter{data: j.data}
-	var buf []byte
+// entryError is an error about vocabulary entry e.
+func (b *bundleSpec) entryError(e vocabEntry, format string, args ...any) error {
+	line := 0
+	if b.src != nil {
+		line = textfile.Line(b.src.data, int64(e.at))
+	}
+	return &posError{b.name, line, fmt.Sprintf(format, args...)}
+}
+
+// eachMerge calls fn with each merge of the file in order, its two tokens
+// as written (valid until the next call) and its offset.
+func (b *bundleSpec) eachMerge(fn func(rank int, x, y []byte, at int) error) error {
+	if b.mergesAt == 0 {
+		return nil
+	}
+	j := b.src
+	j.pos = b.mergesAt
+	var bx, by []byte
 	return j.array(func(i, at int) error {
-		line := lines.at(int64(at))
 		switch j.peek() {
 		case '"':
-			s, err := j.str(buf)
+			s, err := j.str(bx)
 			if err != nil {
 				return err
 			}
+			j.keep(&bx, s)
 			sp := bytes.IndexByte(s, ' ')
 			if sp <= 0 || sp == len(s)-1 || bytes.IndexByte(s[sp+1:], ' ') >= 0 {
-				return &posError{b.name, line, fmt.Sprintf("model.merges[%d]: a merge is two tokens separated by one space, not %q", i, s)}
+				return j.errAt(at, "model.merges[%d]: a merge is two tokens separated by one space, not %q", i, s)
 			}
-			s = j.own(s)
-			b.merges = append(b.merges, mergeEntry{s[:sp:sp], s[sp+1:], line})
+			return fn(i, s[:sp:sp], s[sp+1:], at)
 		case '[':
-			var parts [][]byte
+			var x, y []byte
+			n := 0
 			err := j.array(func(k, _ int) error {
-				s, err := j.str(buf)
+				buf := &bx
+				if k > 0 {
+					buf = &by
+				}
+				s, err := j.str(*buf)
 				if err != nil {
 					return err
 				}
-				parts = append(parts, j.own(s))
+				j.keep(buf, s)
+				x, y = y, s
+				n++
 				return nil
 			})
 			if err != nil {
 				return err
 			}
-			if len(parts) != 2 {
-				return &posError{b.name, line, fmt.Sprintf("model.merges[%d]: a merge pair holds two tokens, not %d", i, len(parts))}
+			if n != 2 {
+				return j.errAt(at, "model.merges[%d]: a merge pair holds two tokens, not %d", i, n)
 			}
-			b.merges = append(b.merges, mergeEntry{parts[0], parts[1], line})
-		default:
-			return &posError{b.name, line, fmt.Sprintf("model.merges[%d]: expected a string \"a b\" or a pair [a, b]", i)}
+			return fn(i, x, y, at)
 		}
-		return nil
+		return j.errAt(at, "model.merges[%d]: expected a string \"a b\" or a pair [a, b]", i)
 	})
 }
 
@@ -337,10 +351,18 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 	if err != nil {
 		return nil, err
 	}
+	// appendRaw appends to dst the bytes a key stands for; raw returns
+	// them, as key itself when they are the same.
+	appendRaw := func(dst, key []byte) []byte {
+		if byteLevel && !b.digested {
+			dst, _ = appendUnspelled(dst, key)
+			return dst
+		}
+		return append(dst, key...)
+	}
 	raw := func(key []byte) []byte {
 		if byteLevel && !b.digested {
-			r, _ := unspell(string(key))
-			return r
+			return appendRaw(make([]byte, 0, len(key)), key)
 		}
 		return key
 	}
@@ -352,7 +374,7 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 	}
 	size := 0
 	for _, e := range b.vocab {
-		size = max(size, e.id+1)
+		size = max(size, int(e.id)+1)
 	}
 	for i, a := range added {
 		if a.ID == nil || a.Content == nil {
@@ -388,23 +410,23 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 		if b.digested {
 			spell[e.id] = e.key
 			if !lazyIDs {
-				v.ids[string(e.key)] = e.id
+				v.ids[string(e.key)] = int(e.id)
 			}
 			v.tokens[e.id] = e.key
 			continue
 		}
 		if spell[e.id] != nil {
-			return nil, &posError{name, b.vocabLines[i], fmt.Sprintf("model.vocab: id %d is given to %q and to %q", e.id, spell[e.id], e.key)}
+			return nil, b.entryError(e, "model.vocab: id %d is given to %q and to %q", e.id, spell[e.id], e.key)
 		}
 		spell[e.id] = e.key
 		r := raw(e.key)
 		if other, dup := v.ids[string(r)]; dup {
 			if bytes.Equal(spell[other], e.key) {
-				return nil, &posError{name, b.vocabLines[i], fmt.Sprintf("model.vocab: token %q appears twice", e.key)}
+				return nil, b.entryError(e, "model.vocab: token %q appears twice", e.key)
 			}
-			return nil, &posError{name, b.vocabLines[i], fmt.Sprintf("model.vocab: ids %d and %d spell the same bytes %q", other, e.id, r)}
+			return nil, b.entryError(e, "model.vocab: ids %d and %d spell the same bytes %q", other, e.id, r)
 		}
-		v.ids[string(r)] = e.id
+		v.ids[string(r)] = int(e.id)
 		v.tokens[e.id] = r
 		b.raws[i] = r
 	}
@@ -451,7 +473,7 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 			v.byteID[c] = uint32(id)
 		}
 	}
-	if err := b.buildMerges(v, raw); err != nil {
+	if err := b.buildMerges(v, appendRaw); err != nil {
 		return nil, err
 	}
 	p := &pipeline{norm: norm, pre: pre, byteLevel: byteLevel, written: keepComponents(b.comps)}
@@ -499,7 +521,7 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 	return v, nil
 }
 
-func (b *bundleSpec) buildMerges(v *Vocab, raw func([]byte) []byte) error {
+func (b *bundleSpec) buildMerges(v *Vocab, raw func(dst, key []byte) []byte) error {
 	if b.digested {
 		v.merges = newU64Table(len(b.triples))
 		for _, t := range b.triples {
@@ -508,30 +530,30 @@ func (b *bundleSpec) buildMerges(v *Vocab, raw func([]byte) []byte) error {
 		v.nMerges = b.nMerges
 		return nil
 	}
-	v.merges = newU64Table(len(b.merges))
+	v.merges = newU64Table(b.nMerges)
+	v.nMerges = b.nMerges
 	prefix := []byte(v.model.prefix)
-	var buf []byte
-	for rank, e := range b.merges {
-		ra, rb := raw(e.a), raw(e.b)
+	var buf, ra, rb []byte
+	return b.eachMerge(func(rank int, x, y []byte, at int) error {
+		ra, rb = raw(ra[:0], x), raw(rb[:0], y)
 		a, aok := v.ids[string(ra)]
 		bb, bok := v.ids[string(rb)]
 		switch {
 		case !aok:
-			return &posError{b.name, e.line, fmt.Sprintf("model.merges[%d] %q %q names %q, which is not in the vocabulary", rank, e.a, e.b, e.a)}
+			return b.src.errAt(at, "model.merges[%d] %q %q names %q, which is not in the vocabulary", rank, x, y, x)
 		case !bok:
-			return &posError{b.name, e.line, fmt.Sprintf("model.merges[%d] %q %q names %q, which is not in the vocabulary", rank, e.a, e.b, e.b)}
+			return b.src.errAt(at, "model.merges[%d] %q %q names %q, which is not in the vocabulary", rank, x, y, y)
 		}
 		buf = append(append(buf[:0], ra...), bytes.TrimPrefix(rb, prefix)...)
 		merged, ok := v.ids[string(buf)]
 		if !ok {
-			return &posError{b.name, e.line, fmt.Sprintf("model.merges[%d] %q %q makes %q, which is not in the vocabulary", rank, e.a, e.b, buf)}
+			return b.src.errAt(at, "model.merges[%d] %q %q makes %q, which is not in the vocabulary", rank, x, y, buf)
 		}
 		// A pair listed twice takes its later rank, as the reference
 		// library's table does.
 		v.merges.put(pairKey(uint32(a), uint32(bb)), uint64(rank)<<32|uint64(merged))
-	}
-	v.nMerges = len(b.merges)
-	return nil
+		return nil
+	})
 }
 
 // someIDs returns the ids of the tokens that a load looks up by their

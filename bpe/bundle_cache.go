@@ -1,11 +1,13 @@
 package bpe
 
 import (
+	"bufio"
 	"bytes"
 	"crypto/sha256"
 	"encoding/binary"
 	"encoding/json"
 	"hash/crc32"
+	"io"
 	"os"
 	"path/filepath"
 )
@@ -85,8 +87,9 @@ func hexKey(k [32]byte) string {
 	return string(out)
 }
 
-// encodeCache returns the cache entry of a built bundle.
-func encodeCache(key [32]byte, b *bundleSpec, v *Vocab) []byte {
+// encodeCache writes the cache entry of a built bundle to w, a piece at a
+// time: the entry of a large bundle is megabytes that a load need not hold.
+func encodeCache(w io.Writer, key [32]byte, b *bundleSpec, v *Vocab) error {
 	small := map[string]json.RawMessage{}
 	for k, r := range b.comps {
 		small[k] = r
@@ -94,12 +97,22 @@ func encodeCache(key [32]byte, b *bundleSpec, v *Vocab) []byte {
 	ms, _ := json.Marshal(b.model)
 	small["\x00model"] = ms
 	head, _ := json.Marshal(small)
-	out := append([]byte(cacheMagic), key[:]...)
+	crc := crc32.New(castagnoli)
+	bw := bufio.NewWriterSize(io.MultiWriter(w, crc), 64<<10)
+	var out []byte
+	flush := func() {
+		if len(out) >= 32<<10 {
+			bw.Write(out)
+			out = out[:0]
+		}
+	}
+	out = append([]byte(cacheMagic), key[:]...)
 	out = appendString(out, string(head))
 	out = binary.AppendUvarint(out, uint64(len(b.vocab)))
 	for i, e := range b.vocab {
 		out = binary.AppendUvarint(out, uint64(e.id))
 		out = appendString(out, string(b.raws[i]))
+		flush()
 	}
 	out = binary.AppendUvarint(out, uint64(v.nMerges))
 	n := 0
@@ -110,8 +123,14 @@ func encodeCache(key [32]byte, b *bundleSpec, v *Vocab) []byte {
 		out = binary.AppendUvarint(out, k>>32)
 		out = binary.AppendUvarint(out, k&0xffffffff)
 		out = binary.AppendUvarint(out, rm&0xffffffff)
+		flush()
 	})
-	return binary.LittleEndian.AppendUint32(out, crc32.Checksum(out, castagnoli))
+	bw.Write(out)
+	if err := bw.Flush(); err != nil {
+		return err
+	}
+	_, err := w.Write(binary.LittleEndian.AppendUint32(nil, crc.Sum32()))
+	return err
 }
 
 func writeCache(dir, file string, key [32]byte, b *bundleSpec, v *Vocab) {
@@ -125,7 +144,7 @@ func writeCache(dir, file string, key [32]byte, b *bundleSpec, v *Vocab) {
 	if err != nil {
 		return
 	}
-	_, werr := f.Write(encodeCache(key, b, v))
+	werr := encodeCache(f, key, b, v)
 	cerr := f.Close()
 	if werr != nil || cerr != nil || os.Rename(f.Name(), file) != nil {
 		os.Remove(f.Name())
@@ -190,7 +209,7 @@ func decodeCache(data []byte, key [32]byte) (*bundleSpec, bool) {
 	b.vocab = make([]vocabEntry, nv)
 	for i := range b.vocab {
 		id := uv()
-		b.vocab[i] = vocabEntry{take(), int(id)}
+		b.vocab[i] = vocabEntry{key: take(), id: int32(id)}
 		if id >= maxTokenID {
 			bad = true
 		}

@@ -233,12 +233,42 @@ func isJSONDelim(c byte) bool {
 // own returns b if it is a slice of the data (a string with no escapes),
 // else a copy of it: bytes that outlive the next read.
 func (j *jscan) own(b []byte) []byte {
-	if len(b) > 0 {
-		if at := cap(j.data) - cap(b); at >= 0 && at < len(j.data) && &j.data[at] == &b[0] {
-			return b
-		}
+	if j.inData(b) {
+		return b
 	}
 	return bytes.Clone(b)
+}
+
+// inData reports whether b is a slice of the data.
+func (j *jscan) inData(b []byte) bool {
+	if cap(b) == 0 {
+		return false
+	}
+	at := cap(j.data) - cap(b)
+	return at >= 0 && at < cap(j.data) && &j.data[:cap(j.data)][at] == &b[:cap(b)][0]
+}
+
+// keep makes *buf the buffer of s, a string just read with *buf, when s
+// was unescaped into it (and may have grown it): the next read reuses it.
+func (j *jscan) keep(buf *[]byte, s []byte) {
+	if !j.inData(s) {
+		*buf = s[:0]
+	}
+}
+
+// count returns the number of elements of the array at offset at,
+// leaving the position where it was.
+func (j *jscan) count(at int) (int, error) {
+	saved := j.pos
+	defer func() { j.pos = saved }()
+	j.pos = at
+	n := 0
+	err := j.array(func(int, int) error {
+		n++
+		_, _, err := j.skip()
+		return err
+	})
+	return n, err
 }
 
 // object calls fn for each key of the object at the current position;
