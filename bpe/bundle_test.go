@@ -48,6 +48,8 @@ func TestBundleErrors(t *testing.T) {
 		{"added token clash", miniBundle("", `"added_tokens": [{"id": 0, "content": "zz", "special": true}]`), `which the vocabulary gives to "a"`},
 		{"unk missing", miniBundle(`"type": "BPE", "vocab": {"a": 0}, "merges": [], "unk_token": "<unk>"`), `unk_token "<unk>"`},
 		{"byte-level lacks bytes", miniBundle("", `"pre_tokenizer": {"type": "ByteLevel"}`), "one-byte token"},
+		{"merge pair of three", miniBundle(`"type": "BPE", "vocab": {"a": 0, "b": 1, "ab": 2}, "merges": [["a", "b", "a"]]`), "holds two tokens, not 3"},
+		{"merge neither form", miniBundle(`"type": "BPE", "vocab": {"a": 0, "b": 1, "ab": 2}, "merges": [7]`), `expected a string "a b" or a pair`},
 	}
 	for _, c := range cases {
 		_, err := ParseBundle("tok.json", []byte(c.data), "", nil)
@@ -57,6 +59,27 @@ func TestBundleErrors(t *testing.T) {
 		}
 		if !errors.Is(err, ErrSyntax) {
 			t.Errorf("%s: error %v does not wrap ErrSyntax", c.name, err)
+		}
+	}
+}
+
+// Merges whose tokens are written with escapes are read as the tokens
+// they spell, both halves of a pair kept apart though both are unescaped
+// into buffers.
+func TestBundleEscapedMerges(t *testing.T) {
+	for _, merges := range []string{`[["\u0061\u0062", "\u0063"], ["\u0061", "\u0062"]]`, `["\u0061\u0062 \u0063", "a\u0020b"]`} {
+		data := miniBundle(`"type": "BPE", "vocab": {"a": 0, "b": 1, "c": 2, "ab": 3, "abc": 4}, "merges": ` + merges)
+		v, err := ParseBundle("tok.json", []byte(data), "", nil)
+		if err != nil {
+			t.Fatalf("%s: %v", merges, err)
+		}
+		enc, _ := NewEncoder(v, Options{})
+		// "abc" is one token only through both merges: a b, then ab c.
+		if got := enc.Encode([]byte("abc")); len(got) != 1 || got[0] != 4 {
+			t.Errorf("%s: abc gives %v, want [4]", merges, got)
+		}
+		if v.nMerges != 2 {
+			t.Errorf("%s: %d merges, want 2", merges, v.nMerges)
 		}
 	}
 }
