@@ -55,8 +55,24 @@ be read; the report still covers all the rest.`,
 				sampler = survey.NewSampler(enc, sampleOf)
 				work = sampler.Weigh
 			}
+			// In the input's order, JSON and CSV rows are written as they
+			// come and the table keeps only the rows it shows.
+			var stream *survey.RowStream
+			if order == report.InputOrder {
+				switch f {
+				case render.JSON, render.CSV:
+					if stream, err = survey.NewRowStream(sh.stdout, f, enc.Vocab().Info()); err != nil {
+						return err
+					}
+					sv.Keep(0, stream.Row)
+				case render.Table, render.Markdown:
+					if rows > 0 {
+						sv.Keep(rows, nil)
+					}
+				}
+			}
 			skipped, err := walkDocs(sh, &cf, args, work, collector[survey.Weight]{
-				add:    func(_ *corpus.Document, w survey.Weight) error { sv.Add(w); return nil },
+				add:    func(_ *corpus.Document, w survey.Weight) error { return sv.Add(w) },
 				tokens: func(w survey.Weight) int { return w.Tokens },
 			})
 			if err != nil {
@@ -64,9 +80,12 @@ be read; the report still covers all the rest.`,
 			}
 			s := sv.Finish(skipped)
 			s.Sort(order)
-			if f == render.HTML {
+			switch {
+			case stream != nil:
+				err = stream.Finish(s)
+			case f == render.HTML:
 				err = writeSurveyHTML(sh, s, sampler, sampleOf, rows)
-			} else {
+			default:
 				err = survey.Write(sh.stdout, f, s, rows)
 			}
 			if err != nil {

@@ -116,14 +116,35 @@ func columnSet(cols []int, n int) []bool {
 
 // WriteCSV writes the header and rows as RFC 4180 CSV.
 func (g *Grid) WriteCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
-	if err := cw.Write(g.Header); err != nil {
+	rw, err := NewRowWriter(w, g.Header)
+	if err != nil {
 		return err
 	}
-	if err := cw.WriteAll(g.Rows); err != nil {
-		return err
+	for _, r := range g.Rows {
+		if err := rw.Write(r...); err != nil {
+			return err
+		}
 	}
-	return cw.Error()
+	return rw.Flush()
+}
+
+// A RowWriter writes CSV rows one at a time, as a Grid's WriteCSV writes
+// them all, for a table too long to hold.
+type RowWriter struct{ cw *csv.Writer }
+
+// NewRowWriter starts a CSV table under header.
+func NewRowWriter(w io.Writer, header []string) (*RowWriter, error) {
+	rw := &RowWriter{cw: csv.NewWriter(w)}
+	return rw, rw.Write(header...)
+}
+
+// Write writes one row.
+func (rw *RowWriter) Write(cells ...string) error { return rw.cw.Write(cells) }
+
+// Flush writes out what is buffered and returns the first write error.
+func (rw *RowWriter) Flush() error {
+	rw.cw.Flush()
+	return rw.cw.Error()
 }
 
 // WriteMarkdown writes the grid as a Markdown (GFM) table under a heading.

@@ -1,8 +1,6 @@
 package survey
 
 import (
-	"bufio"
-	"encoding/json"
 	"fmt"
 	"io"
 	"sort"
@@ -119,18 +117,86 @@ type Report struct {
 	Warnings   []string         `json:"warnings"`
 }
 
-// Surveyor folds walk results into a Report.
+// Surveyor folds walk results into a Report. It keeps every document's
+// row unless told to keep fewer (Keep); what the rest of the report needs
+// of a document is a few bytes, so that a survey of millions of records
+// stays small.
 type Surveyor struct {
-	s Report
+	s        Report
+	keep     int // rows kept: -1 for all
+	rows     func(Weight) error
+	tokens   tokenTally
+	keys     docKeys
+	names    names
+	byFormat map[string]*FormatShare
+	special  int // documents that hold special-token strings
 }
 
 // NewSurveyor starts a survey under the vocabulary described by info.
 func NewSurveyor(info bpe.Info) *Surveyor {
-	return &Surveyor{s: Report{Vocabulary: info, Documents: []Weight{}, Skipped: []report.Skipped{}, Warnings: []string{}}}
+	return &Surveyor{s: Report{Vocabulary: info, Documents: []Weight{}, Skipped: []report.Skipped{}, Warnings: []string{}},
+		keep: -1, byFormat: map[string]*FormatShare{}}
 }
 
-// Add takes one document's weight.
-func (sv *Surveyor) Add(w Weight) { sv.s.Documents = append(sv.s.Documents, w) }
+// Keep bounds the rows the report keeps to the first n documents' (n < 0
+// keeps all), and hands every row to rows (when not nil) as it comes, for
+// a writer that streams them. The totals, spread and every other part
+// still cover all the documents.
+func (sv *Surveyor) Keep(n int, rows func(Weight) error) {
+	sv.keep, sv.rows = n, rows
+}
+
+// Add takes one document's weight; the error is the row writer's.
+func (sv *Surveyor) Add(d Weight) error {
+	if sv.keep < 0 || len(sv.s.Documents) < sv.keep {
+		sv.s.Documents = append(sv.s.Documents, d)
+	}
+	t := &sv.s.Totals
+	t.Documents++
+	t.Tokens += int64(d.Tokens)
+	t.Bytes += d.Bytes
+	t.Chars += d.Chars
+	t.Words += d.Words
+	t.Specials += d.Specials
+	if d.Specials > 0 {
+		sv.special++
+	}
+	if win := sv.s.Vocabulary.Window; win > 0 && d.Tokens > win {
+		t.OverWindow++
+	}
+	f := sv.byFormat[d.Format]
+	if f == nil {
+		f = &FormatShare{Format: d.Format}
+		sv.byFormat[d.Format] = f
+	}
+	f.Documents++
+	f.Tokens += int64(d.Tokens)
+	f.Bytes += d.Bytes
+	sv.tokens.add(d.Tokens)
+	sv.keys.add(d.Hash, d.Tokens, d.Bytes)
+	sv.names.add(d.Source, d.Record)
+	sv.addLargest(d)
+	if sv.rows != nil {
+		return sv.rows(d)
+	}
+	return nil
+}
+
+// addLargest keeps d among the largest documents when it is one: the most
+// tokens first, the earlier of two equal ones first.
+func (sv *Surveyor) addLargest(d Weight) {
+	l := sv.s.Largest
+	if len(l) == LargestShown && d.Tokens <= l[len(l)-1].Tokens {
+		return
+	}
+	k := sort.Search(len(l), func(i int) bool { return l[i].Tokens < d.Tokens })
+	if len(l) < LargestShown {
+		l = append(l, Weight{})
+	}
+	copy(l[k+1:], l[k:])
+	l[k] = d
+	sv.s.Largest = l
+}
 
 // LargestShown is how many of the largest documents a survey lists.
 const LargestShown = 10
@@ -141,65 +207,29 @@ func (sv *Surveyor) Finish(skipped []report.Skipped) *Report {
 	s := &sv.s
 	s.Skipped = report.OrNone(skipped)
 	t := &s.Totals
-	byFormat := map[string]*FormatShare{}
-	tokens := make([]int, len(s.Documents))
-	for i, d := range s.Documents {
-		tokens[i] = d.Tokens
-		t.Documents++
-		t.Tokens += int64(d.Tokens)
-		t.Bytes += d.Bytes
-		t.Chars += d.Chars
-		t.Words += d.Words
-		t.Specials += d.Specials
-		if win := s.Vocabulary.Window; win > 0 && d.Tokens > win {
-			t.OverWindow++
-		}
-		f := byFormat[d.Format]
-		if f == nil {
-			f = &FormatShare{Format: d.Format}
-			byFormat[d.Format] = f
-		}
-		f.Documents++
-		f.Tokens += int64(d.Tokens)
-		f.Bytes += d.Bytes
-	}
 	for _, k := range s.Skipped {
 		t.Skipped++
 		if k.Failed {
 			t.Failed++
 		}
 	}
-	s.Identical = identicalGroups(s.Documents)
+	s.Identical = sv.identicalGroups()
 	for _, g := range s.Identical {
 		t.Repeats += len(g.Documents) - 1
 		t.RepeatTokens += int64(len(g.Documents)-1) * int64(g.Tokens)
 	}
-	s.Spread = report.SpreadOf(tokens)
-	s.Histogram = Histogram(tokens)
-	for _, f := range byFormat {
+	s.Spread = sv.tokens.spread()
+	s.Histogram = sv.tokens.histogram()
+	for _, f := range sv.byFormat {
 		s.Formats = append(s.Formats, *f)
 	}
 	sort.Slice(s.Formats, func(i, j int) bool {
 		a, b := s.Formats[i], s.Formats[j]
 		return a.Tokens > b.Tokens || a.Tokens == b.Tokens && a.Format < b.Format
 	})
-	idx := make([]int, len(s.Documents))
-	for i := range idx {
-		idx[i] = i
-	}
-	sort.SliceStable(idx, func(i, j int) bool { return s.Documents[idx[i]].Tokens > s.Documents[idx[j]].Tokens })
-	for k := 0; k < len(idx) && k < LargestShown; k++ {
-		s.Largest = append(s.Largest, s.Documents[idx[k]])
-	}
 	if t.Specials > 0 {
-		docs := 0
-		for _, d := range s.Documents {
-			if d.Specials > 0 {
-				docs++
-			}
-		}
 		s.Warnings = append(s.Warnings, fmt.Sprintf("%s document(s) hold %s special-token string(s) such as %s; they were counted as ordinary text (--specials honor counts each as its one special token)",
-			render.Num(docs), render.Num(t.Specials), specialNames(s.Vocabulary)))
+			render.Num(sv.special), render.Num(t.Specials), specialNames(s.Vocabulary)))
 	}
 	if t.Repeats > 0 {
 		s.Warnings = append(s.Warnings, fmt.Sprintf("%s document(s) have the same text as another (%s tokens counted more than once); --once counts each text once",
@@ -228,28 +258,11 @@ func specialNames(info bpe.Info) string {
 // [128,256) and so on up to the bin that holds the largest count, so a
 // context window of 2^k tokens falls on a bin edge.
 func Histogram(tokens []int) []Bin {
-	if len(tokens) == 0 {
-		return []Bin{}
-	}
-	bins := []Bin{{From: 0, To: 64}}
-	max := 0
+	var t tokenTally
 	for _, n := range tokens {
-		if n > max {
-			max = n
-		}
+		t.add(n)
 	}
-	for bins[len(bins)-1].To <= max {
-		last := bins[len(bins)-1].To
-		bins = append(bins, Bin{From: last, To: 2 * last})
-	}
-	for _, n := range tokens {
-		k := 0
-		for n >= bins[k].To {
-			k++
-		}
-		bins[k].Documents++
-	}
-	return bins
+	return t.histogram()
 }
 
 // Rendering.
@@ -258,15 +271,21 @@ func Histogram(tokens []int) []Bin {
 // the table view (0 lists them all); the CSV view is the per-document
 // table, complete.
 func Write(w io.Writer, f render.Format, s *Report, rows int) error {
-	if f == render.JSON {
-		return writeSurveyJSON(w, s)
+	if f == render.JSON || f == render.CSV {
+		rs, err := NewRowStream(w, f, s.Vocabulary)
+		if err != nil {
+			return err
+		}
+		for _, d := range s.Documents {
+			if err := rs.Row(d); err != nil {
+				return err
+			}
+		}
+		return rs.Finish(s)
 	}
 	docs := surveyDocGrid(s, rows, f)
-	if f == render.CSV {
-		return docs.WriteCSV(w)
-	}
 	grids := []*render.Grid{docs, render.TotalsGrid(totals(s)), spreadGrid(s), formatGrid(s)}
-	if len(s.Documents) > LargestShown {
+	if s.Totals.Documents > LargestShown {
 		grids = append(grids, largestGrid(s))
 	}
 	if len(s.Identical) > 0 {
@@ -297,21 +316,15 @@ func weightRow(d Weight) []string {
 }
 
 func surveyDocGrid(s *Report, rows int, f render.Format) *render.Grid {
-	g := &render.Grid{Sources: true, Title: fmt.Sprintf("Documents (%s) under %s", render.Num(len(s.Documents)), s.Vocabulary.Name), Header: weightHeader, Right: []int{2, 3, 4, 5, 6, 7}}
-	if f == render.CSV {
-		g.Header = []string{"source", "record", "format", "bytes", "characters", "words", "tokens", "bytes_per_token", "tokens_per_word", "special_strings"}
-		for _, d := range s.Documents {
-			g.AddRow(d.Source, fmt.Sprint(d.Record), d.Format, fmt.Sprint(d.Bytes), fmt.Sprint(d.Chars), fmt.Sprint(d.Words), fmt.Sprint(d.Tokens),
-				render.Ratio(float64(d.Bytes), float64(d.Tokens)), render.Ratio(float64(d.Tokens), float64(d.Words)), fmt.Sprint(d.Specials))
-		}
-		return g
-	}
+	g := &render.Grid{Sources: true, Title: fmt.Sprintf("Documents (%s) under %s", render.Num(s.Totals.Documents), s.Vocabulary.Name), Header: weightHeader, Right: []int{2, 3, 4, 5, 6, 7}}
 	for i, d := range s.Documents {
 		if rows > 0 && i == rows {
-			g.Notes = append(g.Notes, fmt.Sprintf("... and %s more documents (--rows 0 lists all; --format csv or json gives every row)", render.Num(len(s.Documents)-rows)))
 			break
 		}
 		g.AddRow(weightRow(d)...)
+	}
+	if rows > 0 && s.Totals.Documents > rows {
+		g.Notes = append(g.Notes, fmt.Sprintf("... and %s more documents (--rows 0 lists all; --format csv or json gives every row)", render.Num(s.Totals.Documents-rows)))
 	}
 	return g
 }
@@ -385,80 +398,26 @@ func largestGrid(s *Report) *render.Grid {
 	return g
 }
 
-// writeSurveyJSON writes s as WriteJSON would, but one document at a time,
-// so that a survey of a million documents is never held as one buffer.
-func writeSurveyJSON(w io.Writer, s *Report) error {
-	bw := bufio.NewWriterSize(w, 64<<10)
-	field := func(name string, v any, last bool) error {
-		b, err := json.MarshalIndent(v, "  ", "  ")
-		if err != nil {
-			return err
-		}
-		fmt.Fprintf(bw, "  %q: %s", name, b)
-		if !last {
-			bw.WriteString(",")
-		}
-		bw.WriteString("\n")
-		return nil
-	}
-	bw.WriteString("{\n")
-	if err := field("vocabulary", s.Vocabulary, false); err != nil {
-		return err
-	}
-	bw.WriteString("  \"documents\": [")
-	for i, d := range s.Documents {
-		b, err := json.MarshalIndent(d, "    ", "  ")
-		if err != nil {
-			return err
-		}
-		if i > 0 {
-			bw.WriteString(",")
-		}
-		bw.WriteString("\n    ")
-		bw.Write(b)
-	}
-	if len(s.Documents) > 0 {
-		bw.WriteString("\n  ")
-	}
-	bw.WriteString("],\n")
-	rest := []struct {
-		name string
-		v    any
-	}{{"skipped", s.Skipped}, {"totals", s.Totals}, {"spread", s.Spread}, {"histogram", s.Histogram},
-		{"formats", s.Formats}, {"largest", s.Largest}, {"identical", s.Identical}, {"warnings", s.Warnings}}
-	for i, r := range rest {
-		if err := field(r.name, r.v, i == len(rest)-1); err != nil {
-			return err
-		}
-	}
-	bw.WriteString("}\n")
-	return bw.Flush()
-}
-
 // identicalGroups returns the groups of documents that share a text, the
 // most tokens repeated first, each group's documents in walk order.
-func identicalGroups(docs []Weight) []Identical {
-	first := map[uint64]int{}
+func (sv *Surveyor) identicalGroups() []Identical {
+	dup := sv.keys.repeated()
 	var groups []Identical
-	for _, d := range docs {
-		if d.Bytes == 0 {
-			continue
-		}
-		k, seen := first[d.Hash]
-		if !seen {
-			first[d.Hash] = -1 - len(groups) // a group made only if a second comes
-			groups = append(groups, Identical{Tokens: d.Tokens, Bytes: d.Bytes, Documents: []string{report.Where(d.Source, d.Record)}})
-			continue
-		}
-		g := &groups[-1-k]
-		g.Documents = append(g.Documents, report.Where(d.Source, d.Record))
+	if len(dup) > 0 {
+		sv.keys.each(func(i int, k docKey) {
+			g, ok := dup[k.hash]
+			if !ok || k.bytes == 0 {
+				return
+			}
+			if g < 0 {
+				dup[k.hash] = len(groups)
+				groups = append(groups, Identical{Tokens: int(k.tokens), Bytes: sv.keys.bytesOf(i, k), Documents: []string{sv.names.of(i)}})
+				return
+			}
+			groups[g].Documents = append(groups[g].Documents, sv.names.of(i))
+		})
 	}
-	out := []Identical{}
-	for _, g := range groups {
-		if len(g.Documents) > 1 {
-			out = append(out, g)
-		}
-	}
+	out := append([]Identical{}, groups...)
 	sort.SliceStable(out, func(i, j int) bool {
 		return int64(len(out[i].Documents)-1)*int64(out[i].Tokens) > int64(len(out[j].Documents)-1)*int64(out[j].Tokens)
 	})
