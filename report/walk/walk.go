@@ -71,14 +71,20 @@ func Shard[R any](paths []string, opt corpus.Options, share corpus.Shard, worker
 		}
 	}
 
-	type job struct {
+	// A job is a batch of items in input order: small documents (a JSON
+	// Lines record) go many to a job, so that the hand-offs between the
+	// reader, the workers and emit cost little beside the counting.
+	type entry struct {
 		at   Place
 		item corpus.Item
 		res  R
 		err  error
-		done chan struct{}
 	}
-	// At most window items are between the reader and emit, which bounds
+	type job struct {
+		items []entry
+		done  chan struct{}
+	}
+	// At most window jobs are between the reader and emit, which bounds
 	// memory whatever one slow document does to the others.
 	window := 4 * workers
 	if window < 16 {
@@ -96,9 +102,15 @@ func Shard[R any](paths []string, opt corpus.Options, share corpus.Shard, worker
 		go func() {
 			defer wg.Done()
 			for j := range todo {
-				j.res, j.err = runWork(work, j.item.Doc)
-				j.item.Doc.Text = nil
-				j.item.Doc.Stream = nil
+				for k := range j.items {
+					e := &j.items[k]
+					if e.item.Doc == nil {
+						continue
+					}
+					e.res, e.err = runWork(work, e.item.Doc)
+					e.item.Doc.Text = nil
+					e.item.Doc.Stream = nil
+				}
 				close(j.done)
 			}
 		}()
@@ -108,6 +120,33 @@ func Shard[R any](paths []string, opt corpus.Options, share corpus.Shard, worker
 		defer close(ordered)
 		defer close(todo)
 		var at Place
+		var batch *job
+		var held int // text bytes in batch
+		flush := func() error {
+			j := batch
+			if j == nil {
+				return nil
+			}
+			batch, held = nil, 0
+			select {
+			case ordered <- j:
+			case <-stop:
+				for _, e := range j.items {
+					closeStream(e.item)
+				}
+				return errStopped
+			}
+			select {
+			case todo <- j:
+			case <-stop:
+				for _, e := range j.items {
+					closeStream(e.item)
+				}
+				close(j.done)
+				return errStopped
+			}
+			return nil
+		}
 		send := func(it corpus.Item) error {
 			here := at
 			at.Seq++
@@ -115,23 +154,15 @@ func Shard[R any](paths []string, opt corpus.Options, share corpus.Shard, worker
 				closeStream(it)
 				return nil
 			}
-			j := &job{at: here, item: it, done: make(chan struct{})}
-			select {
-			case ordered <- j:
-			case <-stop:
-				closeStream(it)
-				return errStopped
+			if batch == nil {
+				batch = &job{items: make([]entry, 0, batchItems), done: make(chan struct{})}
 			}
-			if it.Doc == nil {
-				close(j.done)
-				return nil
+			batch.items = append(batch.items, entry{at: here, item: it})
+			if it.Doc != nil {
+				held += len(it.Doc.Text)
 			}
-			select {
-			case todo <- j:
-			case <-stop:
-				closeStream(it)
-				close(j.done)
-				return errStopped
+			if len(batch.items) == batchItems || held >= batchBytes || it.Doc != nil && it.Doc.Stream != nil {
+				return flush()
 			}
 			return nil
 		}
@@ -143,7 +174,11 @@ func Shard[R any](paths []string, opt corpus.Options, share corpus.Shard, worker
 				}
 				continue
 			}
-			if err := corpus.Read(in, opt, send); err != nil {
+			err := corpus.Read(in, opt, send)
+			if err == nil {
+				err = flush()
+			}
+			if err != nil {
 				return
 			}
 			if prog != nil {
@@ -155,17 +190,27 @@ func Shard[R any](paths []string, opt corpus.Options, share corpus.Shard, worker
 	var emitErr error
 	for j := range ordered {
 		<-j.done
-		if emitErr != nil {
-			continue
-		}
-		if err := emit(j.at, j.item, j.res, j.err); err != nil {
-			emitErr = err
-			halt()
+		for _, e := range j.items {
+			if emitErr != nil {
+				break
+			}
+			if err := emit(e.at, e.item, e.res, e.err); err != nil {
+				emitErr = err
+				halt()
+			}
 		}
 	}
 	wg.Wait()
 	return emitErr
 }
+
+// A batch holds at most batchItems items or, past batchBytes of text, no
+// more; a document read as a stream ends its batch, so that it is not
+// held back behind the ones after it.
+const (
+	batchItems = 64
+	batchBytes = 256 << 10
+)
 
 var errStopped = fmt.Errorf("walk stopped")
 
