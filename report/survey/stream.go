@@ -5,6 +5,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
+	"strconv"
 
 	"morsel/bpe"
 	"morsel/report/render"
@@ -19,6 +21,9 @@ type RowStream struct {
 	bw   *bufio.Writer
 	csv  *render.RowWriter
 	rows int
+	buf  []byte
+
+	source, format quotedString
 }
 
 var csvHeader = []string{"source", "record", "format", "bytes", "characters", "words", "tokens", "bytes_per_token", "tokens_per_word", "special_strings"}
@@ -50,7 +55,8 @@ func (rs *RowStream) Row(d Weight) error {
 		return rs.csv.Write(d.Source, fmt.Sprint(d.Record), d.Format, fmt.Sprint(d.Bytes), fmt.Sprint(d.Chars), fmt.Sprint(d.Words), fmt.Sprint(d.Tokens),
 			render.Ratio(float64(d.Bytes), float64(d.Tokens)), render.Ratio(float64(d.Tokens), float64(d.Words)), fmt.Sprint(d.Specials))
 	}
-	b, err := json.MarshalIndent(d, "    ", "  ")
+	var err error
+	rs.buf, err = rs.appendRow(rs.buf[:0], d)
 	if err != nil {
 		return err
 	}
@@ -58,8 +64,87 @@ func (rs *RowStream) Row(d Weight) error {
 		rs.bw.WriteString(",")
 	}
 	rs.bw.WriteString("\n    ")
-	_, err = rs.bw.Write(b)
+	_, err = rs.bw.Write(rs.buf)
 	return err
+}
+
+// appendRow appends d as json.MarshalIndent(d, "    ", "  ") writes it,
+// without reflection: the strings go through encoding/json (a source is
+// the same for every record of a file, so its form is kept), the numbers
+// through strconv as encoding/json formats them.
+func (rs *RowStream) appendRow(b []byte, d Weight) ([]byte, error) {
+	src, err := rs.quoted(&rs.source, d.Source)
+	if err != nil {
+		return b, err
+	}
+	format, err := rs.quoted(&rs.format, d.Format)
+	if err != nil {
+		return b, err
+	}
+	const in = "\n      "
+	b = append(b, "{"+in+`"source": `...)
+	b = append(b, src...)
+	b = append(b, ","+in+`"record": `...)
+	b = strconv.AppendInt(b, int64(d.Record), 10)
+	if d.Line != 0 {
+		b = append(b, ","+in+`"line": `...)
+		b = strconv.AppendInt(b, int64(d.Line), 10)
+	}
+	b = append(b, ","+in+`"format": `...)
+	b = append(b, format...)
+	for _, f := range [...]struct {
+		name string
+		n    int64
+	}{{"bytes", d.Bytes}, {"characters", d.Chars}, {"words", d.Words}, {"tokens", int64(d.Tokens)}} {
+		b = append(b, ","+in+`"`...)
+		b = append(b, f.name...)
+		b = append(b, `": `...)
+		b = strconv.AppendInt(b, f.n, 10)
+	}
+	for _, f := range [...]struct {
+		name string
+		x    float64
+	}{{"bytes_per_token", d.BytesPerToken}, {"tokens_per_word", d.TokensPerWord}} {
+		b = append(b, ","+in+`"`...)
+		b = append(b, f.name...)
+		b = append(b, `": `...)
+		if b, err = appendFloat(b, f.x); err != nil {
+			return b, err
+		}
+	}
+	b = append(b, ","+in+`"special_strings": `...)
+	b = strconv.AppendInt(b, int64(d.Specials), 10)
+	return append(b, "\n    }"...), nil
+}
+
+// quoted returns s as a JSON string, from the last one when it is the same.
+func (rs *RowStream) quoted(last *quotedString, s string) ([]byte, error) {
+	if last.json != nil && last.s == s {
+		return last.json, nil
+	}
+	b, err := json.Marshal(s)
+	if err != nil {
+		return nil, err
+	}
+	*last = quotedString{s: s, json: b}
+	return b, nil
+}
+
+// quotedString is a string and its JSON form.
+type quotedString struct {
+	s    string
+	json []byte
+}
+
+// appendFloat appends x as encoding/json does: the shortest decimal that
+// reads back as x, without an exponent between 1e-6 and 1e21; the rare
+// others go through encoding/json itself.
+func appendFloat(b []byte, x float64) ([]byte, error) {
+	if a := math.Abs(x); a != 0 && (a < 1e-6 || a >= 1e21) || math.IsNaN(x) {
+		j, err := json.Marshal(x)
+		return append(b, j...), err
+	}
+	return strconv.AppendFloat(b, x, 'f', -1, 64), nil
 }
 
 // Finish writes the rest of the survey s, whose rows were all written,

@@ -1,6 +1,7 @@
 package survey
 
 import (
+	"encoding/json"
 	"fmt"
 	"math/rand/v2"
 	"reflect"
@@ -186,4 +187,33 @@ func TestDocKeysKeepHugeSizes(t *testing.T) {
 			t.Errorf("document %d: %d bytes, want %d", i, got, sizes[i])
 		}
 	})
+}
+
+// TestRowStreamWritesWhatMarshalIndentWrites checks the hand-written JSON
+// row against encoding/json's on weights with every kind of field: names
+// that need escaping or are not UTF-8, a CSV row's line, extreme ratios.
+func TestRowStreamWritesWhatMarshalIndentWrites(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	sources := []string{"a.jsonl", "a.jsonl", "dir/<b>&c.txt", "bad\xff\xfe.txt", "tab\there\u2028\"q\"", ""}
+	floats := []float64{0, 1, 4.6, 0.33, 1e-7, 1e21, 123456789.25, -2.5, 1e-6, 5e20}
+	var rs RowStream // one for all rows, so that the kept quoted names are checked too
+	for i := 0; i < 2000; i++ {
+		d := Weight{Source: sources[r.IntN(len(sources))], Record: r.IntN(5), Format: []string{"jsonl", "csv", "te\"xt"}[r.IntN(3)],
+			Bytes: r.Int64N(1 << 40), Chars: r.Int64N(1000), Words: r.Int64N(100), Tokens: r.IntN(1 << 30),
+			BytesPerToken: floats[r.IntN(len(floats))], TokensPerWord: floats[r.IntN(len(floats))], Specials: r.IntN(3)}
+		if r.IntN(2) == 0 {
+			d.Line = r.IntN(100) + 1
+		}
+		got, err := rs.appendRow(nil, d)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want, err := json.MarshalIndent(d, "    ", "  ")
+		if err != nil {
+			t.Fatal(err)
+		}
+		if string(got) != string(want) {
+			t.Fatalf("%+v:\n got %s\nwant %s", d, got, want)
+		}
+	}
 }
