@@ -6,6 +6,7 @@ import (
 	"math/rand"
 	"os"
 	"testing"
+	"testing/iotest"
 )
 
 func benchText(b *testing.B, files ...string) []byte {
@@ -86,6 +87,25 @@ func BenchmarkLoadEmbedded(b *testing.B) {
 func BenchmarkLoadFiles(b *testing.B) {
 	for i := 0; i < b.N; i++ {
 		if _, err := LoadFiles("gpt2/vocab.json", "gpt2/merges.txt"); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// A stream that is one run of white space: CountReader finds no cut in it
+// and reads on, which must cost a pass over the run, not one per read (the
+// 1 MB and 10 MB runs show whether the growth is linear).
+func BenchmarkCountReaderSpaces1MB(b *testing.B)  { benchCountReader(b, bytes.Repeat([]byte(" "), 1<<20)) }
+func BenchmarkCountReaderSpaces10MB(b *testing.B) { benchCountReader(b, bytes.Repeat([]byte(" "), 10<<20)) }
+
+func benchCountReader(b *testing.B, text []byte) {
+	e, err := NewEncoder(Default(), Options{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.SetBytes(int64(len(text)))
+	for b.Loop() {
+		if _, _, err := e.CountReader(iotest.OneByteReader(bytes.NewReader(text))); err != nil {
 			b.Fatal(err)
 		}
 	}

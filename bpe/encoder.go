@@ -348,6 +348,7 @@ func (e *Encoder) CountReader(r io.Reader) (Stats, int64, error) {
 	var total Stats
 	var n int64
 	buf := make([]byte, 0, 2*streamChunk)
+	checked := 0 // buf[:checked] holds no cut: a long run of one class is not scanned again at every read
 	for {
 		if cap(buf)-len(buf) < streamChunk/2 {
 			nb := make([]byte, len(buf), 2*cap(buf))
@@ -369,8 +370,9 @@ func (e *Encoder) CountReader(r io.Reader) (Stats, int64, error) {
 			if len(buf) < streamChunk {
 				continue
 			}
-			cut = safeCut(buf)
+			cut = safeCutFrom(buf, checked)
 			if cut == 0 { // one long pre-token so far; read on
+				checked = len(buf)
 				continue
 			}
 		}
@@ -382,6 +384,8 @@ func (e *Encoder) CountReader(r io.Reader) (Stats, int64, error) {
 		}
 		rest := copy(buf, buf[cut:])
 		buf = buf[:rest]
+		checked = rest // the cut was the last one
+
 	}
 }
 
@@ -390,9 +394,19 @@ func (e *Encoder) CountReader(r io.Reader) (Stats, int64, error) {
 // there or earlier, so counting the two sides apart gives the count of the
 // whole. An ASCII byte is always a character boundary, however invalid the
 // bytes before it.
-func safeCut(t []byte) int {
-	for i := len(t) - 1; i > 0; i-- {
+func safeCut(t []byte) int { return safeCutFrom(t, 0) }
+
+// safeCutFrom is safeCut for a t whose offsets below from are known to
+// hold no cut.
+func safeCutFrom(t []byte, from int) int {
+	for i := len(t) - 1; i > 0 && i >= from; i-- {
 		if b := t[i]; b >= utf8.RuneSelf || asciiClass[b] != clsSpace {
+			continue
+		}
+		if p := t[i-1]; p < utf8.RuneSelf { // the common case, without decoding
+			if asciiClass[p] != clsSpace {
+				return i
+			}
 			continue
 		}
 		r, _ := utf8.DecodeLastRune(t[:i])

@@ -152,6 +152,8 @@ func TestCountReaderMatchesCount(t *testing.T) {
 		all = append(all, all...)
 	}
 	all = append(all, bytes.Repeat([]byte("x"), streamChunk+17)...) // a long pre-token across chunks
+	all = append(all, bytes.Repeat([]byte(" \u3000\t"), streamChunk)...) // a long run of white space, ASCII and not
+	all = append(all, "x"...)
 	all = append(all, "  tail \xe3\x81"...)
 	want := e.CountStats(all)
 	for _, r := range []func() *bytes.Reader{func() *bytes.Reader { return bytes.NewReader(all) }} {
@@ -162,6 +164,27 @@ func TestCountReaderMatchesCount(t *testing.T) {
 		got, _, err = e.CountReader(iotest.HalfReader(r()))
 		if err != nil || got != want {
 			t.Fatalf("CountReader (half reads) %+v %v; want %+v", got, err, want)
+		}
+	}
+}
+
+// safeCutFrom, told where no cut is, must find what safeCut finds.
+func TestSafeCutFrom(t *testing.T) {
+	r := rand.New(rand.NewSource(3))
+	parts := []string{" ", "  ", "\t", "\n", "a", "7", ".", "\u3000", "é", "\xff", "\xe3\x81"}
+	for n := 0; n < 3000; n++ {
+		var b []byte
+		for k := r.Intn(12); k > 0; k-- {
+			b = append(b, parts[r.Intn(len(parts))]...)
+		}
+		want := safeCut(b)
+		for from := 0; from <= len(b); from++ {
+			if safeCut(b[:from]) != 0 {
+				continue // from is a promise only when b[:from] holds no cut
+			}
+			if got := safeCutFrom(b, from); got != want {
+				t.Fatalf("safeCutFrom(%q, %d) = %d, want %d", b, from, got, want)
+			}
 		}
 	}
 }
