@@ -95,8 +95,12 @@ func BenchmarkLoadFiles(b *testing.B) {
 // A stream that is one run of white space: CountReader finds no cut in it
 // and reads on, which must cost a pass over the run, not one per read (the
 // 1 MB and 10 MB runs show whether the growth is linear).
-func BenchmarkCountReaderSpaces1MB(b *testing.B)  { benchCountReader(b, bytes.Repeat([]byte(" "), 1<<20)) }
-func BenchmarkCountReaderSpaces10MB(b *testing.B) { benchCountReader(b, bytes.Repeat([]byte(" "), 10<<20)) }
+func BenchmarkCountReaderSpaces1MB(b *testing.B) {
+	benchCountReader(b, bytes.Repeat([]byte(" "), 1<<20))
+}
+func BenchmarkCountReaderSpaces10MB(b *testing.B) {
+	benchCountReader(b, bytes.Repeat([]byte(" "), 10<<20))
+}
 
 func benchCountReader(b *testing.B, text []byte) {
 	e, err := NewEncoder(Default(), Options{})

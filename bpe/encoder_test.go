@@ -151,7 +151,7 @@ func TestCountReaderMatchesCount(t *testing.T) {
 	for len(all) < 3*streamChunk {
 		all = append(all, all...)
 	}
-	all = append(all, bytes.Repeat([]byte("x"), streamChunk+17)...) // a long pre-token across chunks
+	all = append(all, bytes.Repeat([]byte("x"), streamChunk+17)...)      // a long pre-token across chunks
 	all = append(all, bytes.Repeat([]byte(" \u3000\t"), streamChunk)...) // a long run of white space, ASCII and not
 	all = append(all, "x"...)
 	all = append(all, "  tail \xe3\x81"...)
