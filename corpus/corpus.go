@@ -82,6 +82,7 @@ package corpus
 
 import (
 	"io"
+	"io/fs"
 	"os"
 	"strconv"
 )
@@ -136,6 +137,9 @@ const (
 	// ReasonRagged: a CSV/TSV row whose field count differs from the
 	// header's. Failed; the rest of the file is still read.
 	ReasonRagged = "ragged"
+	// ReasonOutput: a file the run itself is writing (Options.Written),
+	// which it never reads. Not failed.
+	ReasonOutput = "output"
 	// ReasonTooLarge: a JSON Lines line, CSV or TSV row or HTML text run
 	// longer than Options.MaxRecord, or a document whose text is longer
 	// than Options.MaxDocument. Failed.
@@ -258,6 +262,10 @@ type Options struct {
 	// is the same file (os.SameFile: same device and inode, whatever the
 	// path or link it is reached by) is left out as ReasonSetting.
 	Settings []Setting
+	// Written are the files the run writes (matched by device and inode),
+	// which it must never read: one met in a walk, or named, is left out
+	// as "output".
+	Written []fs.FileInfo
 }
 
 // Setting is a file a run reads as a setting rather than a document.

@@ -255,6 +255,10 @@ func (l *lister) visit(p, root, real string, lfi fs.FileInfo, explicit bool, anc
 			return
 		}
 		l.seen[real] = p
+		if l.written(fi) {
+			l.skip(p, ReasonOutput, "the file this run writes, never read", false)
+			return
+		}
 		l.add(Input{Path: p, Size: fi.Size(), Named: explicit})
 	default:
 		if !l.wanted(p, root) {
@@ -269,6 +273,16 @@ func (l *lister) visit(p, root, real string, lfi fs.FileInfo, explicit bool, anc
 		}
 		l.skip(p, ReasonSpecial, detail, explicit)
 	}
+}
+
+// written reports whether fi is one of the files the run writes.
+func (l *lister) written(fi fs.FileInfo) bool {
+	for _, w := range l.opt.Written {
+		if os.SameFile(fi, w) {
+			return true
+		}
+	}
+	return false
 }
 
 // candidates returns the names a filter pattern is tried against.

@@ -2,6 +2,7 @@ package corpus
 
 import (
 	"errors"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"strings"
@@ -50,5 +51,39 @@ func TestStdinCSVLikeAFile(t *testing.T) {
 			want[i] = "-" + strings.TrimPrefix(want[i], "rows.csv")
 		}
 		check(t, show(t, "", readBytes(t, []byte(in), Options{})), want)
+	}
+}
+
+func TestWrittenNeverRead(t *testing.T) {
+	dir := t.TempDir()
+	for _, n := range []string{"a.txt", "plan.jsonl", ".plan.jsonl.1-2.tmp"} {
+		if err := os.WriteFile(filepath.Join(dir, n), []byte("text\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	link := filepath.Join(t.TempDir(), "alias.jsonl")
+	if err := os.Link(filepath.Join(dir, "plan.jsonl"), link); err != nil {
+		t.Fatal(err)
+	}
+	var written []fs.FileInfo
+	for _, n := range []string{"plan.jsonl", ".plan.jsonl.1-2.tmp"} {
+		fi, err := os.Stat(filepath.Join(dir, n))
+		if err != nil {
+			t.Fatal(err)
+		}
+		written = append(written, fi)
+	}
+	// Walked, named through a hard link, and with hidden files walked.
+	ins, skips := List([]string{dir, link}, Options{Written: written, Hidden: true})
+	if len(ins) != 1 || filepath.Base(ins[0].Path) != "a.txt" {
+		t.Fatalf("inputs %v: want a.txt alone", ins)
+	}
+	if len(skips) != 3 {
+		t.Fatalf("skips %v: want the two written files and the link", skips)
+	}
+	for _, s := range skips {
+		if s.Reason != ReasonOutput || s.Failed {
+			t.Errorf("skip %v: want a deliberate %q", s, ReasonOutput)
+		}
 	}
 }

@@ -9,6 +9,7 @@ import (
 
 	"morsel/bpe"
 	"morsel/corpus"
+	"morsel/internal/outfile"
 	"morsel/report/learn"
 	"morsel/report/render"
 	"morsel/report/walk"
@@ -23,6 +24,7 @@ type learnFlags struct {
 	holdout float64
 	out     string
 	write   string
+	force   bool
 	top     int
 	rows    int
 }
@@ -36,7 +38,8 @@ func newLearn(sh *shared) *cobra.Command {
 		Short: "Learn domain merges from a document set and measure what they save on documents kept out",
 		Long: `learn learns K byte-level BPE merges from the documents (byte-pair encoding as Sennrich,
 Haddow and Birch 2016 describe it, over bytes as GPT-2 uses it) and writes the vocabulary
-to --out: a vocab.json + merges.txt pair, a tokenizer.json bundle, or both (--write).
+to --out: a vocab.json + merges.txt pair, a tokenizer.json bundle, or both (--write). An existing file there is replaced only with
+--force, and only once the new one is whole; the files are never read as input.
 
 With --extend BASE the K merges go on top of BASE (a pair, a bundle or a folder): the new
 tokens take the ids after BASE's and BASE's merges keep their order, so the new vocabulary
@@ -65,6 +68,7 @@ the target's price. learn reads its inputs twice, so standard input is not taken
 	f.Float64Var(&lf.holdout, "holdout", 0.1, "share of documents kept out of learning, 0 to below 1")
 	f.StringVar(&lf.out, "out", "", "folder to write the vocabulary to (required; made if missing)")
 	f.StringVar(&lf.write, "write", "both", "what to write: pair, bundle or both")
+	f.BoolVar(&lf.force, "force", false, "let --out's files replace existing ones")
 	f.IntVar(&lf.top, "words", 3, "words listed per new token")
 	f.IntVar(&lf.rows, "rows", 50, "rows of new tokens and of documents in the table and md views (0: all)")
 	return c
@@ -112,6 +116,11 @@ func runLearn(sh *shared, cf *corpusFlags, tf *targetFlags, lf *learnFlags, args
 	} else {
 		base = bpe.ByteVocab()
 	}
+	out, err := openLearned(sh, cf, lf, base, args)
+	if err != nil {
+		return err
+	}
+	defer out.abort()
 	baseEnc, err := sh.encoderFor(base)
 	if err != nil {
 		return err
@@ -158,7 +167,7 @@ func runLearn(sh *shared, cf *corpusFlags, tf *targetFlags, lf *learnFlags, args
 	if err != nil {
 		return err
 	}
-	files, err := writeLearned(sh, learned.Vocab, lf)
+	files, err := out.write(learned.Vocab, sh.splitPattern)
 	if err != nil {
 		return err
 	}
@@ -199,56 +208,86 @@ func runLearn(sh *shared, cf *corpusFlags, tf *targetFlags, lf *learnFlags, args
 	return sh.finish(r.Skipped, nil)
 }
 
-// writeLearned writes v into lf.out as lf.write says and returns the paths
-// written. A vocabulary that keeps a bundle's pipeline can only be a
-// bundle.
-func writeLearned(sh *shared, v *bpe.Vocab, lf *learnFlags) ([]string, error) {
+// learnedFiles are the files learn writes into --out. They are opened
+// before learning starts, so that a name that is taken (without --force)
+// or that is an input fails at once, and they are put in place together
+// once all are written.
+type learnedFiles struct {
+	vocab, merges, bundle *outfile.File
+}
+
+// openLearned opens the files lf.write asks for in lf.out. A base that
+// keeps a bundle's pipeline can only be written as a bundle.
+func openLearned(sh *shared, cf *corpusFlags, lf *learnFlags, base *bpe.Vocab, args []string) (*learnedFiles, error) {
 	if err := os.MkdirAll(lf.out, 0o755); err != nil {
 		return nil, &inputError{fmt.Errorf("--out: %w", err)}
 	}
 	pair, bundle := lf.write != "bundle", lf.write != "pair"
-	if pair && !v.PairWritable() {
+	if pair && !base.PairWritable() {
 		if lf.write == "pair" {
 			return nil, usagef("learn", "--write pair: the base is a bundle, whose normalizer and pre-tokenizer a pair cannot hold; write a bundle")
 		}
 		sh.note("the base is a bundle: writing the bundle alone, since a pair cannot hold its normalizer and pre-tokenizer")
 		pair = false
 	}
-	var paths []string
-	create := func(name string, write func(*os.File) error) error {
-		p := filepath.Join(lf.out, name)
-		fh, err := os.Create(p)
-		if err != nil {
-			return &inputError{err}
-		}
-		err = write(fh)
-		if cerr := fh.Close(); err == nil {
-			err = cerr
-		}
-		if err != nil {
-			return &inputError{fmt.Errorf("%s: %w", p, err)}
-		}
-		paths = append(paths, p)
-		return nil
+	files := &learnedFiles{}
+	open := func(name string) (*outfile.File, error) {
+		return sh.createOutput("learn", "--out", filepath.Join(lf.out, name), lf.force, cf, args)
 	}
+	var err error
 	if pair {
-		mf, err := os.Create(filepath.Join(lf.out, "merges.txt"))
-		if err != nil {
-			return nil, &inputError{err}
+		if files.vocab, err = open("vocab.json"); err == nil {
+			files.merges, err = open("merges.txt")
 		}
-		err = create("vocab.json", func(vf *os.File) error { return bpe.WritePair(vf, mf, v) })
-		if cerr := mf.Close(); err == nil && cerr != nil {
-			err = &inputError{cerr}
-		}
-		if err != nil {
-			return nil, err
-		}
-		paths = append(paths, mf.Name())
 	}
-	if bundle {
-		if err := create("tokenizer.json", func(fh *os.File) error { return bpe.WriteBundle(fh, v, sh.splitPattern) }); err != nil {
-			return nil, err
+	if bundle && err == nil {
+		files.bundle, err = open("tokenizer.json")
+	}
+	if err != nil {
+		files.abort()
+		return nil, err
+	}
+	return files, nil
+}
+
+// write writes v into the files and puts them in place, returning their
+// paths; on any error none of them replaces an older file.
+func (l *learnedFiles) write(v *bpe.Vocab, splitPattern string) ([]string, error) {
+	defer l.abort()
+	var err error
+	if l.vocab != nil {
+		err = bpe.WritePair(l.vocab, l.merges, v)
+	}
+	if l.bundle != nil && err == nil {
+		err = bpe.WriteBundle(l.bundle, v, splitPattern)
+	}
+	if err != nil {
+		return nil, &inputError{fmt.Errorf("--out: %w", err)}
+	}
+	var paths []string
+	for _, f := range l.all() {
+		if err := f.Commit(); err != nil {
+			return nil, &inputError{fmt.Errorf("--out: %w", err)}
 		}
+		paths = append(paths, f.Name())
 	}
 	return paths, nil
+}
+
+// all returns the files opened, in the order they are reported.
+func (l *learnedFiles) all() []*outfile.File {
+	var fs []*outfile.File
+	for _, f := range []*outfile.File{l.vocab, l.merges, l.bundle} {
+		if f != nil {
+			fs = append(fs, f)
+		}
+	}
+	return fs
+}
+
+// abort drops every file not yet put in place.
+func (l *learnedFiles) abort() {
+	for _, f := range l.all() {
+		f.Abort()
+	}
 }

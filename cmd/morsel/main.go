@@ -7,8 +7,12 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"os/signal"
 	"runtime/debug"
 	"strings"
+	"syscall"
+
+	"morsel/internal/outfile"
 )
 
 // Exit statuses, as the README's "Exit status" table gives them.
@@ -49,8 +53,23 @@ func paceGrowingHeap() {
 }
 
 func main() {
+	cleanUpOnSignal()
 	err := newRoot().Execute()
 	os.Exit(exitStatus(err))
+}
+
+// cleanUpOnSignal makes an interrupt or a termination remove the
+// temporary files of outputs not yet put in place, then exit as the
+// signal would (128 + its number), so that a stopped run leaves every
+// older output as it was and no half-written file beside it.
+func cleanUpOnSignal() {
+	ch := make(chan os.Signal, 1)
+	signal.Notify(ch, syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP)
+	go func() {
+		sig := <-ch
+		outfile.RemovePending()
+		os.Exit(128 + int(sig.(syscall.Signal)))
+	}()
 }
 
 // exitStatus maps a command's error to the process exit status, printing

@@ -4,11 +4,11 @@ import (
 	"bufio"
 	"encoding/json"
 	"fmt"
-	"os"
 
 	"github.com/spf13/cobra"
 
 	"morsel/corpus"
+	"morsel/internal/outfile"
 	"morsel/report/ration"
 	"morsel/report/render"
 )
@@ -22,6 +22,7 @@ func newRation(sh *shared) *cobra.Command {
 	var rf requestFlags
 	var budget, overlap int
 	var emit string
+	var force bool
 	c := &cobra.Command{
 		Use:   "ration PATH...",
 		Short: "Plan chunks so that every framed request stays within a token budget",
@@ -42,7 +43,9 @@ previous chunk's tail, at a pre-token edge.
 The report lists chunks per document and how full the chunks are. --emit FILE writes the
 plan as JSON Lines, one chunk a line: source, record, chunk (from 0), start and end (byte
 offsets in the document), tokens (the request's), cut (the kind of place it ends at) and
-text.
+text. The plan is written to a temporary file beside FILE and renamed to FILE once it is
+whole, so a run that fails leaves no half plan; FILE may not be one of the inputs, and an
+existing FILE is replaced only with --force. A file the run writes is never read as input.
 
 Exit status: 1 when an input could not be read, else 3 when a document cannot be cut
 because the budget cannot hold the frame and one character, else 0.`,
@@ -78,14 +81,17 @@ because the budget cannot hold the frame and one character, else 0.`,
 				return usagef("ration", "--overlap %d: want 0 or more and less than half the %d-token budget", overlap, budget)
 			}
 			r := &ration.Rationer{Enc: rq.enc, Frame: rq.frame, Budget: budget, Overlap: overlap, Overhead: rq.overhead, Generic: sh.genericSplit(rq.enc)}
+			var plan *outfile.File
 			var out *bufio.Writer
 			var jl *json.Encoder
 			if emit != "" {
-				file, err := os.Create(emit)
+				file, err := sh.createOutput("ration", "--emit", emit, force, &cf, args)
 				if err != nil {
-					return &inputError{fmt.Errorf("--emit: %w", err)}
+					return err
 				}
-				defer file.Close()
+				// Put in place once the plan is whole; dropped on any error.
+				defer file.Abort()
+				plan = file
 				out = bufio.NewWriterSize(file, 1<<16)
 				jl = json.NewEncoder(out)
 				jl.SetEscapeHTML(false)
@@ -97,7 +103,7 @@ because the budget cannot hold the frame and one character, else 0.`,
 					if jl != nil {
 						for i := range d.Plan {
 							if err := jl.Encode(&d.Plan[i]); err != nil {
-								return fmt.Errorf("--emit %s: %w", emit, err)
+								return &inputError{fmt.Errorf("--emit %s: %w", emit, err)}
 							}
 						}
 					}
@@ -112,7 +118,10 @@ because the budget cannot hold the frame and one character, else 0.`,
 			}
 			if out != nil {
 				if err := out.Flush(); err != nil {
-					return fmt.Errorf("--emit %s: %w", emit, err)
+					return &inputError{fmt.Errorf("--emit %s: %w", emit, err)}
+				}
+				if err := plan.Commit(); err != nil {
+					return &inputError{fmt.Errorf("--emit: %w", err)}
 				}
 			}
 			rep := rc.Finish(skipped)
@@ -133,6 +142,7 @@ because the budget cannot hold the frame and one character, else 0.`,
 	addRequestFlags(c, &rf)
 	c.Flags().IntVar(&budget, "budget", 0, "tokens a chunk's request may take, frame and overhead included (default: window - reserve)")
 	c.Flags().IntVar(&overlap, "overlap", 0, "start each chunk with up to this many tokens of the previous chunk's tail")
-	c.Flags().StringVar(&emit, "emit", "", "write the chunks to this file as JSON Lines")
+	c.Flags().StringVar(&emit, "emit", "", "write the chunks to this file as JSON Lines (never one of the inputs; put in place once whole)")
+	c.Flags().BoolVar(&force, "force", false, "let --emit replace an existing file")
 	return c
 }

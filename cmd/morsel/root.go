@@ -225,6 +225,7 @@ type corpusFlags struct {
 	hidden           bool
 	as               string
 	maxDocument      sizeFlag
+	written          []fs.FileInfo // files the command writes, which the walk never reads
 }
 
 // addCorpusFlags adds the document-walking flags to c.
@@ -244,7 +245,7 @@ func addCorpusFlags(c *cobra.Command, cf *corpusFlags) {
 // options returns the corpus options the flags ask for.
 func (cf *corpusFlags) options() corpus.Options {
 	return corpus.Options{Field: cf.field, Column: cf.column, Include: cf.include, Exclude: cf.exclude,
-		Hidden: cf.hidden, Format: cf.as, MaxDocument: int64(cf.maxDocument)}
+		Hidden: cf.hidden, Format: cf.as, MaxDocument: int64(cf.maxDocument), Written: cf.written}
 }
 
 // progress returns a progress line on standard error when it is a
