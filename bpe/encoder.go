@@ -3,7 +3,6 @@ package bpe
 import (
 	"bytes"
 	"fmt"
-	"io"
 	"runtime"
 	"unicode/utf8"
 )
@@ -324,69 +323,6 @@ func (e *Encoder) Decode(ids []int) []byte {
 		}
 	}
 	return out
-}
-
-// streamChunk is how much CountReader reads at a time.
-const streamChunk = 1 << 20
-
-// CountReader counts the tokens of everything r yields, holding about one
-// megabyte at a time, and returns the count with the number of bytes read.
-// With the GPT-2 rule it cuts the stream only where a pre-token must end (a
-// non-space character followed by white space), so the count equals that
-// of the whole text; with another split pattern, special strings that
-// hold white space, or a SentencePiece model, it reads the whole text
-// first.
-func (e *Encoder) CountReader(r io.Reader) (Stats, int64, error) {
-	if e.re != nil || e.v.pipe != nil || e.v.spm != nil || e.specialsHoldSpace() {
-		all, err := io.ReadAll(r)
-		st := e.CountStats(all)
-		if err == nil {
-			err = st.Err
-		}
-		return st, int64(len(all)), err
-	}
-	var total Stats
-	var n int64
-	buf := make([]byte, 0, 2*streamChunk)
-	checked := 0 // buf[:checked] holds no cut: a long run of one class is not scanned again at every read
-	for {
-		if cap(buf)-len(buf) < streamChunk/2 {
-			nb := make([]byte, len(buf), 2*cap(buf))
-			copy(nb, buf)
-			buf = nb
-		}
-		m, err := r.Read(buf[len(buf):cap(buf)])
-		buf = buf[:len(buf)+m]
-		n += int64(m)
-		eof := err == io.EOF
-		if err != nil && !eof {
-			st := e.CountStats(buf)
-			total.Tokens += st.Tokens
-			total.Specials += st.Specials
-			return total, n, err
-		}
-		cut := len(buf)
-		if !eof {
-			if len(buf) < streamChunk {
-				continue
-			}
-			cut = safeCutFrom(buf, checked)
-			if cut == 0 { // one long pre-token so far; read on
-				checked = len(buf)
-				continue
-			}
-		}
-		st := e.CountStats(buf[:cut])
-		total.Tokens += st.Tokens
-		total.Specials += st.Specials
-		if eof {
-			return total, n, nil
-		}
-		rest := copy(buf, buf[cut:])
-		buf = buf[:rest]
-		checked = rest // the cut was the last one
-
-	}
 }
 
 // safeCut returns the last offset in t where a non-space character is

@@ -166,6 +166,29 @@ func TestCountReaderMatchesCount(t *testing.T) {
 			t.Fatalf("CountReader (half reads) %+v %v; want %+v", got, err, want)
 		}
 	}
+	// The same text framed: the parts join words and white space at both
+	// edges, so a count that forgot an edge would differ.
+	for _, fr := range [][2]string{{"", ""}, {"Summarize:", "done"}, {"x  ", "  y"}, {"\n\n", "<|endoftext|>"}} {
+		before, after := []byte(fr[0]), []byte(fr[1])
+		for _, text := range [][]byte{all, all[:10], nil, bytes.Repeat([]byte("x"), streamChunk+5)} {
+			wantFramed, wantAlone := e.Count(join(before, text, after)), e.CountStats(text)
+			alone, framed, n, err := e.CountFramedReader(iotest.HalfReader(bytes.NewReader(text)), before, after)
+			if err != nil || alone != wantAlone || framed != wantFramed || n != int64(len(text)) {
+				t.Fatalf("CountFramedReader(%q, %q) on %d bytes: %+v %d %d %v; want %+v %d", before, after, len(text), alone, framed, n, err, wantAlone, wantFramed)
+			}
+		}
+	}
+}
+
+// CountFramedReader falls back to reading the whole text where no cut is
+// known safe; its counts must still be those of the joined text.
+func TestCountFramedReaderUnderSplitPattern(t *testing.T) {
+	e := gpt2(t, Options{SplitPattern: `\w+|\s+|[^\w\s]+`})
+	text := []byte("alpha beta, gamma\n  delta")
+	alone, framed, _, err := e.CountFramedReader(bytes.NewReader(text), []byte("Q: "), []byte(" :A"))
+	if err != nil || alone != e.CountStats(text) || framed != e.Count(join([]byte("Q: "), text, []byte(" :A"))) {
+		t.Fatalf("got %+v %d %v", alone, framed, err)
+	}
 }
 
 // safeCutFrom, told where no cut is, must find what safeCut finds.

@@ -10,7 +10,6 @@ import (
 	"morsel/report"
 	"morsel/report/render"
 	"morsel/report/request"
-	"morsel/report/walk"
 )
 
 // Doc is one document's verdict in morsel fit.
@@ -58,13 +57,30 @@ type Fitter struct {
 	Overhead int
 }
 
-// Fit returns the verdict for one document, reading its text.
+// Fit returns the verdict for one document, reading its text; a Stream is
+// counted as it is read, alone and framed in one pass, and never held.
 func (f *Fitter) Fit(d *corpus.Document) (Doc, error) {
-	text, err := walk.Text(d)
+	if d.Stream == nil {
+		return f.FitText(d.Source, d.Record, d.Text)
+	}
+	defer d.Stream.Close()
+	var alone bpe.Stats
+	var framed int
+	var err error
+	if f.Frame == nil {
+		alone, _, err = f.Enc.CountReader(d.Stream)
+		framed = alone.Tokens
+	} else {
+		before, after := f.Frame.Parts(report.Where(d.Source, d.Record))
+		alone, framed, _, err = f.Enc.CountFramedReader(d.Stream, before, after)
+	}
+	if err == nil {
+		err = alone.Err
+	}
 	if err != nil {
 		return Doc{}, err
 	}
-	return f.FitText(d.Source, d.Record, text)
+	return f.verdict(d.Source, d.Record, alone.Tokens, framed+f.Overhead), nil
 }
 
 // FitText returns the verdict for text, the document source (record). It
@@ -79,10 +95,16 @@ func (f *Fitter) FitText(source string, record int, text []byte) (Doc, error) {
 	if err != nil {
 		return Doc{}, err
 	}
+	return f.verdict(source, record, tokens, in), nil
+}
+
+// verdict is the verdict on a document of tokens tokens whose framed
+// request, overhead included, has in tokens.
+func (f *Fitter) verdict(source string, record, tokens, in int) Doc {
 	res := f.Answer.For(in)
 	margin := f.Window - in - res
 	return Doc{Source: source, Record: record, Tokens: tokens, InputTokens: in, Reserve: res,
-		Window: f.Window, Fits: margin >= 0, Margin: margin}, nil
+		Window: f.Window, Fits: margin >= 0, Margin: margin}
 }
 
 // Collector folds walk results into a Report.

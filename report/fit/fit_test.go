@@ -1,10 +1,14 @@
 package fit
 
 import (
+	"bytes"
+	"io"
 	"testing"
+	"testing/iotest"
 
 	"github.com/shopspring/decimal"
 
+	"morsel/corpus"
 	"morsel/report/internal/reporttest"
 	"morsel/report/request"
 )
@@ -38,5 +42,30 @@ func TestFitMargins(t *testing.T) {
 				t.Fatalf("got %+v, want margin %d reserve %d", d, tc.margin, tc.reserve)
 			}
 		})
+	}
+}
+
+// A document that comes as a Stream is counted as it is read; its verdict
+// must be the one its whole text gets, framed or not.
+func TestFitStreamAgreesWithText(t *testing.T) {
+	enc := reporttest.Encoder(t)
+	text := bytes.Repeat([]byte("The buoy VS-4 broke from its mooring in the November storm.\n"), 60000) // past one read
+	frame, err := request.ParseFrame("frame.txt", []byte("Summarize {{source}}:\n{{document}}\nAnswer briefly."))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, fr := range []*request.Frame{nil, frame} {
+		f := &Fitter{Enc: enc, Frame: fr, Window: 1 << 20, Answer: request.Answer{Tokens: 100}, Overhead: 7}
+		want, err := f.FitText("big.txt", 0, text)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := f.Fit(&corpus.Document{Source: "big.txt", Stream: io.NopCloser(iotest.HalfReader(bytes.NewReader(text)))})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got != want {
+			t.Fatalf("frame %s: stream gives %+v, text %+v", fr.Label(), got, want)
+		}
 	}
 }
