@@ -65,6 +65,9 @@ func main() {
 func cleanUpOnSignal() {
 	ch := make(chan os.Signal, 1)
 	signal.Notify(ch, syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP)
+	// A closed pipe on standard output is a write error (EPIPE) that the
+	// command reports with its exit status, not a signal that kills it.
+	signal.Ignore(syscall.SIGPIPE)
 	go func() {
 		sig := <-ch
 		outfile.RemovePending()
@@ -81,7 +84,13 @@ func exitStatus(err error) int {
 	var ue *usageError
 	var ce *checkFailed
 	var ie *inputError
+	var oe *outputError
 	switch {
+	case errors.As(err, &oe):
+		if !oe.quiet() {
+			fmt.Fprintf(os.Stderr, "morsel: %v\n", oe)
+		}
+		return exitInput
 	case errors.As(err, &ce):
 		// The report already said what failed; say it once more briefly.
 		fmt.Fprintf(os.Stderr, "morsel: %s\n", ce.msg)

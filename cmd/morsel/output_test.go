@@ -5,6 +5,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
 
 	"morsel/report/ration"
@@ -143,5 +144,70 @@ func TestLearnOutNeedsForce(t *testing.T) {
 	}
 	if es, _ := os.ReadDir(out); len(es) != 3 {
 		t.Fatalf("--out holds %d entries, want vocab.json, merges.txt and tokenizer.json", len(es))
+	}
+}
+
+// brokenWriter takes limit bytes, then fails every write with err.
+type brokenWriter struct {
+	limit int
+	err   error
+}
+
+func (b *brokenWriter) Write(p []byte) (int, error) {
+	if len(p) <= b.limit {
+		b.limit -= len(p)
+		return len(p), nil
+	}
+	n := b.limit
+	b.limit = 0
+	return n, b.err
+}
+
+// runBroken runs a command whose standard output fails after limit bytes,
+// and returns its exit status and what it printed on standard error.
+func runBroken(t *testing.T, limit int, werr error, args ...string) (int, string) {
+	t.Helper()
+	var errb strings.Builder
+	root := newRootIO(strings.NewReader(""), &brokenWriter{limit, werr}, &errb)
+	root.SetArgs(args)
+	root.SetErr(&errb)
+	err := root.Execute()
+	f, ferr := os.CreateTemp(t.TempDir(), "stderr")
+	if ferr != nil {
+		t.Fatal(ferr)
+	}
+	saved := os.Stderr
+	os.Stderr = f
+	code := exitStatus(err)
+	os.Stderr = saved
+	f.Close()
+	return code, errb.String() + readFile(t, f.Name())
+}
+
+// A report that cannot be written in full is exit status 1, with one line
+// naming the error; a pipe whose reader left gives no line.
+func TestReportWriteError(t *testing.T) {
+	docs := "../../testdata/demo/docs"
+	for _, args := range [][]string{
+		{"pieces", "The harbour keeps its tide tables here."},
+		{"survey", docs},
+		{"survey", docs, "--format", "html"},
+		{"fit", docs, "--format", "csv"},
+		{"ration", docs, "--budget", "300", "--format", "md"},
+		{"quote", docs, "--targets", demoTargets},
+		{"fragments", docs, "--format", "json"},
+		{"vocab"},
+	} {
+		for _, limit := range []int{0, 100} {
+			args := append(args, "--quiet")
+			code, serr := runBroken(t, limit, syscall.ENOSPC, args...)
+			if code != exitInput || strings.Count(serr, "no space left on device") != 1 || strings.Count(serr, "\n") != 1 {
+				t.Errorf("%v after %d bytes: exit %d, want %d with one line naming the error:\n%s", args, limit, code, exitInput, serr)
+			}
+			code, serr = runBroken(t, limit, syscall.EPIPE, args...)
+			if code != exitInput || serr != "" {
+				t.Errorf("%v, closed pipe after %d bytes: exit %d, want %d and nothing said:\n%s", args, limit, code, exitInput, serr)
+			}
+		}
 	}
 }

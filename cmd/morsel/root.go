@@ -40,6 +40,7 @@ type shared struct {
 
 	stdin          io.Reader
 	stdout, stderr io.Writer
+	report         *reportWriter // standard output as the command writes to it
 }
 
 // reads records that the run reads path as a setting (what names its
@@ -99,7 +100,8 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
 		if err := checkFloors(c); err != nil {
 			return err
 		}
-		sh.stdout = render.WithView(sh.stdout, sh.view(args))
+		sh.report = &reportWriter{w: sh.stdout}
+		sh.stdout = render.WithView(sh.report, sh.view(args))
 		if cpuprofile == "" {
 			return nil
 		}
@@ -120,6 +122,7 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
 	for _, add := range extraCommands {
 		root.AddCommand(add(sh))
 	}
+	reportWriteErrors(root, sh)
 	for _, c := range root.Commands() {
 		if c.Args != nil {
 			args, name := c.Args, c.Name()
