@@ -13,6 +13,7 @@ import (
 	"morsel/bpe"
 	"morsel/corpus"
 	"morsel/report"
+	"morsel/report/fragments/internal/tally"
 	"morsel/report/measure"
 	"morsel/report/walk"
 )
@@ -74,7 +75,7 @@ type Fragmenter struct {
 	mu     sync.Mutex
 	shards []*shard    // every shard made, for Finish
 	free   chan *shard // shards not in use
-	parts  [numParts]wordTable
+	words  tally.Tables
 
 	docs     []DocFertility
 	totals   Totals
@@ -88,20 +89,12 @@ type Fragmenter struct {
 // documents a word occurs in add up exactly when the shards flush their
 // batches into the word tables.
 type shard struct {
-	local batchTally // the words of the last documents scanned, not yet in a wordTable
-	// byToken finds, by token id, the batch entry of the word that token
-	// is alone: byTokenTag<<25 | split<<24 | entry+1, good while the tag
-	// is the batch's.
-	byToken []uint32
-	doc     int32 // documents this shard has scanned
+	local   *tally.Batch // the words of the last documents scanned, not yet in f.words
+	doc     int32        // documents this shard has scanned
 	ids     []uint32
 	ends    []int
 	spelled []byte // the text the tokens spell, when a bundle changed it
 	pending []pendingTerm
-	// flush's scratch space
-	part  []uint8 // the partition of each batch word
-	order []int32 // the batch words by partition
-	at    []int32 // each batch word's tally in its partition
 }
 
 type termAgg struct {
@@ -153,7 +146,7 @@ func (f *Fragmenter) getShard() *shard {
 		return sh
 	default:
 	}
-	sh := &shard{}
+	sh := &shard{local: tally.NewBatch(len(f.info))}
 	f.mu.Lock()
 	f.shards = append(f.shards, sh)
 	f.mu.Unlock()
@@ -238,8 +231,8 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	} else {
 		f.scanTokens(sh, text, &fc)
 	}
-	if sh.local.full() {
-		f.flush(sh)
+	if sh.local.Full() {
+		sh.local.Flush(&f.words)
 	}
 	for i := range dw.ByScript {
 		t := ScriptTally{Words: fc.words[i], Tokens: fc.pieces[i], OneToken: fc.one[i]}
@@ -331,7 +324,7 @@ func (f *Fragmenter) scanBytes(sh *shard, dw *DocWords, text []byte, lo, hi, k, 
 			mEnd += f.tokenLen(ids[m])
 		}
 		fc.add(sc, m+1-k)
-		sh.local.add(text[s:e], hashWord(text[s:e]), ids[k:m+1], sh.doc)
+		sh.local.Add(text[s:e], ids[k:m+1], sh.doc)
 		s = e
 	}
 }
@@ -348,12 +341,6 @@ func (f *Fragmenter) scanBytes(sh *shard, dw *DocWords, text []byte, lo, hi, k, 
 // WB7b and WB7c a Hebrew letter before '"'.
 func (f *Fragmenter) scanTokens(sh *shard, text []byte, fc *fertility) {
 	ids, info := sh.ids, f.info
-	if len(sh.byToken) != len(info) {
-		sh.byToken = make([]uint32, len(info))
-	}
-	if sh.local.epoch == 0 {
-		sh.local.epoch = 1
-	}
 	pos := 0
 	ws, wk, wkEnd := -1, 0, 0 // the word being read starts at ws, in token wk, which ends at wkEnd
 	letter := false           // it has a letter
@@ -438,25 +425,13 @@ func (sh *shard) word(text []byte, ws, we, wk, k int, letter bool, fc *fertility
 		sc = measure.Latin
 	}
 	fc.add(sc, k-wk)
-	d, ids := &sh.local, sh.ids
 	if k-wk == 1 {
 		// A word that is one token is found by the token.
-		tag := byTokenTag(d.epoch)
-		if e := sh.byToken[ids[wk]]; e>>25 == tag {
-			d.again(e&(1<<24-1)-1, uint64(e>>24&1), sh.doc)
-			return
-		}
-		if wi, j := d.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc); j >= 0 && wi+1 < 1<<24 {
-			sh.byToken[ids[wk]] = tag<<25 | uint32(j)<<24 | (wi + 1)
-		}
+		sh.local.AddToken(text[ws:we], sh.ids[wk], sh.doc)
 		return
 	}
-	d.add(text[ws:we], hashWord(text[ws:we]), ids[wk:k], sh.doc)
+	sh.local.Add(text[ws:we], sh.ids[wk:k], sh.doc)
 }
-
-// byTokenTag returns the tag of shard.byToken entries made in the batch
-// of epoch: 1 to 127, which flush reuses after clearing the entries.
-func byTokenTag(epoch uint64) uint32 { return uint32(epoch%127) + 1 }
 
 // Token classes, for scanTokens: bits of Fragmenter.info, which holds 16
 // bits a token, so that the table of them (100 kB for GPT-2) stays in the
@@ -622,39 +597,26 @@ func (f *Fragmenter) AddWords(source string, record int, dw *DocWords) {
 // tables flushes every shard's batch and returns the word tables, which
 // then hold every word scanned. What they hold does not depend on which
 // shard scanned which document (but for the splits kept of a word with
-// more than maxSplits), so neither does the report.
-func (f *Fragmenter) tables() []wordTable {
+// more than tally.MaxSplits), so neither does the report.
+func (f *Fragmenter) tables() *tally.Tables {
 	f.mu.Lock()
 	defer f.mu.Unlock()
 	for _, sh := range f.shards {
-		f.flush(sh)
+		sh.local.Flush(&f.words)
 	}
-	return f.parts[:]
-}
-
-// splitsOf returns the splits of w, a tally of t.
-func (t *wordTable) splitsOf(w *wordTally) []splitTally {
-	out := []splitTally{{ids: t.splitIDs(w.split), count: w.split.count}}
-	if w.more > 0 {
-		for _, sp := range t.more[w.more-1].splits {
-			if sp.n > 0 {
-				out = append(out, splitTally{ids: t.splitIDs(sp), count: sp.count})
-			}
-		}
-	}
-	return out
+	return &f.words
 }
 
 // betterSplit reports whether a is the more common split, the one of fewer
 // pieces on a tie, or the one with the smaller ids on a tie again.
-func betterSplit(a, b splitTally) bool {
-	if a.count != b.count {
-		return a.count > b.count
+func betterSplit(a, b tally.Split) bool {
+	if a.Count != b.Count {
+		return a.Count > b.Count
 	}
-	if len(a.ids) != len(b.ids) {
-		return len(a.ids) < len(b.ids)
+	if len(a.IDs) != len(b.IDs) {
+		return len(a.IDs) < len(b.IDs)
 	}
-	return slices.Compare(a.ids, b.ids) < 0
+	return slices.Compare(a.IDs, b.IDs) < 0
 }
 
 func round4(x float64) float64 { return float64(int64(x*10000+0.5)) / 10000 }

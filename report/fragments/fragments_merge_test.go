@@ -1,23 +1,20 @@
 package fragments
 
+import "morsel/report/fragments/internal/tally"
+
 // wordSum is one word's tallies, as the tests read them.
 type wordSum struct {
 	count, pieces int64
 	docs          int
-	splits        []splitTally
+	splits        []tally.Split
 }
 
 // mergeShards returns the tallies by word, every batch flushed, for the
 // tests.
 func (f *Fragmenter) mergeShards() map[string]*wordSum {
 	out := map[string]*wordSum{}
-	tables := f.tables()
-	for ti := range tables {
-		m := &tables[ti]
-		for i := range m.nwords {
-			w := m.at(i)
-			out[string(m.word(w))] = &wordSum{count: w.count, pieces: w.pieces, docs: int(w.docs), splits: m.splitsOf(w)}
-		}
+	for w := range f.tables().All() {
+		out[string(w.Bytes())] = &wordSum{count: w.Count(), pieces: w.Pieces(), docs: int(w.Docs()), splits: w.Splits()}
 	}
 	return out
 }

@@ -5,7 +5,6 @@ import (
 	"slices"
 	"strings"
 	"testing"
-	"unsafe"
 
 	"morsel/bpe"
 	"morsel/corpus"
@@ -245,8 +244,8 @@ func TestStraddlingTokens(t *testing.T) {
 	if len(got) != 3 {
 		t.Errorf("words %v", got)
 	}
-	if sp := got["s"].splits[0]; len(sp.ids) != 1 || string(mustToken(t, enc, sp.ids[0])) != "'s" {
-		t.Errorf("the piece of \"s\" is %v, want the token \"'s\"", sp.ids)
+	if sp := got["s"].splits[0]; len(sp.IDs) != 1 || string(mustToken(t, enc, sp.IDs[0])) != "'s" {
+		t.Errorf("the piece of \"s\" is %v, want the token \"'s\"", sp.IDs)
 	}
 }
 
@@ -366,53 +365,8 @@ func TestDemoPlantedTermsOnTop(t *testing.T) {
 	}
 }
 
-// packPrefix must give the first eight bytes of a word, little-endian,
-// whatever the loads it takes to read them.
-func TestPackPrefix(t *testing.T) {
-	w := []byte("\x01\x82\x03\xf4\x05\x06\x07\x88\x09\x0a")
-	for n := 0; n <= len(w); n++ {
-		var want uint64
-		for i, c := range w[:min(n, 8)] {
-			want |= uint64(c) << (8 * i)
-		}
-		if got := packPrefix(w[:n]); got != want {
-			t.Errorf("packPrefix of %d bytes = %#x, want %#x", n, got, want)
-		}
-	}
-}
-
-// TestWordTallySize holds a word's tally, and a batch's word, to one
-// 64-byte cache line, the unit memory is read in.
-func TestWordTallySize(t *testing.T) {
-	if n := unsafe.Sizeof(wordTally{}); n != 64 {
-		t.Errorf("a wordTally takes %d bytes, want 64", n)
-	}
-	if n := unsafe.Sizeof(batchWord{}); n != 64 {
-		t.Errorf("a batchWord takes %d bytes, want 64", n)
-	}
-}
-
-// TestWordTableSplits checks that a word's table keeps maxSplits splits,
-// of one id or more, each with its own count, and counts the rest in the
-// word's totals only.
-func TestWordTableSplits(t *testing.T) {
-	var m wordTable
-	w := m.at(m.entry([]byte("kelderwick"), hashWord([]byte("kelderwick"))))
-	for _, s := range []struct {
-		ids []uint32
-		n   int64
-	}{{[]uint32{7}, 2}, {[]uint32{1, 2, 3}, 1}, {[]uint32{7}, 3}, {[]uint32{9}, 1}, {[]uint32{1, 2}, 4}, {[]uint32{5, 6}, 1}, {[]uint32{1, 2, 3}, 2}} {
-		m.addSplit(w, s.ids, s.n)
-	}
-	got := m.splitsOf(w)
-	checkSplits(t, got, []splitTally{{[]uint32{7}, 5}, {[]uint32{1, 2, 3}, 3}, {[]uint32{9}, 1}, {[]uint32{1, 2}, 4}})
-	if again := m.at(m.entry([]byte("kelderwick"), hashWord([]byte("kelderwick")))); again != w {
-		t.Error("the word's second look-up made a new tally")
-	}
-}
-
 // TestByTokenTags flushes the batch after every text, through as many
-// batches as byToken has tags: "the" is the fourth word of the first batch
+// batches as the one-token look-up has tags (127, tally's numTags): "the" is the fourth word of the first batch
 // and the first word of the 128th, so an entry kept from 127 flushes back
 // would count it in another word's entry.
 func TestByTokenTags(t *testing.T) {
@@ -429,7 +383,7 @@ func TestByTokenTags(t *testing.T) {
 			t.Fatal(err)
 		}
 		for _, sh := range fr.shards {
-			fr.flush(sh)
+			sh.local.Flush(&fr.words)
 		}
 	}
 	got := fr.mergeShards()
@@ -440,40 +394,5 @@ func TestByTokenTags(t *testing.T) {
 	}
 	if len(got) != 4 {
 		t.Errorf("%d words, want 4", len(got))
-	}
-}
-
-// TestBatchSpill counts a word split three ways in one batch, the third
-// way past the batch's two inline splits, and checks what the flush makes
-// of it: the counts and pieces are the sums of the occurrences added here.
-func TestBatchSpill(t *testing.T) {
-	fr := NewFragmenter(reporttest.Encoder(t), nil)
-	sh := fr.getShard()
-	word := []byte("kelderwick")
-	h := hashWord(word)
-	for _, o := range []struct {
-		ids []uint32
-		doc int32
-	}{{[]uint32{1, 2}, 1}, {[]uint32{3}, 1}, {[]uint32{4, 5, 6}, 2}, {[]uint32{1, 2}, 2}, {[]uint32{4, 5, 6}, 3}} {
-		sh.local.add(word, h, o.ids, o.doc)
-	}
-	fr.putShard(sh)
-	got := fr.mergeShards()["kelderwick"]
-	if got == nil || got.count != 5 || got.pieces != 2+1+3+2+3 || got.docs != 3 {
-		t.Fatalf("%+v, want 5 occurrences, 11 pieces, 3 documents", got)
-	}
-	checkSplits(t, got.splits, []splitTally{{[]uint32{1, 2}, 2}, {[]uint32{3}, 1}, {[]uint32{4, 5, 6}, 2}})
-}
-
-// checkSplits fails t unless got holds the splits of want, in order.
-func checkSplits(t *testing.T, got, want []splitTally) {
-	t.Helper()
-	if len(got) != len(want) {
-		t.Fatalf("splits %v, want %v", got, want)
-	}
-	for i := range want {
-		if !slices.Equal(got[i].ids, want[i].ids) || got[i].count != want[i].count {
-			t.Errorf("split %d: %v, want %v", i, got[i], want[i])
-		}
 	}
 }

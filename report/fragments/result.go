@@ -6,6 +6,7 @@ import (
 
 	"morsel/bpe"
 	"morsel/report"
+	"morsel/report/fragments/internal/tally"
 	"morsel/report/measure"
 	"morsel/report/render"
 )
@@ -120,33 +121,28 @@ func (f *Fragmenter) Finish(opt Options, skipped []report.Skipped) *Report {
 	// Rank light records first; only the words listed become Report.
 	// With --top N, a bounded heap keeps the N best without sorting all.
 	top := &rankHeap{limit: opt.Top}
-	for ti := range tables {
-		m := &tables[ti]
-		t.DistinctWords += int(m.nwords)
-		for i := range m.nwords {
-			w := m.at(i)
-			if report.Per(float64(w.pieces), float64(w.count)) >= opt.MinPieces && w.count >= opt.MinCount {
-				t.Qualifying++
-				top.offer(ranked{m, w})
-			}
+	t.DistinctWords = tables.Len()
+	for w := range tables.All() {
+		if report.Per(float64(w.Pieces()), float64(w.Count())) >= opt.MinPieces && w.Count() >= opt.MinCount {
+			t.Qualifying++
+			top.offer(w)
 		}
 	}
 	list := top.ws
-	sort.Slice(list, func(i, j int) bool { return list[i].before(list[j]) })
-	for _, rw := range list {
-		m, w := rw.t, rw.w
-		word := m.word(w)
-		splits := m.splitsOf(w)
+	sort.Slice(list, func(i, j int) bool { return before(list[i], list[j]) })
+	for _, w := range list {
+		word := w.Bytes()
+		splits := w.Splits()
 		best := splits[0]
 		for _, sp := range splits[1:] {
 			if betterSplit(sp, best) {
 				best = sp
 			}
 		}
-		fr := Fragment{Word: string(word), Script: measure.WordScript(word).String(), Count: w.count, Documents: int(w.docs),
-			Pieces: report.Round2(report.Per(float64(w.pieces), float64(w.count))), Excess: w.pieces - w.count,
-			SplitShare: round4(report.Per(float64(best.count), float64(w.count)))}
-		for _, id := range best.ids {
+		fr := Fragment{Word: string(word), Script: measure.WordScript(word).String(), Count: w.Count(), Documents: int(w.Docs()),
+			Pieces: report.Round2(report.Per(float64(w.Pieces()), float64(w.Count()))), Excess: w.Pieces() - w.Count(),
+			SplitShare: round4(report.Per(float64(best.Count), float64(w.Count())))}
+		for _, id := range best.IDs {
 			tok, _ := v.Token(int(id))
 			fr.SplitBytes = append(fr.SplitBytes, tok)
 			fr.Split = append(fr.Split, render.PieceText(tok))
@@ -194,48 +190,42 @@ func (f *Fragmenter) Finish(opt Options, skipped []report.Skipped) *Report {
 	return r
 }
 
-// ranked is a word tally and the table it is in.
-type ranked struct {
-	t *wordTable
-	w *wordTally
-}
-
-// before reports whether a ranks before b: more excess tokens, then more
+// before reports whether wa ranks before wb: more excess tokens, then more
 // occurrences, then the word's bytes.
-func (a ranked) before(b ranked) bool {
-	if ea, eb := a.w.pieces-a.w.count, b.w.pieces-b.w.count; ea != eb {
+func before(wa, wb tally.Word) bool {
+	if ea, eb := wa.Pieces()-wa.Count(), wb.Pieces()-wb.Count(); ea != eb {
 		return ea > eb
 	}
-	if a.w.count != b.w.count {
-		return a.w.count > b.w.count
+	if wa.Count() != wb.Count() {
+		return wa.Count() > wb.Count()
 	}
-	return string(a.t.word(a.w)) < string(b.t.word(b.w))
+	return string(wa.Bytes()) < string(wb.Bytes())
 }
 
 // rankHeap keeps the limit best words offered (all of them when limit is
 // 0): a heap whose root is the worst one kept.
 type rankHeap struct {
-	ws    []ranked
+	ws    []tally.Word
 	limit int
 }
 
 func (h *rankHeap) Len() int           { return len(h.ws) }
-func (h *rankHeap) Less(i, j int) bool { return h.ws[j].before(h.ws[i]) }
+func (h *rankHeap) Less(i, j int) bool { return before(h.ws[j], h.ws[i]) }
 func (h *rankHeap) Swap(i, j int)      { h.ws[i], h.ws[j] = h.ws[j], h.ws[i] }
-func (h *rankHeap) Push(x any)         { h.ws = append(h.ws, x.(ranked)) }
+func (h *rankHeap) Push(x any)         { h.ws = append(h.ws, x.(tally.Word)) }
 func (h *rankHeap) Pop() any {
 	w := h.ws[len(h.ws)-1]
 	h.ws = h.ws[:len(h.ws)-1]
 	return w
 }
 
-func (h *rankHeap) offer(w ranked) {
+func (h *rankHeap) offer(w tally.Word) {
 	switch {
 	case h.limit <= 0:
 		h.ws = append(h.ws, w)
 	case len(h.ws) < h.limit:
 		heap.Push(h, w)
-	case w.before(h.ws[0]):
+	case before(w, h.ws[0]):
 		h.ws[0] = w
 		heap.Fix(h, 0)
 	}

@@ -1,0 +1,39 @@
+// Package tally counts the words of a fragments run: for every distinct
+// word, its occurrences, the pieces they took, the documents it occurs in
+// and the ways it was split into tokens.
+//
+// A worker adds each document's words to its own [Batch], a small table
+// that stays in the processor's cache, and flushes the batch into the
+// run's [Tables] between documents. Tables holds numParts partitions,
+// each with its own lock, chosen by the word's hash, so that workers
+// flushing at once seldom wait for each other and every word is tallied
+// in one place.
+//
+// Invariants (the tests hold the code to them):
+//
+//   - A document is scanned within one batch: a batch is flushed only
+//     between documents (the caller calls Flush when Full says so, never
+//     in the middle of a document). A word's document count rests on it,
+//     since a batch counts a document once per word by its number.
+//   - Batches flush between documents, and all of them before the tables
+//     are read: the tables then hold every word, whichever worker scanned
+//     it, and their counts do not depend on the order of the flushes.
+//   - At most MaxSplits splits are kept per word, the first ones seen; the
+//     occurrences of a further split count in the word's totals only. Which
+//     splits are first can depend on the order of the flushes when a word
+//     splits more than MaxSplits ways.
+//   - A word's tally and a batch's word are 64 bytes each, one cache line,
+//     and hold no pointers (words and ids are offsets into arenas), so the
+//     garbage collector never scans the millions of them a large corpus
+//     makes.
+//   - Counts are exact at any size: the tables count in 64 bits; a batch
+//     counts a word in 64 bits and a split in 32, and a split count that
+//     reaches 2^32-1 is carried to the batch's spill list and starts again
+//     from zero. Offsets are 32 bits: a batch holds under 4 GiB of words
+//     and ids (it is flushed after a document once it holds batchFull
+//     pieces, and a document is under 4 GiB), and a partition under 4 GiB
+//     of distinct words.
+//   - An entry of the one-token look-up made in one batch is never read in
+//     a later one: entries carry the batch's tag, one of numTags, and the
+//     look-up is cleared before a tag is used again.
+package tally
