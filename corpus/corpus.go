@@ -211,14 +211,6 @@ type Skip struct {
 	Failed bool
 }
 
-// String returns the skip as "source: reason: detail".
-func (s Skip) String() string {
-	if s.Detail == "" {
-		return s.Source + ": " + s.Reason
-	}
-	return s.Source + ": " + s.Reason + ": " + s.Detail
-}
-
 // Item is one result of Read: exactly one of Doc and Skip is set.
 type Item struct {
 	Doc  *Document

@@ -693,13 +693,6 @@ func TestMatchGlob(t *testing.T) {
 	}
 }
 
-func TestSkipString(t *testing.T) {
-	s := Skip{Source: "notes.jsonl", Record: 12, Reason: ReasonMalformed, Detail: "line 12: bad"}
-	if got := s.String(); got != "notes.jsonl: malformed: line 12: bad" {
-		t.Errorf("String() = %q", got)
-	}
-}
-
 // readFile reads one file as Read does, collecting its items.
 func readFile(t *testing.T, path string, opt Options) []Item {
 	t.Helper()

@@ -69,9 +69,8 @@ func (r *rowReader) readLine(keep bool) ([]byte, error) {
 		i := bytes.IndexByte(r.back, '\n')
 		if i < 0 {
 			// The last line given back was the input's last: src is at
-			// its end.
+			// its end, and the next call says so.
 			line, r.back = r.back, nil
-			err = io.EOF
 		} else {
 			line, r.back = r.back[:i+1], r.back[i+1:]
 		}
@@ -108,7 +107,6 @@ func (r *rowReader) readLine(keep bool) ([]byte, error) {
 	if keep {
 		r.raw = append(r.raw, line...)
 	}
-	err = nil
 	n := len(line)
 	if line[n-1] != '\n' && line[n-1] == '\r' {
 		// For backwards compatibility, encoding/csv drops a trailing

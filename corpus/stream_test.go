@@ -116,7 +116,7 @@ func itemLines(items []Item) []string {
 			d := *it.Doc
 			out = append(out, d.Source+" "+d.Format+" "+string(d.Text[:min(len(d.Text), 40)]))
 		} else {
-			out = append(out, it.Skip.String())
+			out = append(out, skipLine(*it.Skip))
 		}
 	}
 	return out
@@ -129,4 +129,13 @@ func TestReadStreamCorrupt(t *testing.T) {
 	if len(items) != 1 || items[0].Skip == nil || items[0].Skip.Reason != ReasonCorrupt || items[0].Skip.Source != "gs://b/x.jsonl.gz" {
 		t.Fatalf("got %v, want one corrupt skip", itemLines(items))
 	}
+}
+
+// skipLine returns a skip as "source: reason: detail" (": detail" left out
+// when there is none), for comparing with want lines.
+func skipLine(s Skip) string {
+	if s.Detail == "" {
+		return s.Source + ": " + s.Reason
+	}
+	return s.Source + ": " + s.Reason + ": " + s.Detail
 }
