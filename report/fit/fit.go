@@ -1,6 +1,9 @@
 package fit
 
 import (
+	"bufio"
+	"bytes"
+	"encoding/json"
 	"fmt"
 	"io"
 	"sort"
@@ -46,6 +49,8 @@ type Report struct {
 	Documents  []Doc            `json:"documents"` // overflowing documents first, worst first; then the rest in input order
 	Skipped    []report.Skipped `json:"skipped"`
 	Totals     Totals           `json:"totals"`
+
+	fits *fitRows // the documents that fit, after Documents, until expanded
 }
 
 // Fitter measures documents against a window.
@@ -107,8 +112,31 @@ func (f *Fitter) verdict(source string, record, tokens, in int) Doc {
 		Window: f.Window, Fits: margin >= 0, Margin: margin}
 }
 
-// Collector folds walk results into a Report.
-type Collector struct{ r Report }
+// Collector folds walk results into a Report. A document that fits is
+// kept as three numbers and its name's share of a run of names, so that a
+// million records cost a few megabytes; one that overflows is kept whole,
+// as the report lists those first, worst first.
+type Collector struct {
+	r     Report
+	fits  fitRows
+	first bool
+}
+
+// fitRows are the documents that fit, in input order.
+type fitRows struct {
+	rows   []fitRow
+	names  report.Names
+	window int
+}
+
+type fitRow struct{ tokens, input, reserve int }
+
+func (fr *fitRows) doc(i int) Doc {
+	r := fr.rows[i]
+	d := Doc{Tokens: r.tokens, InputTokens: r.input, Reserve: r.reserve, Window: fr.window, Fits: true, Margin: fr.window - r.input - r.reserve}
+	d.Source, d.Record = fr.names.At(i)
+	return d
+}
 
 // NewCollector starts a fit report.
 func NewCollector(f *Fitter, target string) *Collector {
@@ -116,11 +144,28 @@ func NewCollector(f *Fitter, target string) *Collector {
 	frameTok, _ := request.InputTokens(f.Enc, f.Frame, name, nil, f.Overhead) // the frame alone: a pattern timeout there shows on every document
 	return &Collector{r: Report{Vocabulary: f.Enc.Vocab().Info(), Target: target, Window: f.Window,
 		Frame: f.Frame.Label(), FrameTok: frameTok, Overhead: f.Overhead,
-		Documents: []Doc{}, Skipped: []report.Skipped{}}}
+		Documents: []Doc{}, Skipped: []report.Skipped{}}, first: true}
 }
 
 // Add takes one document's verdict.
-func (fc *Collector) Add(d Doc) { fc.r.Documents = append(fc.r.Documents, d) }
+func (fc *Collector) Add(d Doc) {
+	t := &fc.r.Totals
+	t.Documents++
+	if fc.first || d.Margin < t.WorstMargin {
+		t.WorstMargin = d.Margin
+	}
+	fc.first = false
+	if !d.Fits {
+		t.Overflow++
+		fc.r.Documents = append(fc.r.Documents, d)
+		return
+	}
+	// The window and margin of a fitting document are the report's window
+	// and what is left of it, so they are not kept.
+	t.Fit++
+	fc.fits.rows = append(fc.fits.rows, fitRow{d.Tokens, d.InputTokens, d.Reserve})
+	fc.fits.names.Add(d.Source, d.Record)
+}
 
 // Finish orders the documents and sums the totals, with skipped as the
 // inputs and records not measured.
@@ -134,19 +179,10 @@ func (fc *Collector) Finish(skipped []report.Skipped) *Report {
 		}
 		return !a.Fits && a.Margin < b.Margin
 	})
-	t := &r.Totals
-	for i, d := range r.Documents {
-		t.Documents++
-		if d.Fits {
-			t.Fit++
-		} else {
-			t.Overflow++
-		}
-		if i == 0 || d.Margin < t.WorstMargin {
-			t.WorstMargin = d.Margin
-		}
-	}
+	fc.fits.window = r.Window
+	r.fits = &fc.fits
 	for _, s := range r.Skipped {
+		t := &r.Totals
 		t.Skipped++
 		if s.Failed {
 			t.Failed++
@@ -155,21 +191,63 @@ func (fc *Collector) Finish(skipped []report.Skipped) *Report {
 	return r
 }
 
+// Each calls fn with every document in the report's order.
+func (r *Report) Each(fn func(Doc) error) error {
+	for _, d := range r.Documents {
+		if err := fn(d); err != nil {
+			return err
+		}
+	}
+	if r.fits == nil {
+		return nil
+	}
+	for i := range r.fits.rows {
+		if err := fn(r.fits.doc(i)); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// expand puts the documents kept compact into Documents, for the views
+// and orders that need them all at once.
+func (r *Report) expand() {
+	if r.fits == nil {
+		return
+	}
+	for i := range r.fits.rows {
+		r.Documents = append(r.Documents, r.fits.doc(i))
+	}
+	r.fits = nil
+}
+
 // Write renders a fit report in format f.
 func Write(w io.Writer, f render.Format, r *Report) error {
 	if f == render.JSON {
-		return render.WriteJSON(w, r)
+		return writeJSON(w, r)
 	}
 	g := &render.Grid{Sources: true, Title: fmt.Sprintf("Fit in a %s-token window (frame %s, %s tokens with overhead)", render.Num(r.Window), r.Frame, render.Num(r.FrameTok)),
 		Header: []string{"document", "tokens", "input", "reserve", "margin", "verdict"}, Right: []int{1, 2, 3, 4}}
 	if f == render.CSV {
 		g.Header = []string{"source", "record", "tokens", "input_tokens", "reserve", "window", "fits", "margin"}
-		for _, d := range r.Documents {
-			g.AddRow(d.Source, fmt.Sprint(d.Record), fmt.Sprint(d.Tokens), fmt.Sprint(d.InputTokens), fmt.Sprint(d.Reserve),
-				fmt.Sprint(d.Window), fmt.Sprint(d.Fits), fmt.Sprint(d.Margin))
+		bw := bufio.NewWriterSize(w, 64<<10)
+		rw, err := render.NewRowWriter(bw, g.Header)
+		if err != nil {
+			return err
 		}
-		return g.WriteCSV(w)
+		err = r.Each(func(d Doc) error {
+			return rw.Write(d.Source, fmt.Sprint(d.Record), fmt.Sprint(d.Tokens), fmt.Sprint(d.InputTokens), fmt.Sprint(d.Reserve),
+				fmt.Sprint(d.Window), fmt.Sprint(d.Fits), fmt.Sprint(d.Margin))
+		})
+		if err == nil {
+			err = rw.Flush()
+		}
+		if err == nil {
+			err = bw.Flush()
+		}
+		return err
 	}
+	r.expand()
 	for _, d := range r.Documents {
 		verdict := "fits"
 		if !d.Fits {
@@ -205,7 +283,77 @@ var Orders = []report.Order{report.ByTokens, report.ByName, report.ByOverflow}
 // Sort puts the documents in order o; without one they stay overflowing
 // first, worst first.
 func (r *Report) Sort(o report.Order) {
+	if o != report.InputOrder {
+		r.expand()
+	}
 	report.SortDocs(r.Documents, o, func(d *Doc) report.DocKey {
 		return report.DocKey{Source: d.Source, Record: d.Record, Tokens: int64(d.Tokens), Over: int64(-d.Margin)}
 	})
+}
+
+// writeJSON writes r as render.WriteJSON would, a document at a time.
+func writeJSON(w io.Writer, r *Report) error {
+	bw := bufio.NewWriterSize(w, 64<<10)
+	enc := func(v any, prefix string) error {
+		var b bytes.Buffer
+		e := json.NewEncoder(&b)
+		e.SetIndent(prefix, "  ")
+		e.SetEscapeHTML(false)
+		if err := e.Encode(v); err != nil {
+			return err
+		}
+		bw.Write(bytes.TrimSuffix(b.Bytes(), []byte("\n")))
+		return nil
+	}
+	field := func(name string, v any, last bool) error {
+		fmt.Fprintf(bw, "  %q: ", name)
+		if err := enc(v, "  "); err != nil {
+			return err
+		}
+		if !last {
+			bw.WriteString(",")
+		}
+		bw.WriteString("\n")
+		return nil
+	}
+	bw.WriteString("{\n")
+	head := []struct {
+		name string
+		v    any
+		omit bool
+	}{{"vocabulary", r.Vocabulary, false}, {"target", r.Target, r.Target == ""}, {"window", r.Window, false}, {"frame", r.Frame, false},
+		{"frame_tokens", r.FrameTok, false}, {"overhead", r.Overhead, false}}
+	for _, h := range head {
+		if h.omit {
+			continue
+		}
+		if err := field(h.name, h.v, false); err != nil {
+			return err
+		}
+	}
+	bw.WriteString(`  "documents": [`)
+	n := 0
+	err := r.Each(func(d Doc) error {
+		if n > 0 {
+			bw.WriteString(",")
+		}
+		n++
+		bw.WriteString("\n    ")
+		return enc(d, "    ")
+	})
+	if err != nil {
+		return err
+	}
+	if n > 0 {
+		bw.WriteString("\n  ")
+	}
+	bw.WriteString("],\n")
+	if err := field("skipped", r.Skipped, false); err != nil {
+		return err
+	}
+	if err := field("totals", r.Totals, true); err != nil {
+		return err
+	}
+	bw.WriteString("}\n")
+	return bw.Flush()
 }

@@ -15,6 +15,7 @@ import (
 // tightest fits with the room they leave, and every document's verdict (at
 // most rows of them; 0 lists all).
 func WriteHTML(w io.Writer, r *Report, rows int) error {
+	r.expand()
 	t := r.Totals
 	p := &render.Page{
 		Command: "fit",

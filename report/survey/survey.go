@@ -127,7 +127,7 @@ type Surveyor struct {
 	rows     func(Weight) error
 	tokens   tokenTally
 	keys     docKeys
-	names    names
+	names    report.Names
 	byFormat map[string]*FormatShare
 	special  int // documents that hold special-token strings
 }
@@ -174,7 +174,7 @@ func (sv *Surveyor) Add(d Weight) error {
 	f.Bytes += d.Bytes
 	sv.tokens.add(d.Tokens)
 	sv.keys.add(d.Hash, d.Tokens, d.Bytes)
-	sv.names.add(d.Source, d.Record)
+	sv.names.Add(d.Source, d.Record)
 	sv.addLargest(d)
 	if sv.rows != nil {
 		return sv.rows(d)
@@ -411,10 +411,10 @@ func (sv *Surveyor) identicalGroups() []Identical {
 			}
 			if g < 0 {
 				dup[k.hash] = len(groups)
-				groups = append(groups, Identical{Tokens: int(k.tokens), Bytes: sv.keys.bytesOf(i, k), Documents: []string{sv.names.of(i)}})
+				groups = append(groups, Identical{Tokens: int(k.tokens), Bytes: sv.keys.bytesOf(i, k), Documents: []string{sv.names.Of(i)}})
 				return
 			}
-			groups[g].Documents = append(groups[g].Documents, sv.names.of(i))
+			groups[g].Documents = append(groups[g].Documents, sv.names.Of(i))
 		})
 	}
 	out := append([]Identical{}, groups...)

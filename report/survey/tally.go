@@ -199,31 +199,3 @@ func (ks *docKeys) repeated() map[uint64]int {
 	}
 	return dup
 }
-
-// nameRun is a run of documents that are consecutive records of one
-// source: document first+i is record record+i of source.
-type nameRun struct {
-	first  int
-	source string
-	record int
-}
-
-// names gives every document of the walk its name for the report.
-type names struct {
-	runs []nameRun
-	n    int
-}
-
-func (ns *names) add(source string, record int) {
-	if l := len(ns.runs); l == 0 || ns.runs[l-1].source != source || ns.runs[l-1].record+(ns.n-ns.runs[l-1].first) != record {
-		ns.runs = append(ns.runs, nameRun{first: ns.n, source: source, record: record})
-	}
-	ns.n++
-}
-
-// of returns document i's name, as report.Where gives it.
-func (ns *names) of(i int) string {
-	k := sort.Search(len(ns.runs), func(k int) bool { return ns.runs[k].first > i }) - 1
-	r := ns.runs[k]
-	return report.Where(r.source, r.record+i-r.first)
-}

@@ -157,24 +157,6 @@ func plainHistogram(tokens []int) []Bin {
 	return bins
 }
 
-// TestNamesRebuildEveryDocument checks a document's name from the runs
-// against the name it was added with.
-func TestNamesRebuildEveryDocument(t *testing.T) {
-	docs := randomDocs(rand.New(rand.NewPCG(3, 4)), 5000)
-	var ns names
-	for _, d := range docs {
-		ns.add(d.Source, d.Record)
-	}
-	if len(ns.runs) >= len(docs)/4 {
-		t.Fatalf("%d runs for %d documents: consecutive records are not sharing a run", len(ns.runs), len(docs))
-	}
-	for i, d := range docs {
-		if got, want := ns.of(i), report.Where(d.Source, d.Record); got != want {
-			t.Fatalf("document %d is %q, want %q", i, got, want)
-		}
-	}
-}
-
 // TestDocKeysKeepHugeSizes checks that a size past 32 bits is kept whole.
 func TestDocKeysKeepHugeSizes(t *testing.T) {
 	var ks docKeys
