@@ -21,7 +21,10 @@ func TestFitHTML(t *testing.T) {
 		d.Margin = d.Window - d.InputTokens - d.Reserve
 		d.Fits = d.Margin >= 0
 	}
-	fc := &Collector{r: *r}
+	fc := &Collector{r: Report{Vocabulary: r.Vocabulary, Window: r.Window, Frame: r.Frame, FrameTok: r.FrameTok}, first: true}
+	for _, d := range r.Documents {
+		fc.Add(d)
+	}
 	r = fc.Finish(r.Skipped)
 	if r.Totals.Overflow == 0 || r.Totals.Fit == 0 {
 		t.Fatalf("want both verdicts, got %+v", r.Totals)
