@@ -1,6 +1,7 @@
 package bpe
 
 import (
+	"strings"
 	"unicode"
 	"unicode/utf8"
 )
@@ -18,18 +19,28 @@ const (
 )
 
 // knownScanner returns the hand scanner for a split pattern it
-// recognises, with a name for it, or nil.
+// recognises, with a name for it, or nil. A line break written as itself
+// and one written as \r or \n are the same to the regex engine, and bundles
+// have both.
 func knownScanner(pattern string) (func(t []byte, i int) int, string) {
-	switch pattern {
+	switch lineBreaksEscaped.Replace(pattern) {
 	case GPT2Pattern:
 		return nextGPT2, "gpt2"
 	case DigitsPattern:
 		return nextDigits1, "digits"
 	case DigitGroupsPattern:
 		return nextDigits3, "digit-groups"
+	case NumberGroupsPattern:
+		return nextNumberGroups, "number-groups"
+	case KanaHanPattern:
+		return nextKanaHan, "kana-han"
+	case LettersMarksPattern:
+		return nextLettersMarks, "letters-marks"
 	}
 	return nil, ""
 }
+
+var lineBreaksEscaped = strings.NewReplacer("\r", `\r`, "\n", `\n`)
 
 func nextDigits1(t []byte, i int) int { return nextDigitsFamily(t, i, 1) }
 func nextDigits3(t []byte, i int) int { return nextDigitsFamily(t, i, 3) }

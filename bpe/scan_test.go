@@ -17,6 +17,9 @@ var scannerPatterns = []struct {
 	{"gpt2", GPT2Pattern, nextGPT2},
 	{"digits", DigitsPattern, nextDigits1},
 	{"digit-groups", DigitGroupsPattern, nextDigits3},
+	{"number-groups", NumberGroupsPattern, nextNumberGroups},
+	{"kana-han", KanaHanPattern, nextKanaHan},
+	{"letters-marks", LettersMarksPattern, nextLettersMarks},
 }
 
 // regexPieces returns the pieces that re makes of t under Isolated: the
@@ -89,6 +92,9 @@ var scannerCases = []string{
 	"👩‍👩‍👧 🇩🇪 1️⃣", "a\u00a0b\u2003c\u3000d", "x\u0085y", "a\u200bb", "   \u00a0x",
 	"(hello) [x] {y} --flag ..dots", "a.\n\nb", "x;\r\n\r\n  y", " .\n", "\t.x", "\n x", "a \n\t b",
 	"ab\xff\xfecd \xe3\x81 x", "'\xff", " \xffa",
+	"東京タワーは333メートル、ひらがなとカタカナ。", "中文，日本語；한국어 text", "\xe4\xb8\xe4\xb8\x80\xe9\xbe\xa5\xe9\xbe\xa6",
+	"ゟ゠ヿ㐀\u9fa6\u303f", "e\u0301te\u0301 \u0301a \u0301 \u0301\u0301", "'hello 'héllo $x +=1 ..ab", "a1b 12x ½x ⅫA",
+	"\x00a \x00\x01 \x7fb", "\u200bx\u200b\u200b", " ¡hola! «x» — y", "x\t\u0301\n\u0301", " \r\n.\r\n",
 }
 
 func TestScannersMatchRegexp(t *testing.T) {
@@ -126,5 +132,10 @@ func TestKnownScannerNames(t *testing.T) {
 	}
 	if next, _ := knownScanner(strings.Replace(DigitsPattern, "+", "*", 1)); next != nil {
 		t.Error("a changed pattern is taken for a known one")
+	}
+	// Line breaks written as themselves, as some bundles have them.
+	raw := strings.NewReplacer(`\r`, "\r", `\n`, "\n").Replace(LettersMarksPattern)
+	if next, name := knownScanner(raw); next == nil || name != "letters-marks" {
+		t.Errorf("knownScanner(letters-marks with literal line breaks) = %v, %q", next != nil, name)
 	}
 }
