@@ -33,22 +33,19 @@ func WriteHTML(w io.Writer, r *Report, docRows int) error {
 	} else {
 		words.Intro = "Each word's pieces are its tokens where it stands in the text, the leading space (␣) included; shading alternates from one piece to the next. The split shown is the word's most common one."
 		words.Charts = []template.HTML{excessChart(r).SVG()}
-		wv := &render.WordsView{
-			Title: fmt.Sprintf("%s of %s words shown", render.Num(t.Listed), render.Num(t.Qualifying)),
-			Header: []render.CellView{{Text: "#", Num: true}, {Text: "word"}, {Text: "script"}, {Text: "count", Num: true},
-				{Text: "pieces", Num: true}, {Text: "excess", Num: true}, {Text: "split"}, {Text: "documents", Num: true}},
-		}
-		for i, f := range r.Words {
-			wv.Rows = append(wv.Rows, render.WordRow{
-				Cells: []render.CellView{{Text: fmt.Sprint(i + 1), Num: true}, {Text: render.ShownWord(f.Word)}, {Text: f.Script}, {Text: render.Num(f.Count), Num: true},
-					{Text: fmt.Sprintf("%.2f", f.Pieces), Num: true}, {Text: render.Num(f.Excess), Num: true}},
-				Pieces: render.ShownPieces(fragmentPieces(f)),
-				After:  []render.CellView{{Text: render.Num(f.Documents), Num: true}},
-			})
-		}
-		words.Words = wv
+		words.Words = wordsView(fmt.Sprintf("%s of %s words shown", render.Num(t.Listed), render.Num(t.Qualifying)), r.Words)
 	}
 	p.Sections = append(p.Sections, words)
+	if r.HasFallback {
+		fb := render.Section{ID: "byte-fallback", Heading: "Words spelled only in byte-fallback tokens"}
+		if len(r.Fallback) == 0 {
+			fb.Intro = fmt.Sprintf("Every word seen at least %d time(s) has a token of the vocabulary in it.", r.Options.MinCount)
+		} else {
+			fb.Intro = "The vocabulary has no token for any character of these words: each is spelled a byte at a time, in tokens such as <E6>. Ranked by excess tokens."
+			fb.Words = wordsView(fmt.Sprintf("%s of %s words shown", render.Num(t.FallbackListed), render.Num(t.FallbackWords)), r.Fallback)
+		}
+		p.Sections = append(p.Sections, fb)
+	}
 
 	if len(r.Fertility.ByScript) > 0 {
 		p.Sections = append(p.Sections, render.Section{
@@ -84,6 +81,24 @@ func WriteHTML(w io.Writer, r *Report, docRows int) error {
 		p.Sections = append(p.Sections, render.SkipSection(render.ViewOf(w), r.Skipped))
 	}
 	return render.WritePage(w, p)
+}
+
+// wordsView lists ranked words with their pieces shaded.
+func wordsView(title string, ws []Fragment) *render.WordsView {
+	wv := &render.WordsView{
+		Title: title,
+		Header: []render.CellView{{Text: "#", Num: true}, {Text: "word"}, {Text: "script"}, {Text: "count", Num: true},
+			{Text: "pieces", Num: true}, {Text: "excess", Num: true}, {Text: "split"}, {Text: "documents", Num: true}},
+	}
+	for i, f := range ws {
+		wv.Rows = append(wv.Rows, render.WordRow{
+			Cells: []render.CellView{{Text: fmt.Sprint(i + 1), Num: true}, {Text: render.ShownWord(f.Word)}, {Text: f.Script}, {Text: render.Num(f.Count), Num: true},
+				{Text: fmt.Sprintf("%.2f", f.Pieces), Num: true}, {Text: render.Num(f.Excess), Num: true}},
+			Pieces: render.ShownPieces(fragmentPieces(f)),
+			After:  []render.CellView{{Text: render.Num(f.Documents), Num: true}},
+		})
+	}
+	return wv
 }
 
 // fragmentPieces returns a word's pieces as a person can read them, a

@@ -91,24 +91,37 @@ type Totals struct {
 	// new token, and a token shared by two words is counted in both.
 	Saving      float64 `json:"saving_upper_bound"`
 	FlaggedTerm int     `json:"flagged_terms"`
+	// FallbackWords counts the words that pass --min-count and that the
+	// vocabulary spells in byte-fallback tokens alone, and FallbackListed
+	// those of them listed.
+	FallbackWords  int `json:"byte_fallback_words"`
+	FallbackListed int `json:"listed_byte_fallback_words"`
 }
 
 // Report is the report of morsel fragments.
 type Report struct {
-	Vocabulary bpe.Info         `json:"vocabulary"`
-	Options    Options          `json:"-"`
-	Words      []Fragment       `json:"words"`
-	Totals     Totals           `json:"totals"`
-	Fertility  Fertility        `json:"fertility"`
-	Terms      []TermReport     `json:"terms"`
-	Skipped    []report.Skipped `json:"skipped"`
+	Vocabulary bpe.Info   `json:"vocabulary"`
+	Options    Options    `json:"-"`
+	Words      []Fragment `json:"words"`
+	// Fallback ranks, as Words are ranked, the words whose every split is
+	// byte-fallback tokens only: characters the vocabulary has no token
+	// for, spelled a byte at a time. It is empty under a vocabulary
+	// without byte fallback.
+	Fallback []Fragment `json:"byte_fallback_words"`
+	// HasFallback says the vocabulary has byte fallback, so that the
+	// views show the Fallback ranking, empty or not.
+	HasFallback bool             `json:"-"`
+	Totals      Totals           `json:"totals"`
+	Fertility   Fertility        `json:"fertility"`
+	Terms       []TermReport     `json:"terms"`
+	Skipped     []report.Skipped `json:"skipped"`
 }
 
 // Finish ranks the words by excess tokens (then by count, then by word)
 // and returns the report.
 func (f *Fragmenter) Finish(opt Options, skipped []report.Skipped) *Report {
 	v := f.enc.Vocab()
-	r := &Report{Vocabulary: v.Info(), Options: opt, Words: []Fragment{}, Terms: []TermReport{}, Skipped: report.OrNone(skipped)}
+	r := &Report{Vocabulary: v.Info(), Options: opt, Words: []Fragment{}, Fallback: []Fragment{}, HasFallback: v.ByteFallback(), Terms: []TermReport{}, Skipped: report.OrNone(skipped)}
 	t := f.totals
 	t.Words = f.all.Words
 	for _, k := range r.Skipped {
@@ -121,35 +134,24 @@ func (f *Fragmenter) Finish(opt Options, skipped []report.Skipped) *Report {
 	// Rank light records first; only the words listed become Report.
 	// With --top N, a bounded heap keeps the N best without sorting all.
 	top := &rankHeap{limit: opt.Top}
+	fallback := &rankHeap{limit: opt.Top}
 	t.DistinctWords = tables.Len()
 	for w := range tables.All() {
-		if report.Per(float64(w.Pieces()), float64(w.Count())) >= opt.MinPieces && w.Count() >= opt.MinCount {
+		if w.Count() < opt.MinCount {
+			continue
+		}
+		if report.Per(float64(w.Pieces()), float64(w.Count())) >= opt.MinPieces {
 			t.Qualifying++
 			top.offer(w)
 		}
-	}
-	list := top.ws
-	sort.Slice(list, func(i, j int) bool { return before(list[i], list[j]) })
-	for _, w := range list {
-		word := w.Bytes()
-		splits := w.Splits()
-		best := splits[0]
-		for _, sp := range splits[1:] {
-			if betterSplit(sp, best) {
-				best = sp
-			}
+		if r.HasFallback && fallbackOnly(v, w.Splits()) {
+			t.FallbackWords++
+			fallback.offer(w)
 		}
-		fr := Fragment{Word: string(word), Script: measure.WordScript(word).String(), Count: w.Count(), Documents: int(w.Docs()),
-			Pieces: report.Round2(report.Per(float64(w.Pieces()), float64(w.Count()))), Excess: w.Pieces() - w.Count(),
-			SplitShare: round4(report.Per(float64(best.Count), float64(w.Count())))}
-		for _, id := range best.IDs {
-			tok, _ := v.Token(int(id))
-			fr.SplitBytes = append(fr.SplitBytes, tok)
-			fr.Split = append(fr.Split, render.PieceText(tok))
-		}
-		r.Words = append(r.Words, fr)
 	}
-	t.Listed = len(r.Words)
+	r.Words = fragmentsOf(v, top.ws)
+	r.Fallback = fragmentsOf(v, fallback.ws)
+	t.Listed, t.FallbackListed = len(r.Words), len(r.Fallback)
 	for _, w := range r.Words {
 		t.ListedExcess += w.Excess
 	}
@@ -188,6 +190,46 @@ func (f *Fragmenter) Finish(opt Options, skipped []report.Skipped) *Report {
 	}
 	r.Totals = t
 	return r
+}
+
+// fragmentsOf returns the words of list, in rank order, as the report
+// gives them.
+func fragmentsOf(v *bpe.Vocab, list []tally.Word) []Fragment {
+	sort.Slice(list, func(i, j int) bool { return before(list[i], list[j]) })
+	out := []Fragment{}
+	for _, w := range list {
+		word := w.Bytes()
+		splits := w.Splits()
+		best := splits[0]
+		for _, sp := range splits[1:] {
+			if betterSplit(sp, best) {
+				best = sp
+			}
+		}
+		fr := Fragment{Word: string(word), Script: measure.WordScript(word).String(), Count: w.Count(), Documents: int(w.Docs()),
+			Pieces: report.Round2(report.Per(float64(w.Pieces()), float64(w.Count()))), Excess: w.Pieces() - w.Count(),
+			SplitShare: round4(report.Per(float64(best.Count), float64(w.Count())))}
+		for _, id := range best.IDs {
+			tok, _ := v.Token(int(id))
+			fr.SplitBytes = append(fr.SplitBytes, tok)
+			fr.Split = append(fr.Split, render.PieceText(tok))
+		}
+		out = append(out, fr)
+	}
+	return out
+}
+
+// fallbackOnly reports whether every split kept of a word is byte-fallback
+// tokens alone.
+func fallbackOnly(v *bpe.Vocab, splits []tally.Split) bool {
+	for _, sp := range splits {
+		for _, id := range sp.IDs {
+			if !v.IsByteFallback(int(id)) {
+				return false
+			}
+		}
+	}
+	return true
 }
 
 // before reports whether wa ranks before wb: more excess tokens, then more

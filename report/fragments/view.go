@@ -34,10 +34,15 @@ func Write(w io.Writer, f render.Format, r *Report, docRows int) error {
 	}
 	words := fragmentGrid(r, f)
 	if f == render.CSV {
+		addFallbackRows(words, r)
 		addTermRows(words, r)
 		return words.WriteCSV(w)
 	}
-	grids := []*render.Grid{words, savingGrid(r), scriptGrid(r), docFertilityGrid(r, docRows)}
+	grids := []*render.Grid{words}
+	if r.HasFallback {
+		grids = append(grids, fallbackGrid(r))
+	}
+	grids = append(grids, savingGrid(r), scriptGrid(r), docFertilityGrid(r, docRows))
 	if len(r.Terms) > 0 {
 		grids = append(grids, termGrid(r))
 	}
@@ -45,6 +50,15 @@ func Write(w io.Writer, f render.Format, r *Report, docRows int) error {
 		grids = append(grids, render.SkipGrids(render.ViewOf(w), r.Skipped)...)
 	}
 	return render.WriteGrids(w, f, grids...)
+}
+
+// addFallbackRows adds the words spelled only in byte-fallback tokens to
+// the CSV word table, with kind "byte-fallback" and their rank in that
+// ranking.
+func addFallbackRows(g *render.Grid, r *Report) {
+	for i, w := range r.Fallback {
+		g.AddRow(fragmentRow(i, w, render.CSV, "byte-fallback")...)
+	}
 }
 
 // addTermRows adds the glossary terms to the CSV word table, one row a
@@ -68,19 +82,40 @@ func fragmentGrid(r *Report, f render.Format) *render.Grid {
 		g.Header = []string{"rank", "word", "script", "count", "documents", "pieces", "excess", "split", "split_share", "kind", "pieces_alone", "flagged", "line"}
 	}
 	for i, w := range r.Words {
-		// Words and splits are cut for display; JSON keeps them whole.
-		split := strings.Join(render.ShownPieces(readableParts(w.SplitBytes)), " ")
-		word := render.ShownWord(w.Word)
-		row := []string{fmt.Sprint(i + 1), word, w.Script, render.Num(w.Count), render.Num(w.Documents),
-			fmt.Sprintf("%.2f", w.Pieces), render.Num(w.Excess), split}
-		if f == render.CSV {
-			row = []string{fmt.Sprint(i + 1), word, w.Script, fmt.Sprint(w.Count), fmt.Sprint(w.Documents),
-				fmt.Sprintf("%.2f", w.Pieces), fmt.Sprint(w.Excess), split, fmt.Sprintf("%.4f", w.SplitShare), "word", "", "", ""}
-		}
-		g.AddRow(row...)
+		g.AddRow(fragmentRow(i, w, f, "word")...)
 	}
 	if len(r.Words) == 0 {
 		g.Notes = append(g.Notes, fmt.Sprintf("no word splits into %g or more pieces at least %d time(s)", r.Options.MinPieces, r.Options.MinCount))
+	}
+	return g
+}
+
+// fragmentRow is the row of the word ranked i+1 in a word table; kind
+// fills the CSV's kind column.
+func fragmentRow(i int, w Fragment, f render.Format, kind string) []string {
+	// Words and splits are cut for display; JSON keeps them whole.
+	split := strings.Join(render.ShownPieces(readableParts(w.SplitBytes)), " ")
+	word := render.ShownWord(w.Word)
+	if f == render.CSV {
+		return []string{fmt.Sprint(i + 1), word, w.Script, fmt.Sprint(w.Count), fmt.Sprint(w.Documents),
+			fmt.Sprintf("%.2f", w.Pieces), fmt.Sprint(w.Excess), split, fmt.Sprintf("%.4f", w.SplitShare), kind, "", "", ""}
+	}
+	return []string{fmt.Sprint(i + 1), word, w.Script, render.Num(w.Count), render.Num(w.Documents),
+		fmt.Sprintf("%.2f", w.Pieces), render.Num(w.Excess), split}
+}
+
+// fallbackGrid ranks the words the vocabulary spells only in byte-fallback
+// tokens.
+func fallbackGrid(r *Report) *render.Grid {
+	g := &render.Grid{Title: fmt.Sprintf("Words spelled only in byte-fallback tokens (%s of %s shown)",
+		render.Num(r.Totals.FallbackListed), render.Num(r.Totals.FallbackWords)),
+		Header: []string{"#", "word", "script", "count", "documents", "pieces", "excess", "split"},
+		Right:  []int{0, 3, 4, 5, 6}}
+	for i, w := range r.Fallback {
+		g.AddRow(fragmentRow(i, w, render.Table, "")...)
+	}
+	if len(r.Fallback) == 0 {
+		g.Notes = append(g.Notes, fmt.Sprintf("every word seen at least %d time(s) has a token of the vocabulary in it", r.Options.MinCount))
 	}
 	return g
 }
