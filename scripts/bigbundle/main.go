@@ -6,7 +6,10 @@
 // names tokens of the vocabulary and makes one) but its later merges are
 // not learned from any text. It is never committed. With -digit-groups
 // -tokens 0 -merges 0 it writes qwen3 with the digit-groups split pattern
-// instead (the survey benchmark's third bundle).
+// instead (the survey benchmark's third bundle), and with -cjk-sequence
+// qwen3 with a Sequence of three Splits that cuts numbers into groups of
+// three and Han and kana runs apart before a rule over letters and marks
+// (bpe.NumberGroupsPattern, KanaHanPattern, LettersMarksPattern).
 //
 //	go run ./scripts/bigbundle -from testdata/vocab/qwen3/tokenizer.json.gz -o /tmp/big/tokenizer.json
 package main
@@ -22,6 +25,8 @@ import (
 	"os"
 	"path/filepath"
 	"unicode/utf8"
+
+	"morsel/bpe"
 )
 
 func main() {
@@ -30,14 +35,15 @@ func main() {
 	tokens := flag.Int("tokens", 250000, "tokens in the vocabulary")
 	merges := flag.Int("merges", 500000, "merges")
 	groups := flag.Bool("digit-groups", false, "replace the split pattern by the digit-groups one (numbers cut into groups of up to three digits)")
+	sequence := flag.Bool("cjk-sequence", false, "replace the pre-tokenizer by a Sequence of three Splits that cut numbers, then Han and kana runs, then the rest")
 	flag.Parse()
-	if err := run(*from, *out, *tokens, *merges, *groups); err != nil {
+	if err := run(*from, *out, *tokens, *merges, *groups, *sequence); err != nil {
 		fmt.Fprintln(os.Stderr, "bigbundle:", err)
 		os.Exit(1)
 	}
 }
 
-func run(from, out string, wantTokens, wantMerges int, groups bool) error {
+func run(from, out string, wantTokens, wantMerges int, groups, sequence bool) error {
 	data, err := os.ReadFile(from)
 	if err != nil {
 		return err
@@ -155,6 +161,14 @@ func run(from, out string, wantTokens, wantMerges int, groups bool) error {
 				break
 			}
 		}
+	}
+	if sequence {
+		var pres []any
+		for _, p := range []string{bpe.NumberGroupsPattern, bpe.KanaHanPattern, bpe.LettersMarksPattern} {
+			pres = append(pres, map[string]any{"type": "Split", "pattern": map[string]string{"Regex": p}, "behavior": "Isolated", "invert": false})
+		}
+		pres = append(pres, map[string]any{"type": "ByteLevel", "add_prefix_space": false, "trim_offsets": true, "use_regex": false})
+		b["pre_tokenizer"], _ = json.Marshal(map[string]any{"type": "Sequence", "pretokenizers": pres})
 	}
 	if groups {
 		pre := bytes.Replace(b["pre_tokenizer"], []byte(`\\p{N}|`), []byte(`\\p{N}{1,3}|`), 1)
