@@ -20,8 +20,8 @@ func boolMask(b bool) uint64 {
 // continuation byte); words are runs of bytes between ASCII white space,
 // as wc -w counts them in the C locale.
 type TextCounter struct {
-	Bytes, Chars, Words int64
-	inWord              bool
+	Bytes, Chars, WCWords int64
+	inWord                bool
 }
 
 var asciiSpace = [256]bool{' ': true, '\t': true, '\n': true, '\r': true, '\v': true, '\f': true}
@@ -67,7 +67,7 @@ func (c *TextCounter) Write(p []byte) (int, error) {
 	c.inWord = in
 	c.Bytes += int64(len(p))
 	c.Chars += chars
-	c.Words += words
+	c.WCWords += words
 	return len(p), nil
 }
 

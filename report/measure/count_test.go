@@ -32,8 +32,8 @@ func checkCounter(t *testing.T, chunks [][]byte) {
 		c.Write(p)
 	}
 	chars, words := slowCount(chunks)
-	if c.Chars != chars || c.Words != words {
-		t.Fatalf("%q: counter %d chars %d words; byte by byte %d, %d", chunks, c.Chars, c.Words, chars, words)
+	if c.Chars != chars || c.WCWords != words {
+		t.Fatalf("%q: counter %d chars %d words; byte by byte %d, %d", chunks, c.Chars, c.WCWords, chars, words)
 	}
 }
 
@@ -55,8 +55,8 @@ func TestTextCounterMatchesByteByByte(t *testing.T) {
 	// white space).
 	var c TextCounter
 	c.Write([]byte("  two\twords\n\nand  more "))
-	if c.Words != 4 || c.Chars != 23 {
-		t.Fatalf("got %d words %d chars", c.Words, c.Chars)
+	if c.WCWords != 4 || c.Chars != 23 {
+		t.Fatalf("got %d words %d chars", c.WCWords, c.Chars)
 	}
 }
 

@@ -139,7 +139,7 @@ func largestChart(s *Report) *render.BarList {
 	win := s.Vocabulary.Window
 	for _, d := range s.Largest {
 		r := render.BarRow{Label: report.Where(d.Source, d.Record), Value: float64(d.Tokens), Text: render.Num(d.Tokens),
-			Tip: fmt.Sprintf("%s: %s tokens, %s bytes, %s tokens per wc -w word", report.Where(d.Source, d.Record), render.Num(d.Tokens), render.Num(d.Bytes), render.Ratio(float64(d.Tokens), float64(d.Words)))}
+			Tip: fmt.Sprintf("%s: %s tokens, %s bytes, %s tokens per wc -w word", report.Where(d.Source, d.Record), render.Num(d.Tokens), render.Num(d.Bytes), render.Ratio(float64(d.Tokens), float64(d.WCWords)))}
 		if win > 0 && d.Tokens > win {
 			r.Class = "over"
 		}

@@ -91,8 +91,8 @@ func (sp *Sampler) offer(w Weight, head *headBuffer) {
 		}
 		score = 1
 	default:
-		score = report.Per(float64(w.Tokens), float64(w.Words))
-		if w.Words < SampleMinWords {
+		score = report.Per(float64(w.Tokens), float64(w.WCWords))
+		if w.WCWords < SampleMinWords {
 			score -= 1e12 // below every document with enough words
 		}
 	}
@@ -135,9 +135,9 @@ func (sp *Sampler) Sample() (*Sample, error) {
 		if sp.want != "" {
 			s.Why = "named with --sample"
 		} else {
-			s.Why = fmt.Sprintf("the most tokens per wc -w word (%s) of the documents with at least %d words", render.Ratio(float64(s.Weight.Tokens), float64(s.Weight.Words)), SampleMinWords)
-			if s.Weight.Words < SampleMinWords {
-				s.Why = fmt.Sprintf("the most tokens per wc -w word (%s); no document has %d words", render.Ratio(float64(s.Weight.Tokens), float64(s.Weight.Words)), SampleMinWords)
+			s.Why = fmt.Sprintf("the most tokens per wc -w word (%s) of the documents with at least %d words", render.Ratio(float64(s.Weight.Tokens), float64(s.Weight.WCWords)), SampleMinWords)
+			if s.Weight.WCWords < SampleMinWords {
+				s.Why = fmt.Sprintf("the most tokens per wc -w word (%s); no document has %d words", render.Ratio(float64(s.Weight.Tokens), float64(s.Weight.WCWords)), SampleMinWords)
 			}
 		}
 	}
@@ -238,6 +238,6 @@ func sampleViewOf(s *Sample) *render.SampleView {
 		shown += fmt.Sprintf(" (the first part of %s)", render.Num(w.Bytes))
 	}
 	v.Summary = fmt.Sprintf("The whole document: %s tokens, %s words (wc -w), %s tokens per wc -w word, %s bytes per token. Here: %s.",
-		render.Num(w.Tokens), render.Num(w.Words), render.Ratio(float64(w.Tokens), float64(w.Words)), render.Ratio(float64(w.Bytes), float64(w.Tokens)), shown)
+		render.Num(w.Tokens), render.Num(w.WCWords), render.Ratio(float64(w.Tokens), float64(w.WCWords)), render.Ratio(float64(w.Bytes), float64(w.Tokens)), shown)
 	return v
 }

@@ -52,8 +52,8 @@ func NewRowStream(w io.Writer, f render.Format, info bpe.Info) (*RowStream, erro
 func (rs *RowStream) Row(d Weight) error {
 	rs.rows++
 	if rs.f == render.CSV {
-		return rs.csv.Write(d.Source, fmt.Sprint(d.Record), d.Format, fmt.Sprint(d.Bytes), fmt.Sprint(d.Chars), fmt.Sprint(d.Words), fmt.Sprint(d.Tokens),
-			render.Ratio(float64(d.Bytes), float64(d.Tokens)), render.Ratio(float64(d.Tokens), float64(d.Words)), fmt.Sprint(d.Specials))
+		return rs.csv.Write(d.Source, fmt.Sprint(d.Record), d.Format, fmt.Sprint(d.Bytes), fmt.Sprint(d.Chars), fmt.Sprint(d.WCWords), fmt.Sprint(d.Tokens),
+			render.Ratio(float64(d.Bytes), float64(d.Tokens)), render.Ratio(float64(d.Tokens), float64(d.WCWords)), fmt.Sprint(d.Specials))
 	}
 	var err error
 	rs.buf, err = rs.appendRow(rs.buf[:0], d)
@@ -95,7 +95,7 @@ func (rs *RowStream) appendRow(b []byte, d Weight) ([]byte, error) {
 	for _, f := range [...]struct {
 		name string
 		n    int64
-	}{{"bytes", d.Bytes}, {"characters", d.Chars}, {"words", d.Words}, {"tokens", int64(d.Tokens)}} {
+	}{{"bytes", d.Bytes}, {"characters", d.Chars}, {"words", d.WCWords}, {"tokens", int64(d.Tokens)}} {
 		b = append(b, ","+in+`"`...)
 		b = append(b, f.name...)
 		b = append(b, `": `...)
@@ -104,7 +104,7 @@ func (rs *RowStream) appendRow(b []byte, d Weight) ([]byte, error) {
 	for _, f := range [...]struct {
 		name string
 		x    float64
-	}{{"bytes_per_token", d.BytesPerToken}, {"tokens_per_word", d.TokensPerWord}} {
+	}{{"bytes_per_token", d.BytesPerToken}, {"tokens_per_word", d.TokensPerWCWord}} {
 		b = append(b, ","+in+`"`...)
 		b = append(b, f.name...)
 		b = append(b, `": `...)

@@ -16,17 +16,17 @@ import (
 
 // Weight is what one document weighs.
 type Weight struct {
-	Source        string  `json:"source"`
-	Record        int     `json:"record"`
-	Line          int     `json:"line,omitempty"` // a CSV or TSV row's first line
-	Format        string  `json:"format"`
-	Bytes         int64   `json:"bytes"`
-	Chars         int64   `json:"characters"`
-	Words         int64   `json:"words"`
-	Tokens        int     `json:"tokens"`
-	BytesPerToken float64 `json:"bytes_per_token"`
-	TokensPerWord float64 `json:"tokens_per_word"`
-	Specials      int     `json:"special_strings"`
+	Source          string  `json:"source"`
+	Record          int     `json:"record"`
+	Line            int     `json:"line,omitempty"` // a CSV or TSV row's first line
+	Format          string  `json:"format"`
+	Bytes           int64   `json:"bytes"`
+	Chars           int64   `json:"characters"`
+	WCWords         int64   `json:"words"` // as wc -w counts them
+	Tokens          int     `json:"tokens"`
+	BytesPerToken   float64 `json:"bytes_per_token"`
+	TokensPerWCWord float64 `json:"tokens_per_word"`
+	Specials        int     `json:"special_strings"`
 	// Hash is the XXH64 hash of the text, by which identical documents
 	// are found.
 	Hash uint64 `json:"-"`
@@ -53,10 +53,10 @@ func Weigh(enc *bpe.Encoder, d *corpus.Document) (Weight, error) {
 		}
 	}
 	w.Hash = d.Hash // a stream's is known once it is read to its end
-	w.Bytes, w.Chars, w.Words = tc.Bytes, tc.Chars, tc.Words
+	w.Bytes, w.Chars, w.WCWords = tc.Bytes, tc.Chars, tc.WCWords
 	w.Tokens, w.Specials = st.Tokens, st.Specials
 	w.BytesPerToken = report.Round2(report.Per(float64(w.Bytes), float64(w.Tokens)))
-	w.TokensPerWord = report.Round2(report.Per(float64(w.Tokens), float64(w.Words)))
+	w.TokensPerWCWord = report.Round2(report.Per(float64(w.Tokens), float64(w.WCWords)))
 	return w, nil
 }
 
@@ -66,7 +66,7 @@ type Totals struct {
 	Tokens    int64 `json:"tokens"`
 	Bytes     int64 `json:"bytes"`
 	Chars     int64 `json:"characters"`
-	Words     int64 `json:"words"`
+	WCWords   int64 `json:"words"` // as wc -w counts them
 	Skipped   int   `json:"skipped"`
 	Failed    int   `json:"failed"`
 	Specials  int   `json:"special_strings"`
@@ -156,7 +156,7 @@ func (sv *Surveyor) Add(d Weight) error {
 	t.Tokens += int64(d.Tokens)
 	t.Bytes += d.Bytes
 	t.Chars += d.Chars
-	t.Words += d.Words
+	t.WCWords += d.WCWords
 	t.Specials += d.Specials
 	if d.Specials > 0 {
 		sv.special++
@@ -311,8 +311,8 @@ func Write(w io.Writer, f render.Format, s *Report, rows int) error {
 var weightHeader = []string{"document", "format", "bytes", "chars", "wc words", "tokens", "bytes/token", "tokens/wc word"}
 
 func weightRow(d Weight) []string {
-	return []string{report.Where(d.Source, d.Record), d.Format, render.Num(d.Bytes), render.Num(d.Chars), render.Num(d.Words), render.Num(d.Tokens),
-		render.Ratio(float64(d.Bytes), float64(d.Tokens)), render.Ratio(float64(d.Tokens), float64(d.Words))}
+	return []string{report.Where(d.Source, d.Record), d.Format, render.Num(d.Bytes), render.Num(d.Chars), render.Num(d.WCWords), render.Num(d.Tokens),
+		render.Ratio(float64(d.Bytes), float64(d.Tokens)), render.Ratio(float64(d.Tokens), float64(d.WCWords))}
 }
 
 func surveyDocGrid(s *Report, rows int, f render.Format) *render.Grid {
@@ -339,9 +339,9 @@ func totals(s *Report) []render.Measure {
 		{Label: "tokens", Value: render.Num(t.Tokens)},
 		{Label: "bytes", Value: render.Num(t.Bytes)},
 		{Label: "characters", Value: render.Num(t.Chars), Only: render.InGrid},
-		{Label: "words (wc -w)", Value: render.Num(t.Words)},
+		{Label: "words (wc -w)", Value: render.Num(t.WCWords)},
 		{Label: "bytes per token", Value: bytesPerToken, Only: render.InGrid},
-		{Label: "tokens per wc -w word", Value: render.Ratio(float64(t.Tokens), float64(t.Words))},
+		{Label: "tokens per wc -w word", Value: render.Ratio(float64(t.Tokens), float64(t.WCWords))},
 		{Label: "bytes per token", Value: bytesPerToken, Only: render.InCards},
 		{Label: render.WindowLabel(s.Vocabulary.Window), Value: overWindowValue(s), Warn: t.OverWindow > 0, Only: render.InCards},
 		{Label: "not counted", Value: fmt.Sprintf("%s (%s failed)", render.Num(t.Skipped), render.Num(t.Failed)),

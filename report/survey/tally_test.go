@@ -181,8 +181,8 @@ func TestRowStreamWritesWhatMarshalIndentWrites(t *testing.T) {
 	var rs RowStream // one for all rows, so that the kept quoted names are checked too
 	for i := 0; i < 2000; i++ {
 		d := Weight{Source: sources[r.IntN(len(sources))], Record: r.IntN(5), Format: []string{"jsonl", "csv", "te\"xt"}[r.IntN(3)],
-			Bytes: r.Int64N(1 << 40), Chars: r.Int64N(1000), Words: r.Int64N(100), Tokens: r.IntN(1 << 30),
-			BytesPerToken: floats[r.IntN(len(floats))], TokensPerWord: floats[r.IntN(len(floats))], Specials: r.IntN(3)}
+			Bytes: r.Int64N(1 << 40), Chars: r.Int64N(1000), WCWords: r.Int64N(100), Tokens: r.IntN(1 << 30),
+			BytesPerToken: floats[r.IntN(len(floats))], TokensPerWCWord: floats[r.IntN(len(floats))], Specials: r.IntN(3)}
 		if r.IntN(2) == 0 {
 			d.Line = r.IntN(100) + 1
 		}
