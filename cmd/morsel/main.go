@@ -13,6 +13,7 @@ import (
 	"syscall"
 
 	"morsel/internal/outfile"
+	"morsel/report/render"
 )
 
 // Exit statuses, as the README's "Exit status" table gives them.
@@ -88,28 +89,35 @@ func exitStatus(err error) int {
 	switch {
 	case errors.As(err, &oe):
 		if !oe.quiet() {
-			fmt.Fprintf(os.Stderr, "morsel: %v\n", oe)
+			say("%v", oe)
 		}
 		return exitInput
 	case errors.As(err, &ce):
 		// The report already said what failed; say it once more briefly.
-		fmt.Fprintf(os.Stderr, "morsel: %s\n", ce.msg)
+		say("%s", ce.msg)
 		return exitCheck
 	case errors.As(err, &ie):
 		if ie.err != nil {
-			fmt.Fprintf(os.Stderr, "morsel: %v\n", ie.err)
+			say("%v", ie.err)
 		}
 		return exitInput
 	case errors.As(err, &ue):
-		fmt.Fprintf(os.Stderr, "morsel: %v\n(see %s --help)\n", ue.err, helpPath(ue.cmd))
+		say("%v\n(see %s --help)", ue.err, helpPath(ue.cmd))
 		return exitUsage
 	}
 	if strings.HasPrefix(err.Error(), "unknown command") {
-		fmt.Fprintf(os.Stderr, "morsel: %v\n(see morsel --help)\n", err)
+		say("%v\n(see morsel --help)", err)
 		return exitUsage
 	}
-	fmt.Fprintf(os.Stderr, "morsel: %v\n", err)
+	say("%v", err)
 	return exitInput
+}
+
+// say prints a message on standard error, with what a terminal would act
+// on (escape sequences, bidi controls, invalid bytes in a file name)
+// escaped.
+func say(format string, args ...any) {
+	fmt.Fprintln(os.Stderr, "morsel: "+render.CleanMessage(fmt.Sprintf(format, args...)))
 }
 
 // helpPath returns the command line whose --help explains cmd.

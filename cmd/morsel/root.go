@@ -217,7 +217,7 @@ func (sh *shared) outFormat(cmd string, allowed ...render.Format) (render.Format
 // note prints a line on standard error unless --quiet.
 func (sh *shared) note(format string, args ...any) {
 	if !sh.quiet {
-		fmt.Fprintf(sh.stderr, "morsel: "+format+"\n", args...)
+		fmt.Fprintln(sh.stderr, "morsel: "+render.CleanMessage(fmt.Sprintf(format, args...)))
 	}
 }
 

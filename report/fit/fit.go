@@ -17,7 +17,9 @@ import (
 
 // Doc is one document's verdict in morsel fit.
 type Doc struct {
-	Source      string `json:"source"`
+	Source string `json:"source"`
+	// SourceBytes is Source's bytes in base64 when they are not UTF-8, which a JSON string cannot keep.
+	SourceBytes string `json:"source_bytes,omitempty"`
 	Record      int    `json:"record"`
 	Tokens      int    `json:"tokens"`       // the document's own tokens
 	InputTokens int    `json:"input_tokens"` // the framed request's tokens, overhead included
@@ -108,7 +110,7 @@ func (f *Fitter) FitText(source string, record int, text []byte) (Doc, error) {
 func (f *Fitter) verdict(source string, record, tokens, in int) Doc {
 	res := f.Answer.For(in)
 	margin := f.Window - in - res
-	return Doc{Source: source, Record: record, Tokens: tokens, InputTokens: in, Reserve: res,
+	return Doc{Source: source, SourceBytes: report.SourceBytes(source), Record: record, Tokens: tokens, InputTokens: in, Reserve: res,
 		Window: f.Window, Fits: margin >= 0, Margin: margin}
 }
 

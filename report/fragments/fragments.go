@@ -563,7 +563,9 @@ func overlapping(ends []int, s, e int) int {
 
 // DocFertility is the fertility of one document.
 type DocFertility struct {
-	Source        string  `json:"source"`
+	Source string `json:"source"`
+	// SourceBytes is Source's bytes in base64 when they are not UTF-8, which a JSON string cannot keep.
+	SourceBytes   string  `json:"source_bytes,omitempty"`
 	Record        int     `json:"record"`
 	Tokens        int     `json:"tokens"`
 	Words         int64   `json:"words"`
@@ -581,7 +583,7 @@ func (f *Fragmenter) AddWords(source string, record int, dw *DocWords) {
 	for i := range dw.ByScript {
 		f.byScript[i].add(dw.ByScript[i])
 	}
-	f.docs = append(f.docs, DocFertility{Source: source, Record: record, Tokens: dw.Tokens, Words: dw.All.Words,
+	f.docs = append(f.docs, DocFertility{Source: source, SourceBytes: report.SourceBytes(source), Record: record, Tokens: dw.Tokens, Words: dw.All.Words,
 		WordTokens: dw.All.Tokens, Fertility: report.Round2(report.Per(float64(dw.All.Tokens), float64(dw.All.Words))),
 		OneTokenShare: round4(report.Per(float64(dw.All.OneToken), float64(dw.All.Words)))})
 	for i, t := range dw.terms {

@@ -32,13 +32,15 @@ func HeldOut(source string, record int, share float64) bool {
 
 // Doc is one document under both vocabularies.
 type Doc struct {
-	Source  string  `json:"source"`
-	Record  int     `json:"record"`
-	HeldOut bool    `json:"held_out"`
-	Base    int     `json:"base_tokens"`
-	Learned int     `json:"learned_tokens"`
-	Saved   int     `json:"saved"`
-	Share   float64 `json:"saved_percent"`
+	Source string `json:"source"`
+	// SourceBytes is Source's bytes in base64 when they are not UTF-8, which a JSON string cannot keep.
+	SourceBytes string  `json:"source_bytes,omitempty"`
+	Record      int     `json:"record"`
+	HeldOut     bool    `json:"held_out"`
+	Base        int     `json:"base_tokens"`
+	Learned     int     `json:"learned_tokens"`
+	Saved       int     `json:"saved"`
+	Share       float64 `json:"saved_percent"`
 }
 
 // Measure returns the tokens of text under the base and the learned
@@ -153,7 +155,7 @@ func NewCollector(l *bpe.Learned, words *bpe.WordCount, asked int, holdout float
 
 // Add takes one document's counts.
 func (c *Collector) Add(source string, record int, held bool, base, learned int) {
-	d := Doc{Source: source, Record: record, HeldOut: held, Base: base, Learned: learned, Saved: base - learned}
+	d := Doc{Source: source, SourceBytes: report.SourceBytes(source), Record: record, HeldOut: held, Base: base, Learned: learned, Saved: base - learned}
 	d.Share = percent(int64(d.Saved), int64(base))
 	c.r.Documents = append(c.r.Documents, d)
 	if held {

@@ -56,9 +56,11 @@ type Line struct {
 
 // Doc is one document's bill under every target.
 type Doc struct {
-	Source  string `json:"source"`
-	Record  int    `json:"record"`
-	Targets []Line `json:"targets"`
+	Source string `json:"source"`
+	// SourceBytes is Source's bytes in base64 when they are not UTF-8, which a JSON string cannot keep.
+	SourceBytes string `json:"source_bytes,omitempty"`
+	Record      int    `json:"record"`
+	Targets     []Line `json:"targets"`
 }
 
 // Total is the whole bill under one target.
@@ -100,7 +102,7 @@ type Report struct {
 // be rationed under one target fails the whole document, naming the
 // target.
 func Price(ps []*Pricer, source string, record int, text []byte) (Doc, error) {
-	d := Doc{Source: source, Record: record, Targets: make([]Line, len(ps))}
+	d := Doc{Source: source, SourceBytes: report.SourceBytes(source), Record: record, Targets: make([]Line, len(ps))}
 	name := report.Where(source, record)
 	interiors := map[*bpe.Encoder]bpe.Interior{}
 	type framed struct {

@@ -37,13 +37,15 @@ var ErrNoRoom = errors.New("the budget leaves no room")
 // included), counted on the framed chunk itself.
 type Chunk struct {
 	Source string `json:"source"`
-	Record int    `json:"record"`
-	Chunk  int    `json:"chunk"`
-	Start  int    `json:"start"`
-	End    int    `json:"end"`
-	Tokens int    `json:"tokens"`
-	Cut    string `json:"cut"`
-	Text   string `json:"text"`
+	// SourceBytes is Source's bytes in base64 when they are not UTF-8, which a JSON string cannot keep.
+	SourceBytes string `json:"source_bytes,omitempty"`
+	Record      int    `json:"record"`
+	Chunk       int    `json:"chunk"`
+	Start       int    `json:"start"`
+	End         int    `json:"end"`
+	Tokens      int    `json:"tokens"`
+	Cut         string `json:"cut"`
+	Text        string `json:"text"`
 }
 
 // Rationer splits documents into chunks whose framed requests fit a token
@@ -93,7 +95,7 @@ func (r *Rationer) Cut(source string, record int, text []byte, keepText bool) ([
 		if err != nil {
 			return out, c.total, err
 		}
-		ch := Chunk{Source: source, Record: record, Chunk: len(out), Start: s, End: e, Tokens: tok, Cut: cut}
+		ch := Chunk{Source: source, SourceBytes: report.SourceBytes(source), Record: record, Chunk: len(out), Start: s, End: e, Tokens: tok, Cut: cut}
 		if keepText {
 			ch.Text = string(text[s:e])
 		}
@@ -544,14 +546,16 @@ func charEdge(t []byte, p int) bool {
 
 // Doc is one document's chunk plan.
 type Doc struct {
-	Source   string  `json:"source"`
-	Record   int     `json:"record"`
-	Bytes    int     `json:"bytes"`
-	Tokens   int     `json:"tokens"` // the document's own tokens
-	Chunks   int     `json:"chunks"`
-	Largest  int     `json:"largest"`  // tokens of its largest chunk's request
-	Smallest int     `json:"smallest"` // and of its smallest
-	Plan     []Chunk `json:"-"`
+	Source string `json:"source"`
+	// SourceBytes is Source's bytes in base64 when they are not UTF-8, which a JSON string cannot keep.
+	SourceBytes string  `json:"source_bytes,omitempty"`
+	Record      int     `json:"record"`
+	Bytes       int     `json:"bytes"`
+	Tokens      int     `json:"tokens"` // the document's own tokens
+	Chunks      int     `json:"chunks"`
+	Largest     int     `json:"largest"`  // tokens of its largest chunk's request
+	Smallest    int     `json:"smallest"` // and of its smallest
+	Plan        []Chunk `json:"-"`
 }
 
 // FillBin counts the chunks whose request fills From% <= fill < To% of the
@@ -616,7 +620,7 @@ func (r *Rationer) CutDocument(d *corpus.Document, keepText bool) (Doc, error) {
 		return Doc{}, err
 	}
 	chunks, tokens, err := r.Cut(d.Source, d.Record, text, keepText)
-	rd := Doc{Source: d.Source, Record: d.Record, Bytes: len(text), Tokens: tokens, Chunks: len(chunks), Plan: chunks}
+	rd := Doc{Source: d.Source, SourceBytes: report.SourceBytes(d.Source), Record: d.Record, Bytes: len(text), Tokens: tokens, Chunks: len(chunks), Plan: chunks}
 	for i, c := range chunks {
 		if i == 0 || c.Tokens > rd.Largest {
 			rd.Largest = c.Tokens

@@ -64,7 +64,7 @@ func (g *Grid) WriteTable(w io.Writer) error {
 		return g.Narrow.WriteTable(w)
 	}
 	if g.Title != "" {
-		for _, line := range screen.Wrap(g.Title, v.Width) {
+		for _, line := range screen.Wrap(Clean(g.Title), v.Width) {
 			if _, err := fmt.Fprintf(w, "%s\n", line); err != nil {
 				return err
 			}
@@ -74,7 +74,7 @@ func (g *Grid) WriteTable(w io.Writer) error {
 		return err
 	}
 	for _, n := range g.Notes {
-		for _, line := range screen.Wrap(n, v.Width) {
+		for _, line := range screen.Wrap(Clean(n), v.Width) {
 			if _, err := fmt.Fprintln(w, line); err != nil {
 				return err
 			}
@@ -85,21 +85,32 @@ func (g *Grid) WriteTable(w io.Writer) error {
 
 // screenTable returns the grid's cells as the table view lays them out.
 func (g *Grid) screenTable(v View) *screen.Table {
-	t := &screen.Table{Header: g.Header, Rows: g.shownRows(v), Right: columnSet(g.Right, len(g.Header)), Keep: columnSet(g.Keep, len(g.Header))}
+	t := &screen.Table{Header: cleanAll(g.Header), Rows: g.shownRows(v), Right: columnSet(g.Right, len(g.Header)), Keep: columnSet(g.Keep, len(g.Header))}
 	return t
 }
 
-// shownRows returns the rows with sources relative to the view's Base.
+// shownRows returns the rows as the table and Markdown views show them:
+// every cell Clean, sources relative to the view's Base.
 func (g *Grid) shownRows(v View) [][]string {
-	if !g.Sources || v.Base == "" {
-		return g.Rows
-	}
 	out := make([][]string, len(g.Rows))
 	for i, r := range g.Rows {
-		if len(r) > 0 {
-			r = append([]string{screen.Rel(r[0], v.Base)}, r[1:]...)
+		c := make([]string, len(r))
+		for j, cell := range r {
+			if j == 0 && g.Sources && v.Base != "" {
+				cell = screen.Rel(cell, v.Base)
+			}
+			c[j] = Clean(cell)
 		}
-		out[i] = r
+		out[i] = c
+	}
+	return out
+}
+
+// cleanAll returns the strings Clean.
+func cleanAll(ss []string) []string {
+	out := make([]string, len(ss))
+	for i, s := range ss {
+		out[i] = Clean(s)
 	}
 	return out
 }
@@ -138,8 +149,13 @@ func NewRowWriter(w io.Writer, header []string) (*RowWriter, error) {
 	return rw, rw.Write(header...)
 }
 
-// Write writes one row.
-func (rw *RowWriter) Write(cells ...string) error { return rw.cw.Write(cells) }
+// Write writes one row, each cell as CSVCell gives it.
+func (rw *RowWriter) Write(cells ...string) error {
+	for i, c := range cells {
+		cells[i] = CSVCell(c)
+	}
+	return rw.cw.Write(cells)
+}
 
 // Flush writes out what is buffered and returns the first write error.
 func (rw *RowWriter) Flush() error {
@@ -185,10 +201,10 @@ func (g *Grid) WriteMarkdown(w io.Writer) error {
 	return err
 }
 
-func mdCell(s string) string {
-	r := strings.NewReplacer("|", `\|`, "\n", " ", "\r", " ", "<", "&lt;", ">", "&gt;")
-	return r.Replace(s)
-}
+// mdCell returns s Clean, with what Markdown would read as markup escaped.
+func mdCell(s string) string { return mdEscaper.Replace(Clean(s)) }
+
+var mdEscaper = strings.NewReplacer("|", `\|`, "<", "&lt;", ">", "&gt;")
 
 // WriteJSON writes v as indented JSON followed by a newline.
 func WriteJSON(w io.Writer, v any) error {

@@ -29,12 +29,14 @@ type Vocab struct {
 // Doc is one document's tokens under every vocabulary, in the order the
 // vocabularies were given.
 type Doc struct {
-	Source string  `json:"source"`
-	Record int     `json:"record"`
-	Bytes  int64   `json:"bytes"`
-	Words  int64   `json:"words"`
-	Tokens []int   `json:"tokens"`
-	Spread float64 `json:"spread"` // (most - fewest) / fewest tokens, over the vocabularies
+	Source string `json:"source"`
+	// SourceBytes is Source's bytes in base64 when they are not UTF-8, which a JSON string cannot keep.
+	SourceBytes string  `json:"source_bytes,omitempty"`
+	Record      int     `json:"record"`
+	Bytes       int64   `json:"bytes"`
+	Words       int64   `json:"words"`
+	Tokens      []int   `json:"tokens"`
+	Spread      float64 `json:"spread"` // (most - fewest) / fewest tokens, over the vocabularies
 }
 
 // wordKey is a distinct word and whether a space came before it.
@@ -52,7 +54,7 @@ type DocWords struct {
 
 // Measure weighs one document's text under every vocabulary.
 func Measure(vs []Vocab, source string, record int, text []byte) *DocWords {
-	d := &DocWords{Doc: Doc{Source: source, Record: record, Bytes: int64(len(text)), Tokens: make([]int, len(vs))}, words: map[wordKey]int64{}}
+	d := &DocWords{Doc: Doc{Source: source, SourceBytes: report.SourceBytes(source), Record: record, Bytes: int64(len(text)), Tokens: make([]int, len(vs))}, words: map[wordKey]int64{}}
 	for i, v := range vs {
 		d.Doc.Tokens[i] = v.Enc.Count(text)
 	}

@@ -84,6 +84,15 @@ func (rs *RowStream) appendRow(b []byte, d Weight) ([]byte, error) {
 	const in = "\n      "
 	b = append(b, "{"+in+`"source": `...)
 	b = append(b, src...)
+	if d.SourceBytes != "" {
+		// Rare (a name that is not UTF-8), so not kept.
+		raw, err := json.Marshal(d.SourceBytes)
+		if err != nil {
+			return b, err
+		}
+		b = append(b, ","+in+`"source_bytes": `...)
+		b = append(b, raw...)
+	}
 	b = append(b, ","+in+`"record": `...)
 	b = strconv.AppendInt(b, int64(d.Record), 10)
 	if d.Line != 0 {

@@ -16,7 +16,9 @@ import (
 
 // Weight is what one document weighs.
 type Weight struct {
-	Source          string  `json:"source"`
+	Source string `json:"source"`
+	// SourceBytes is Source's bytes in base64 when they are not UTF-8, which a JSON string cannot keep.
+	SourceBytes     string  `json:"source_bytes,omitempty"`
 	Record          int     `json:"record"`
 	Line            int     `json:"line,omitempty"` // a CSV or TSV row's first line
 	Format          string  `json:"format"`
@@ -35,7 +37,7 @@ type Weight struct {
 // Weigh counts one document's tokens, characters and words, streaming it
 // when it comes as a Stream.
 func Weigh(enc *bpe.Encoder, d *corpus.Document) (Weight, error) {
-	w := Weight{Source: d.Source, Record: d.Record, Line: d.Line, Format: d.Format}
+	w := Weight{Source: d.Source, SourceBytes: report.SourceBytes(d.Source), Record: d.Record, Line: d.Line, Format: d.Format}
 	var tc measure.TextCounter
 	var st bpe.Stats
 	if d.Stream != nil {

@@ -186,6 +186,7 @@ func TestRowStreamWritesWhatMarshalIndentWrites(t *testing.T) {
 		if r.IntN(2) == 0 {
 			d.Line = r.IntN(100) + 1
 		}
+		d.SourceBytes = report.SourceBytes(d.Source)
 		got, err := rs.appendRow(nil, d)
 		if err != nil {
 			t.Fatal(err)
