@@ -42,6 +42,12 @@ type spmModel struct {
 	asciiSym [128]uint32
 	cut      cutRule
 
+	// the normalizer's tables (spm_normalize.go)
+	asciiKind [128]uint8
+	asciiRepl [128][]byte
+	charRule  []uint32 // by rune, below 0x10000
+	normPool  []byte
+
 	// for the fast path (spm_fast.go)
 	charID   map[string]uint32 // a character's symbol, when it has one
 	lens     []int32           // a piece's length in bytes
@@ -148,6 +154,7 @@ func newSPM(m *spmodel.Model) *spmModel {
 		slices.SortStableFunc(sp.user.first[i], func(a, b string) int { return cmp.Compare(len(b), len(a)) })
 	}
 	sp.buildRanks()
+	sp.buildNormTables()
 	sp.cut = sp.cutRule()
 	return sp
 }

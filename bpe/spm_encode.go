@@ -10,7 +10,7 @@ func spmAppend[T int | uint32](e *Encoder, s *state, dst []T, text []byte, st *S
 			dst = append(dst, T(e.specIDs[special]))
 			return
 		}
-		s.spmNorm = sp.normalize(s.spmNorm[:0], seg, nil)
+		s.spmNorm = sp.normalizeFast(s.spmNorm[:0], seg)
 		norm := s.spmNorm
 		if sp.unused {
 			s.spmIDs = sp.encodeSteps(s.spmIDs[:0], norm)
@@ -41,7 +41,7 @@ func (e *Encoder) spmCount(s *state, text []byte, st *Stats) {
 			st.Tokens++
 			return
 		}
-		s.spmNorm = sp.normalize(s.spmNorm[:0], seg, nil)
+		s.spmNorm = sp.normalizeFast(s.spmNorm[:0], seg)
 		norm := s.spmNorm
 		for i := 0; i < len(norm); {
 			j := sp.nextCut(norm, i)

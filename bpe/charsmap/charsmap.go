@@ -281,6 +281,28 @@ func (m *Map) plainRun(src []byte, i int) int {
 	return i
 }
 
+// ASCII returns the map's rule for the ASCII byte c when it is followed
+// by another ASCII byte or by nothing: has says whether c has a rule, repl
+// is its replacement, and longer says that a key of more than c begins
+// with c and an ASCII byte, so that only Match can tell.
+func (m *Map) ASCII(c byte) (repl []byte, has, longer bool) {
+	if c >= utf8.RuneSelf {
+		return nil, false, true
+	}
+	r := &m.ascii[c]
+	return r.repl, r.has, r.longer
+}
+
+// Alone returns what Match gives for s, and alone true when no key longer
+// than s begins with s: then that result holds whatever follows s.
+func (m *Map) Alone(s []byte) (repl []byte, n int, alone bool) {
+	if len(m.units) == 0 {
+		return nil, 0, true
+	}
+	repl, n = m.Match(s)
+	return repl, n, !m.prefix(s)
+}
+
 // each calls fn with every rule's key and replacement, in trie order.
 func (m *Map) each(fn func(key, repl []byte)) {
 	if len(m.units) == 0 {
@@ -312,9 +334,3 @@ func (m *Map) each(fn func(key, repl []byte)) {
 	}
 	walk(offset(m.units[0]))
 }
-
-// Plain returns the length of the start of s that Normalize copies
-// unchanged byte for byte without a trie walk: ASCII bytes that no rule
-// touches, each followed by another ASCII byte. It may be shorter than
-// all that the map leaves unchanged.
-func (m *Map) Plain(s []byte) int { return m.plainRun(s, 0) }
