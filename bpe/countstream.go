@@ -11,8 +11,13 @@ const streamChunk = 1 << 20
 // non-space character followed by white space), so the count equals that
 // of the whole text; with another split pattern, special strings that
 // hold white space, or a SentencePiece model, it reads the whole text
-// first.
+// first. Under a SentencePiece model whose texts may be cut before
+// normalization (spm_stream.go), it cuts the stream there and counts the
+// stretches on every core, holding a few megabytes.
 func (e *Encoder) CountReader(r io.Reader) (Stats, int64, error) {
+	if e.cutsInput() {
+		return e.spmCountReader(r, streamChunk, spmWorkers())
+	}
 	st, _, n, err := e.countStream(r, nil, nil, false)
 	return st, n, err
 }

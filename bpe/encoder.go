@@ -120,6 +120,13 @@ func (e *Encoder) AppendIDs(dst []uint32, text []byte) []uint32 {
 }
 
 func encodeTo[T int | uint32](e *Encoder, dst []T, text []byte) ([]T, Stats) {
+	if len(text) >= spmParallelMin && e.cutsInput() {
+		var st Stats
+		start := len(dst)
+		dst = spmAppendCut(e, dst, text, spmStretch, spmWorkers(), &st)
+		st.Tokens = len(dst) - start
+		return dst, st
+	}
 	s := e.get()
 	defer e.put(s)
 	var st Stats
@@ -177,6 +184,9 @@ func (e *Encoder) CountChecked(text []byte) (int, error) {
 // CountStats returns the token count of text and the special-token strings
 // it holds.
 func (e *Encoder) CountStats(text []byte) Stats {
+	if len(text) >= spmParallelMin && e.cutsInput() {
+		return e.spmCountCut(text, spmStretch, spmWorkers())
+	}
 	s := e.get()
 	defer e.put(s)
 	var st Stats

@@ -47,6 +47,7 @@ type spmModel struct {
 	asciiRepl [128][]byte
 	charRule  []uint32 // by rune, below 0x10000
 	normPool  []byte
+	inputCut  bool // texts may be cut before normalization (spm_stream.go)
 
 	// for the fast path (spm_fast.go)
 	charID   map[string]uint32 // a character's symbol, when it has one

@@ -113,6 +113,7 @@ func (sp *spmModel) prepareFast(v *Vocab) {
 	if _, ok := sp.charID[sp.mark]; !ok && !sp.m.ByteFallback {
 		sp.cut = cutNone
 	}
+	sp.inputCut = sp.inputCutOK()
 }
 
 // nextCut returns the end of the stretch of norm that starts at i and

@@ -9,6 +9,7 @@
 package charsmap
 
 import (
+	"bytes"
 	"encoding/binary"
 	"errors"
 	"fmt"
@@ -301,6 +302,15 @@ func (m *Map) Alone(s []byte) (repl []byte, n int, alone bool) {
 	}
 	repl, n = m.Match(s)
 	return repl, n, !m.prefix(s)
+}
+
+// KeysHold reports whether some rule's key holds the byte b.
+func (m *Map) KeysHold(b byte) bool {
+	found := false
+	m.each(func(key, _ []byte) {
+		found = found || bytes.IndexByte(key, b) >= 0
+	})
+	return found
 }
 
 // each calls fn with every rule's key and replacement, in trie order.
