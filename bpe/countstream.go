@@ -46,13 +46,60 @@ func (e *Encoder) countStream(r io.Reader, before, after []byte, frame bool) (St
 		return st, framed, int64(len(all)), err
 	}
 	var total Stats
-	var n int64
 	framed := 0 // the framed count, less the tokens of the text after the last cut so far
 	first := true
-	buf := make([]byte, 0, 2*streamChunk)
+	n, err := e.windows(r, streamChunk, func(w []byte, last bool) error {
+		st := e.CountStats(w)
+		total.Tokens += st.Tokens
+		total.Specials += st.Specials
+		if frame {
+			switch {
+			case first && last: // no cut in the whole text
+				framed = e.Count(join(before, w, after))
+			case first:
+				framed = e.Count(join(before, w, nil))
+			case last:
+				framed += e.Count(join(nil, w, after))
+			default:
+				framed += st.Tokens
+			}
+		}
+		first = false
+		return nil
+	})
+	if err != nil {
+		framed = 0
+	}
+	return total, framed, n, err
+}
+
+// Windows reads r to its end and gives fn its text in consecutive windows
+// of at least size bytes (the last may be shorter), each but the last
+// ending where a pre-token must end under the GPT-2 rule, so that the
+// windows tokenized apart give the tokens of the whole text, and its words
+// too (no word crosses white space). Where no such place is known (another
+// split pattern, a bundle's pipeline, a SentencePiece model, special
+// strings that hold white space) fn gets the whole text as one window. A
+// window is valid only during the call. It returns the bytes read and the
+// first error of the reader or of fn; on a read error fn has had what was
+// read before it.
+func (e *Encoder) Windows(r io.Reader, size int, fn func(window []byte, last bool) error) (int64, error) {
+	if e.re != nil || e.v.pipe != nil || e.v.spm != nil || e.specialsHoldSpace() {
+		all, err := io.ReadAll(r)
+		if ferr := fn(all, true); err == nil {
+			err = ferr
+		}
+		return int64(len(all)), err
+	}
+	return e.windows(r, size, fn)
+}
+
+func (e *Encoder) windows(r io.Reader, size int, fn func(window []byte, last bool) error) (int64, error) {
+	var n int64
+	buf := make([]byte, 0, 2*size)
 	checked := 0 // buf[:checked] holds no cut: a long run of one class is not scanned again at every read
 	for {
-		if cap(buf)-len(buf) < streamChunk/2 {
+		if cap(buf)-len(buf) < size/2 {
 			nb := make([]byte, len(buf), 2*cap(buf))
 			copy(nb, buf)
 			buf = nb
@@ -62,14 +109,12 @@ func (e *Encoder) countStream(r io.Reader, before, after []byte, frame bool) (St
 		n += int64(m)
 		eof := err == io.EOF
 		if err != nil && !eof {
-			st := e.CountStats(buf)
-			total.Tokens += st.Tokens
-			total.Specials += st.Specials
-			return total, 0, n, err
+			fn(buf, true)
+			return n, err
 		}
 		cut := len(buf)
 		if !eof {
-			if len(buf) < streamChunk {
+			if len(buf) < size {
 				continue
 			}
 			cut = safeCutFrom(buf, checked)
@@ -78,24 +123,8 @@ func (e *Encoder) countStream(r io.Reader, before, after []byte, frame bool) (St
 				continue
 			}
 		}
-		st := e.CountStats(buf[:cut])
-		total.Tokens += st.Tokens
-		total.Specials += st.Specials
-		if frame {
-			switch {
-			case first && eof: // no cut in the whole text
-				framed = e.Count(join(before, buf, after))
-			case first:
-				framed = e.Count(join(before, buf[:cut], nil))
-			case eof:
-				framed += e.Count(join(nil, buf, after))
-			default:
-				framed += st.Tokens
-			}
-		}
-		first = false
-		if eof {
-			return total, framed, n, nil
+		if err := fn(buf[:cut], eof); err != nil || eof {
+			return n, err
 		}
 		rest := copy(buf, buf[cut:])
 		buf = buf[:rest]

@@ -162,14 +162,46 @@ func (f *Fragmenter) putShard(sh *shard) {
 
 // Scan reads a document's text (closing its Stream when it has one) and
 // returns its words. It fails when the text cannot be read or its tokens
-// do not spell it back.
+// do not spell it back. A Stream is scanned in windows of scanWindow bytes
+// or so, cut where neither a token nor a word can cross (see
+// bpe.Encoder.Windows), so that a document of gigabytes is never held
+// whole; with a glossary, whose terms cross white space, it is read whole.
 func (f *Fragmenter) Scan(d *corpus.Document) (*DocWords, error) {
-	text, err := walk.Text(d)
+	if d.Stream == nil || f.terms != nil {
+		text, err := walk.Text(d)
+		if err != nil {
+			return nil, err
+		}
+		return f.ScanText(text)
+	}
+	defer d.Stream.Close()
+	sh := f.getShard()
+	defer f.putShard(sh)
+	// The document's words go to a batch of its own, flushed only once
+	// the whole stream is read: one that fails part way (a read error, past
+	// --max-document) has tallied nothing.
+	kept := sh.local
+	sh.local = tally.NewBatch(len(f.info))
+	defer func() { sh.local = kept }()
+	dw := &DocWords{}
+	var fc fertility
+	sh.doc++ // one document for the batch, whatever its windows
+	_, err := f.enc.Windows(d.Stream, scanWindow, func(w []byte, _ bool) error {
+		if len(w) > math.MaxInt32 {
+			return fmt.Errorf("a %d-byte stretch without white space is more than fragments handles in one piece (2 GiB)", len(w))
+		}
+		return f.scanWindow(sh, dw, w, &fc)
+	})
 	if err != nil {
 		return nil, err
 	}
-	return f.ScanText(text)
+	sh.local.Flush(&f.words)
+	f.finishDoc(sh, dw, &fc)
+	return dw, nil
 }
+
+// scanWindow is how much of a streamed document Scan tokenizes at a time.
+var scanWindow = 8 << 20 // a variable, so that a test can cut a small text into many windows
 
 // ScanText scans one text: it tallies its words and returns its fertility.
 // It fails, having tallied nothing, when the encoder's tokens do not spell
@@ -180,7 +212,21 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	}
 	sh := f.getShard()
 	defer f.putShard(sh)
-	dw := &DocWords{Bytes: len(text)}
+	dw := &DocWords{}
+	var fc fertility
+	sh.doc++
+	if err := f.scanWindow(sh, dw, text, &fc); err != nil {
+		return nil, err
+	}
+	f.finishDoc(sh, dw, &fc)
+	return dw, nil
+}
+
+// scanWindow tallies the words of text, the whole of a document or one of
+// its windows, under the shard's current document number, and adds its
+// bytes, tokens and fertility to dw and fc.
+func (f *Fragmenter) scanWindow(sh *shard, dw *DocWords, text []byte, fc *fertility) error {
+	dw.Bytes += len(text)
 	if cap(sh.ids) < len(text)/2 {
 		sh.ids = make([]uint32, 0, len(text)/2+64) // most texts are fewer tokens than that: no growing
 	}
@@ -191,7 +237,7 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	pos, ends := 0, sh.ends[:0]
 	for _, id := range ids {
 		if uint(id) >= uint(len(f.info)) {
-			return nil, fmt.Errorf("the encoder gave id %d, which is not in the vocabulary", id)
+			return fmt.Errorf("the encoder gave id %d, which is not in the vocabulary", id)
 		}
 		pos += f.tokenLen(id)
 		if f.terms != nil {
@@ -209,7 +255,7 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 			sp = append(sp, t...)
 		}
 		if len(sp) != pos {
-			return nil, fmt.Errorf("the tokens spell %d bytes of a %d-byte text", pos, len(text))
+			return fmt.Errorf("the tokens spell %d bytes of a %d-byte text", pos, len(text))
 		}
 		sh.spelled, text = sp, sp
 	}
@@ -217,20 +263,23 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 		dw.terms = make([]termTally, len(f.terms))
 		sh.pending = sh.pending[:0]
 	}
-	dw.Tokens = len(ids)
-	sh.doc++
-
-	var fc fertility
+	dw.Tokens += len(ids)
 	if f.terms != nil {
 		kEnd := 0
 		if len(ids) > 0 {
 			kEnd = f.tokenLen(ids[0])
 		}
-		f.scanBytes(sh, dw, text, 0, len(text), 0, kEnd, &fc)
+		f.scanBytes(sh, dw, text, 0, len(text), 0, kEnd, fc)
 		f.termsAt(sh, dw, text, len(text), nil)
 	} else {
-		f.scanTokens(sh, text, &fc)
+		f.scanTokens(sh, text, fc)
 	}
+	return nil
+}
+
+// finishDoc ends a document's scan: the batch is flushed when full (only
+// between documents), and the fertility goes to dw.
+func (f *Fragmenter) finishDoc(sh *shard, dw *DocWords, fc *fertility) {
 	if sh.local.Full() {
 		sh.local.Flush(&f.words)
 	}
@@ -239,7 +288,6 @@ func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 		dw.ByScript[i] = t
 		dw.All.add(t)
 	}
-	return dw, nil
 }
 
 // fertility counts a document's words and their pieces by script.
