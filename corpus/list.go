@@ -9,6 +9,8 @@ import (
 	"path/filepath"
 	"strings"
 	"syscall"
+
+	"morsel/internal/textfile"
 )
 
 // List resolves paths into the files to read, in order: each argument in
@@ -366,18 +368,4 @@ func matchParts(pat, name []string) bool {
 }
 
 // specialKind names the kind of a file that is not regular.
-func specialKind(m fs.FileMode) string {
-	switch {
-	case m&fs.ModeNamedPipe != 0:
-		return "a named pipe"
-	case m&fs.ModeSocket != 0:
-		return "a socket"
-	case m&fs.ModeCharDevice != 0:
-		return "a character device"
-	case m&fs.ModeDevice != 0:
-		return "a block device"
-	case m&fs.ModeIrregular != 0:
-		return "an irregular file"
-	}
-	return m.Type().String()
-}
+func specialKind(m fs.FileMode) string { return textfile.KindOf(m) }

@@ -1,8 +1,9 @@
 package main
 
 import (
+	"bytes"
 	"fmt"
-	"os"
+	"math"
 
 	"github.com/spf13/cobra"
 
@@ -48,7 +49,7 @@ flag when it reaches --min-pieces.`,
 			if err != nil {
 				return err
 			}
-			if minPieces < 1 {
+			if !(minPieces >= 1) || math.IsInf(minPieces, 1) {
 				return usagef("fragments", "--min-pieces %g: want 1 or more", minPieces)
 			}
 			if minCount < 1 {
@@ -60,12 +61,11 @@ flag when it reaches --min-pieces.`,
 			var terms []fragments.Term
 			if termsFile != "" {
 				sh.reads(termsFile, "glossary")
-				fh, err := os.Open(termsFile)
+				data, err := readSetting("fragments", "--terms", termsFile)
 				if err != nil {
-					return &inputError{fmt.Errorf("glossary: %w", err)}
+					return err
 				}
-				terms, err = fragments.ParseGlossary(termsFile, fh)
-				fh.Close()
+				terms, err = fragments.ParseGlossary(termsFile, bytes.NewReader(data))
 				if err != nil {
 					return &inputError{fmt.Errorf("glossary: %w", err)}
 				}

@@ -83,7 +83,7 @@ func runLearn(sh *shared, cf *corpusFlags, tf *targetFlags, lf *learnFlags, args
 	switch {
 	case lf.add <= 0:
 		return usagef(cmd, "--add: give the number of merges to learn, 1 or more")
-	case lf.holdout < 0 || lf.holdout >= 1:
+	case !(lf.holdout >= 0 && lf.holdout < 1): // NaN too
 		return usagef(cmd, "--holdout %v: give a share from 0 to below 1", lf.holdout)
 	case lf.out == "":
 		return usagef(cmd, "--out: name the folder to write the vocabulary to")

@@ -2,14 +2,16 @@ package main
 
 import (
 	"encoding/hex"
+	"errors"
 	"fmt"
 	"io"
-	"os"
 	"strings"
 
 	"github.com/spf13/cobra"
 
 	"morsel/bpe"
+	"morsel/corpus"
+	"morsel/internal/textfile"
 	"morsel/report/render"
 )
 
@@ -44,16 +46,22 @@ standard input when neither is given or either is - (as in every command).`,
 			var text []byte
 			switch {
 			case file != "":
-				text, err = os.ReadFile(file)
-				if err != nil {
-					return &inputError{fmt.Errorf("reading text: %w", err)}
+				text, err = textfile.ReadSmall(file, corpus.DefaultMaxDocument)
+				switch {
+				case errors.Is(err, textfile.ErrNotRegular), errors.Is(err, textfile.ErrTooLarge):
+					return usagef("pieces", "--file %v", err)
+				case err != nil:
+					return &inputError{fmt.Errorf("--file: %w", err)}
 				}
 			case len(args) > 0:
 				text = []byte(strings.Join(args, " "))
 			default:
-				text, err = io.ReadAll(sh.stdin)
+				text, err = io.ReadAll(io.LimitReader(sh.stdin, corpus.DefaultMaxDocument+1))
 				if err != nil {
 					return &inputError{fmt.Errorf("reading standard input: %w", err)}
+				}
+				if len(text) > corpus.DefaultMaxDocument {
+					return &inputError{fmt.Errorf("standard input: more than the %d bytes pieces takes", corpus.DefaultMaxDocument)}
 				}
 			}
 			enc, err := sh.encoder()

@@ -11,6 +11,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"morsel/bpe"
+	"morsel/internal/textfile"
 	"morsel/report/render"
 	"morsel/report/request"
 )
@@ -48,9 +49,9 @@ func (tf *targetFlags) load(cmd string, required bool) (*request.Targets, error)
 			return nil, usagef(cmd, "no targets file: give --targets FILE or put %s in the working folder", defaultTargets)
 		}
 	}
-	data, err := os.ReadFile(path)
+	data, err := readSetting(cmd, "--targets", path)
 	if err != nil {
-		return nil, &inputError{fmt.Errorf("reading targets: %w", err)}
+		return nil, err
 	}
 	ts, err := request.ParseTargets(path, data)
 	if err != nil {
@@ -115,9 +116,9 @@ func (sh *shared) loadFrame(cmd, path string) (*request.Frame, error) {
 		return nil, nil
 	}
 	sh.reads(path, "frame")
-	data, err := os.ReadFile(path)
+	data, err := readSetting(cmd, "--frame", path)
 	if err != nil {
-		return nil, &inputError{fmt.Errorf("reading frame: %w", err)}
+		return nil, err
 	}
 	f, err := request.ParseFrame(path, data)
 	if err != nil {
@@ -189,6 +190,24 @@ func (sh *shared) request(c *cobra.Command, cmd string, tf *targetFlags, rf *req
 	return rq, nil
 }
 
+// maxSettingFile is the most bytes a frame, targets file or glossary may
+// hold: far more than any real one, far less than a mistake can cost.
+const maxSettingFile = 16 << 20
+
+// readSetting reads the settings file that flag names: one that is not a
+// regular file or is over maxSettingFile is bad usage (exit status 2), one
+// that cannot be read an input error (exit status 1).
+func readSetting(cmd, flag, path string) ([]byte, error) {
+	data, err := textfile.ReadSmall(path, maxSettingFile)
+	switch {
+	case errors.Is(err, textfile.ErrNotRegular), errors.Is(err, textfile.ErrTooLarge):
+		return nil, usagef(cmd, "%s %v", flag, err)
+	case err != nil:
+		return nil, &inputError{fmt.Errorf("%s: %w", flag, err)}
+	}
+	return data, nil
+}
+
 // targetFrame reads the frame a target names. The frame is part of the
 // targets file's settings, so a frame that cannot be read is bad usage
 // (exit status 2) at the target's line.
@@ -197,9 +216,9 @@ func (sh *shared) targetFrame(cmd string, t *request.Target) (*request.Frame, er
 		return nil, nil
 	}
 	sh.reads(t.Frame, "frame of target "+t.Name)
-	data, err := os.ReadFile(t.Frame)
+	data, err := textfile.ReadSmall(t.Frame, maxSettingFile)
 	if err != nil {
-		why := err.Error()
+		why := strings.TrimPrefix(err.Error(), t.Frame+": ")
 		if pe, ok := err.(*fs.PathError); ok {
 			why = pe.Err.Error()
 		}

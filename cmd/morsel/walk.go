@@ -1,6 +1,9 @@
 package main
 
 import (
+	"slices"
+	"strings"
+
 	"morsel/corpus"
 	"morsel/report"
 	"morsel/report/walk"
@@ -60,6 +63,9 @@ func walkDocs[R any](sh *shared, cf *corpusFlags, paths []string, work func(*cor
 	opt.Settings = sh.read
 	if err := corpus.CheckPatterns(opt); err != nil {
 		return nil, usagef("", "--%v", err)
+	}
+	if cf.as != "" && !slices.Contains(asNames, cf.as) {
+		return nil, usagef("", "--as %q: want one of %s", cf.as, strings.Join(asNames, ", "))
 	}
 	if sh.once {
 		c.once = &onceFilter{}

@@ -24,8 +24,11 @@ type Frame struct {
 }
 
 // ParseFrame reads a frame from data; name is used in errors. It fails when
-// data holds no DocumentMark, or more than one.
+// data holds no DocumentMark, or more than one, or a NUL byte.
 func ParseFrame(name string, data []byte) (*Frame, error) {
+	if z := bytes.IndexByte(data, 0); z >= 0 {
+		return nil, fmt.Errorf("%s:%d: a NUL byte; a frame is text (is this a binary file?)", name, textfile.Line(data, int64(z)))
+	}
 	i := bytes.Index(data, []byte(DocumentMark))
 	if i < 0 {
 		return nil, fmt.Errorf("%s: the frame has no %s placeholder, so the document would not be sent", name, DocumentMark)

@@ -16,6 +16,7 @@ func TestParseFrame(t *testing.T) {
 		{"source", "File {{source}}\n{{document}}", "", "File a.txt\n", ""},
 		{"none", "no placeholder here", "f.txt: the frame has no {{document}}", "", ""},
 		{"twice", "one\n{{document}}\ntwo\n{{document}}", "f.txt:4: a second {{document}} (the first is on line 2)", "", ""},
+		{"nul", "Summarise:\n{{document}}\x00\n", "f.txt:2: a NUL byte", "", ""},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			f, err := ParseFrame("f.txt", []byte(tc.in))
