@@ -40,7 +40,9 @@ Flags given override every target's fields: --vocab/--merges, --window, --frame,
 --answer-tokens. The prices are your own figures and the result is an estimate; every
 output says so.
 
-Exit status: 1 when an input could not be read (the bill covers the rest), else 0.`,
+Exit status: 1 when an input could not be read (the bill covers the rest), else 3 when a
+document could not be priced (with --ration, a window that cannot hold the frame, the answer
+and one piece of it: the bill is short of it), else 0.`,
 		Example: `  morsel quote testdata/demo/docs --targets testdata/demo/settings/morsel.toml
   morsel quote testdata/demo/docs --targets testdata/demo/settings/morsel.toml --target harbor-small --target harbor-large --ration
   morsel quote exports/ --target harbor-large --batch --format json`,
@@ -150,7 +152,11 @@ Exit status: 1 when an input could not be read (the bill covers the rest), else 
 			if err := write(); err != nil {
 				return err
 			}
-			return sh.finish(q.Skipped, nil)
+			var check error
+			if q.Totals.Unpriced > 0 {
+				check = &checkFailed{q.Unpriced()}
+			}
+			return sh.finish(q.Skipped, check)
 		},
 	}
 	addCorpusFlags(c, &cf)

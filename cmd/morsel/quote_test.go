@@ -58,3 +58,29 @@ func TestQuoteJSON(t *testing.T) {
 		t.Fatalf("table view: exit %d\n%s", code, out)
 	}
 }
+
+// A document that cannot be priced does not make the bill quietly
+// smaller: the report counts it and the exit status is 3.
+func TestQuoteUnpricedIsCheckFailure(t *testing.T) {
+	out, serr, code := run(t, "", "quote", demoDir, "--targets", demoTargets, "--target", "harbor-small", "--window", "1", "--ration", "--format", "json", "--quiet")
+	if code != exitCheck {
+		t.Fatalf("exit %d, want %d: %s", code, exitCheck, serr)
+	}
+	var q struct {
+		Totals struct{ Documents, Skipped, Unpriced int }
+	}
+	if err := json.Unmarshal([]byte(out), &q); err != nil {
+		t.Fatal(err)
+	}
+	if q.Totals.Unpriced == 0 || q.Totals.Unpriced != q.Totals.Skipped || q.Totals.Documents != 0 {
+		t.Fatalf("totals %+v: want every document unpriced", q.Totals)
+	}
+	table, _, code := run(t, "", "quote", demoDir, "--targets", demoTargets, "--target", "harbor-small", "--window", "1", "--ration", "--quiet")
+	if code != exitCheck || !strings.Contains(table, "could not be priced") {
+		t.Fatalf("table: exit %d, no word of the unpriced documents:\n%s", code, table)
+	}
+	out, serr, code = run(t, "", "quote", demoDir, "--targets", demoTargets, "--target", "harbor-small", "--ration", "--format", "json", "--quiet")
+	if code != exitOK || !strings.Contains(out, `"unpriced": 0`) {
+		t.Fatalf("a window that holds them: exit %d: %s", code, serr)
+	}
+}

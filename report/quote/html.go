@@ -28,7 +28,13 @@ func WriteHTML(w io.Writer, q *Report, rows int) error {
 	}
 	cards = append(cards, render.Fact{Label: "documents", Value: render.Num(q.Totals.Documents)},
 		render.Fact{Label: fmt.Sprintf("not counted, %s failed", render.Num(q.Totals.Failed)), Value: render.Num(q.Totals.Skipped), Warn: q.Totals.Failed > 0})
+	if q.Totals.Unpriced > 0 {
+		cards = append(cards, render.Fact{Label: "not priced: the bill is short of them", Value: render.Num(q.Totals.Unpriced), Warn: true})
+	}
 	glance := render.Section{ID: "glance", Heading: "At a glance", Cards: cards}
+	if n := q.Unpriced(); n != "" {
+		glance.Notes = append(glance.Notes, "Not priced: "+n+".")
+	}
 	for _, t := range q.Targets {
 		if t.Overflow > 0 {
 			glance.Notes = append(glance.Notes, fmt.Sprintf("Under %s, %s document(s) overflow the window and are priced as one request each, which the model would refuse; --ration splits them.", t.Name, render.Num(t.Overflow)))

@@ -92,6 +92,10 @@ type Report struct {
 		Documents int `json:"documents"`
 		Skipped   int `json:"skipped"`
 		Failed    int `json:"failed"`
+		// Unpriced counts the documents left out of the bill because
+		// they could not be priced (no-room: --ration cannot cut them
+		// within a target's window); the bill is short of them.
+		Unpriced int `json:"unpriced"`
 	} `json:"totals"`
 }
 
@@ -200,8 +204,20 @@ func (qc *Collector) Finish(skipped []report.Skipped) *Report {
 		if s.Failed {
 			q.Totals.Failed++
 		}
+		if s.Reason == ration.ReasonNoRoom {
+			q.Totals.Unpriced++
+		}
 	}
 	return q
+}
+
+// Unpriced says, when documents could not be priced, how many and that
+// the bill leaves them out; else it returns "".
+func (q *Report) Unpriced() string {
+	if q.Totals.Unpriced == 0 {
+		return ""
+	}
+	return fmt.Sprintf("%s document(s) could not be priced (no-room: a window cannot hold the frame, the answer and one piece of them), so the bill leaves them out and is short of their cost", render.Num(q.Totals.Unpriced))
 }
 
 // money formats a cost for the table view: rounded to six decimals.
@@ -259,6 +275,9 @@ func Write(w io.Writer, f render.Format, q *Report) error {
 	row("rationed documents", func(t Total) string { return render.Num(t.Rationed) })
 	row("over the window", func(t Total) string { return render.Num(t.Overflow) })
 	row("cost", func(t Total) string { return money(t.Cost, t.Currency) })
+	if n := q.Unpriced(); n != "" {
+		sum.Notes = append(sum.Notes, "not priced: "+n)
+	}
 	sum.Notes = append(sum.Notes, "caution: "+q.Caution)
 	for _, t := range q.Targets {
 		if t.Overflow > 0 {
