@@ -143,6 +143,9 @@ and one piece of it: the bill is short of it), else 0.`,
 			if err != nil {
 				return err
 			}
+			if err := qc.Err(); err != nil {
+				return &inputError{err}
+			}
 			q := qc.Finish(skipped)
 			q.Sort(order)
 			write := func() error { return quote.Write(sh.stdout, f, q) }

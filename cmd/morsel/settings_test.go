@@ -78,3 +78,27 @@ func TestMinorUsageErrors(t *testing.T) {
 		}
 	}
 }
+
+// Counts past the bound are refused at parse time, before any sum can
+// overflow (each once gave a negative count or cost, or a wrong verdict).
+func TestTokenFlagsBounded(t *testing.T) {
+	docs := "../../testdata/demo/docs"
+	for _, args := range [][]string{
+		{"fit", docs, "--overhead", "9223372036854775807"},
+		{"fit", docs, "--reserve", "9223372036854775807"},
+		{"fit", docs, "--window", "2147483648"},
+		{"quote", docs, "--targets", demoTargets, "--answer-tokens", "4611686018427387904"},
+		{"ration", docs, "--overlap", "4611686018427387904"},
+		{"ration", docs, "--budget", "9223372036854775807"},
+	} {
+		_, serr, code := run(t, "", append(args, "--quiet")...)
+		if code != exitUsage || !strings.Contains(serr, "give at most 2147483647") {
+			t.Errorf("%v: exit %d, want %d naming the bound: %s", args, code, exitUsage, serr)
+		}
+	}
+	// At the bound, the sums hold: the margin is negative and exact.
+	out, serr, code := run(t, "", "fit", docs, "--reserve", "2147483000", "--overhead", "2147483647", "--window", "2147483647", "--format", "json", "--quiet")
+	if code != exitCheck || !strings.Contains(out, `"fits": false`) || strings.Contains(out, `"fits": true`) || !strings.Contains(out, `"margin": -2147483`) {
+		t.Fatalf("overhead + reserve past the window: exit %d, want every document over by about 2^31: %s", code, serr)
+	}
+}

@@ -3,6 +3,7 @@ package quote
 import (
 	"fmt"
 	"io"
+	"math"
 
 	"github.com/shopspring/decimal"
 
@@ -157,8 +158,9 @@ func Price(ps []*Pricer, source string, record int, text []byte) (Doc, error) {
 
 // Collector folds walk results into a Report.
 type Collector struct {
-	ps []*Pricer
-	q  Report
+	ps  []*Pricer
+	q   Report
+	err error // a total past int64, once met
 }
 
 // NewCollector starts a quote under the pricers.
@@ -177,8 +179,11 @@ func (qc *Collector) Add(d Doc) {
 	qc.q.Documents = append(qc.q.Documents, d)
 	for i, l := range d.Targets {
 		t := &qc.q.Targets[i]
-		t.InputTokens += int64(l.InputTokens)
-		t.OutputTokens += int64(l.OutputTokens)
+		if !addTokens(&t.InputTokens, l.InputTokens) || !addTokens(&t.OutputTokens, l.OutputTokens) {
+			if qc.err == nil {
+				qc.err = fmt.Errorf("target %s: the total tokens pass %d at %s, past what can be summed", t.Name, int64(math.MaxInt64), report.Where(d.Source, d.Record))
+			}
+		}
 		t.Requests += l.Requests
 		if l.Overflow {
 			t.Overflow++
@@ -188,6 +193,20 @@ func (qc *Collector) Add(d Doc) {
 		}
 	}
 }
+
+// addTokens adds n to *total unless the sum would pass math.MaxInt64, and
+// reports whether it did.
+func addTokens(total *int64, n int) bool {
+	if n > 0 && *total > math.MaxInt64-int64(n) {
+		return false
+	}
+	*total += int64(n)
+	return true
+}
+
+// Err returns the error that made a total unsound (a sum past int64), or
+// nil: a bill with such a total must not be trusted.
+func (qc *Collector) Err() error { return qc.err }
 
 // Finish prices the totals and returns the quote. A target's total cost is
 // priced on its summed tokens, which equals the sum of the per-document

@@ -1,6 +1,7 @@
 package quote
 
 import (
+	"math"
 	"strings"
 	"testing"
 
@@ -113,5 +114,24 @@ func TestPriceFramesShareOneEncoding(t *testing.T) {
 				t.Fatalf("%q, frame %d: %d input tokens, want %d", doc, k, d.Targets[k].InputTokens, want)
 			}
 		}
+	}
+}
+
+// A total that would pass int64 is an error, not a wrapped negative count.
+func TestCollectorTotalsChecked(t *testing.T) {
+	p := &Pricer{Target: &request.Target{Name: "a"}}
+	qc := NewCollector([]*Pricer{p})
+	big := Doc{Source: "big.txt", Targets: []Line{{InputTokens: math.MaxInt64 / 2, Requests: 1}}}
+	qc.Add(big)
+	qc.Add(big)
+	if qc.Err() != nil {
+		t.Fatalf("two halves: %v", qc.Err())
+	}
+	qc.Add(Doc{Source: "one-more.txt", Record: 3, Targets: []Line{{InputTokens: 2, Requests: 1}}})
+	if err := qc.Err(); err == nil || !strings.Contains(err.Error(), "one-more.txt:3") {
+		t.Fatalf("past int64: %v", err)
+	}
+	if q := qc.Finish(nil); q.Targets[0].InputTokens < 0 {
+		t.Fatalf("total wrapped to %d", q.Targets[0].InputTokens)
 	}
 }

@@ -12,6 +12,24 @@ import (
 	"morsel/internal/textfile"
 )
 
+// MaxTokens is the largest window or answer_tokens a targets file takes
+// (the largest 32-bit count), and the commands' token flags too: with it,
+// no request's parts can overflow when added.
+const MaxTokens = 1<<31 - 1
+
+// MaxAnswerRatio is the largest answer_ratio a targets file takes: an
+// answer a thousand times its request is past any real use, and a bound
+// keeps ratio x input within range.
+const MaxAnswerRatio = 1000
+
+// MaxPrice is the largest price_in or price_out (per million tokens) a
+// targets file takes, and MaxPriceDecimals the most decimal places, so
+// that a typo cannot print a cost hundreds of digits long.
+const (
+	MaxPrice         = 1_000_000
+	MaxPriceDecimals = 12
+)
+
 // Answer is the number of answer tokens a request expects: a fixed count,
 // or a ratio of the request's input tokens. The zero value expects none.
 type Answer struct {
@@ -245,6 +263,12 @@ func setField(t *Target, key string, v *unstable.Node, dir string) error {
 		}
 		if d.IsNegative() {
 			return fmt.Errorf("%s: want 0 or more", d)
+		}
+		if (key == "price_in" || key == "price_out") && (d.GreaterThan(decimal.NewFromInt(MaxPrice)) || -d.Exponent() > MaxPriceDecimals && !d.Equal(d.Round(MaxPriceDecimals))) {
+			return fmt.Errorf("%s: want a price from 0 to %d per million tokens, with at most %d decimal places", v.Data, MaxPrice, MaxPriceDecimals)
+		}
+		if key == "answer_ratio" && d.GreaterThan(decimal.NewFromInt(MaxAnswerRatio)) {
+			return fmt.Errorf("%s: want a ratio from 0 to %d", v.Data, MaxAnswerRatio)
 		}
 		switch key {
 		case "price_in":

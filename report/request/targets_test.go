@@ -56,6 +56,10 @@ func TestTargetsErrors(t *testing.T) {
 		{"bad price", "[target.a]\nprice_in = \"cheap\"\n", `m.toml:2: target "a": price_in: "cheap": want a decimal number`},
 		{"negative", "[target.a]\nprice_out = -1.0\n", `m.toml:2: target "a": price_out: -1: want 0 or more`},
 		{"zero window", "[target.a]\nwindow = 0\n", `m.toml:2: target "a": window: 0: want a positive`},
+		{"huge ratio", "[target.a]\nanswer_ratio = 1e20\n", `m.toml:2: target "a": answer_ratio: 1e20: want a ratio from 0 to 1000`},
+		{"huge price", "[target.a]\nprice_in = 1e400\n", `m.toml:2: target "a": price_in: 1e400: want a price from 0 to 1000000 per million tokens, with at most 12 decimal places`},
+		{"price decimals", "[target.a]\nprice_out = 0.0000000000001\n", `m.toml:2: target "a": price_out: 0.0000000000001: want a price from 0 to 1000000`},
+		{"window past 32 bits", "[target.a]\nwindow = 4294967296\n", `m.toml:2: target "a": window: 4294967296: want a whole number that fits 32 bits`},
 		{"discount", "[target.a]\nbatch_discount = 1.5\n", `m.toml:2: target "a": batch_discount: 1.5: want a share below 1`},
 		{"both answers", "\n[target.a]\nanswer_tokens = 3\nanswer_ratio = 0.2\n", `m.toml:2: target "a": give answer_tokens or answer_ratio, not both`},
 		{"twice", "[target.a]\nwindow = 1\nwindow = 2\n", `m.toml:3: target "a": window given twice`},
@@ -95,4 +99,16 @@ func FuzzParseTargets(f *testing.F) {
 			}
 		}
 	})
+}
+
+// Prices at the bounds, and written with spare zeros, are taken.
+func TestTargetsBoundsAccepted(t *testing.T) {
+	ts, err := ParseTargets("m.toml", []byte("[target.a]\nprice_in = 1000000\nprice_out = 0.400000000000000000\nanswer_ratio = 1000\n"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	a := ts.List[0]
+	if a.PriceOut.String() != "0.4" || a.Answer.For(MaxTokens) != 1000*MaxTokens {
+		t.Fatalf("price_out %s, answer for the largest request %d", a.PriceOut, a.Answer.For(MaxTokens))
+	}
 }
