@@ -1,0 +1,157 @@
+#!/usr/bin/env bash
+# Hostile and huge inputs: builds morsel, makes each input on the fly (the
+# large ones removed after their case), runs every case under a time limit,
+# measures its time and peak memory (with /usr/bin/time -v where present)
+# and prints a table of held / FAILED.
+#
+#   scripts/hostile.sh            every case (several GB of scratch space, minutes)
+#   scripts/hostile.sh --quick    the small cases only (CI runs these: seconds)
+#
+# A case holds when its exit status is the one expected, it ends within its
+# time limit, its peak memory stays within its limit, and its check (a shell
+# test on its output, where it has one) passes. The last line is
+# "N held, M failed"; the exit status is 1 when any case failed.
+set -uo pipefail
+cd "$(dirname "$0")/.."
+
+quick=0
+[[ ${1:-} == --quick ]] && quick=1
+
+work=$(mktemp -d "${TMPDIR:-/tmp}/morsel-hostile.XXXXXX")
+trap 'rm -rf "$work"' EXIT
+M=$work/morsel
+go build -o "$M" ./cmd/morsel || exit 2
+targets=$PWD/testdata/demo/settings/morsel.toml
+timer=""
+[[ -x /usr/bin/time ]] && timer=/usr/bin/time
+
+held=0 failed=0
+printf '%-34s %5s %5s %8s %9s  %s\n' "case" "exit" "want" "seconds" "peak MB" "verdict"
+
+# run NAME WANT_EXIT MAX_SECONDS MAX_MB COMMAND [CHECK]
+# COMMAND and CHECK run in bash in $work, with $M the binary; the output is
+# in $work/out and $work/err for CHECK.
+run() {
+	local name=$1 want=$2 secs=$3 mb=$4 cmd=$5 check=${6:-}
+	local start end rc peak="-" verdict=held why=""
+	start=$(date +%s.%N)
+	if [[ -n $timer ]]; then
+		(cd "$work" && M=$M $timer -v -o "$work/time.txt" timeout -k 5 "$secs" bash -c "$cmd" >"$work/out" 2>"$work/err")
+		rc=$?
+		peak=$(awk -F': ' '/Maximum resident set size/ {printf "%.0f", $2/1024}' "$work/time.txt" 2>/dev/null)
+		[[ -z $peak ]] && peak="-"
+	else
+		(cd "$work" && M=$M timeout -k 5 "$secs" bash -c "$cmd" >"$work/out" 2>"$work/err")
+		rc=$?
+	fi
+	end=$(date +%s.%N)
+	local took
+	took=$(awk -v a="$start" -v b="$end" 'BEGIN {printf "%.2f", b - a}')
+	if [[ $rc == 124 || $rc == 137 ]]; then
+		verdict=FAILED why="timed out"
+	elif [[ $rc != "$want" ]]; then
+		verdict=FAILED why="exit $rc: $(head -c 200 "$work/err" | tr '\n' ' ')"
+	elif [[ $peak != "-" && $peak -gt $mb ]]; then
+		verdict=FAILED why="over $mb MB"
+	elif [[ -n $check ]] && ! (cd "$work" && M=$M bash -c "$check") >/dev/null 2>&1; then
+		verdict=FAILED why="check failed: $check"
+	fi
+	if [[ $verdict == held ]]; then held=$((held + 1)); else failed=$((failed + 1)); fi
+	printf '%-34s %5s %5s %8s %9s  %s\n' "$name" "$rc" "$want" "$took" "$peak" "$verdict${why:+ ($why)}"
+}
+
+# --- small inputs (both runs) ---
+mkdir -p "$work/d"
+printf '# Tide tables\n\nThe harbour keeps its tide tables here.\n' >"$work/d/README.md"
+seq 1 3000 | sed 's/^/The keeper counts boat /' >"$work/d/log.txt"
+mkfifo "$work/pipe"
+seq 1 20000 | sed 's/.*/{"text": "record &"}/' >"$work/rows.jsonl" # a report far larger than a pipe holds
+mkdir -p "$work/k" && echo "a short note" >"$work/k/x.txt" && ln -s /proc/kmsg "$work/k/kmsg"
+printf 'aaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaab' >"$work/backtrack.txt"
+printf '{{document}}\0\n' >"$work/nul-frame.txt"
+printf '[target.r]\nwindow = 100\nprice_in = 1\nprice_out = 1\nanswer_ratio = 1e20\n' >"$work/ratio.toml"
+printf '[target.p]\nwindow = 100\nprice_in = 1e400\nprice_out = 1\n' >"$work/price.toml"
+mkdir -p "$work/names"
+echo "The keeper counts the boats." >"$work/names/"$'\e]0;pwned\a\e[2Jt.txt'
+echo "The keeper counts the boats." >"$work/names/"$'report\u202etxt.md'
+echo "The keeper counts the boats." >"$work/names/=HYPERLINK(1).txt"
+seq 1 200000 | gzip >"$work/big.txt.gz"
+head -c 100000 "$work/big.txt.gz" >"$work/trunc-large.txt.gz"
+seq 1 100 | gzip | head -c 100 >"$work/trunc-small.txt.gz"
+python3 -c "print('['*100000 + ']'*100000)" >"$work/deep.json" 2>/dev/null || printf '[[[[' >"$work/deep.json"
+
+run "emit into the walked folder" 0 30 300 '$M ration d --budget 200 --emit d/plan.jsonl --hidden --quiet >/dev/null && $M ration d --budget 200 --emit d/plan.jsonl --hidden --quiet --force' \
+	'test $(ls -A d | wc -l) = 3 && ! grep -q plan.jsonl d/plan.jsonl'
+run "emit over an existing file" 2 10 300 'cp d/README.md keep.md && $M ration d --budget 200 --emit d/README.md --quiet' 'cmp d/README.md keep.md'
+run "emit over an input, --force" 2 10 300 '$M ration d/README.md --budget 200 --emit d/README.md --force --quiet' 'cmp d/README.md keep.md'
+run "emit through a hard link" 2 10 300 'ln -f d/README.md hard.md && $M ration d/README.md --budget 200 --emit hard.md --force --quiet' 'cmp d/README.md keep.md'
+run "emit to /dev/full" 1 10 300 '$M ration d --budget 200 --emit /dev/full --quiet'
+run "report to /dev/full" 1 10 300 '$M survey d --quiet >/dev/full' 'test $(wc -l <err) = 1 && grep -q "no space left" err'
+run "report into a closed pipe" 1 30 300 '$M survey rows.jsonl --format json --quiet | head -c 10 >/dev/null; exit ${PIPESTATUS[0]}' 'test ! -s err'
+run "named pipe on the command line" 1 10 300 '$M survey pipe --quiet'
+run "link to /proc/kmsg in a folder" 0 10 300 '$M survey k --quiet'
+run "backtracking split pattern" 1 30 300 '$M survey backtrack.txt --split-pattern "(a+)+\$" --quiet'
+run "pattern matching the empty text" 2 10 300 '$M survey d --split-pattern "(?:)" --quiet'
+run "--overhead 2^63-1" 2 10 300 '$M fit d --overhead 9223372036854775807 --quiet'
+run "--reserve 2^63-1" 2 10 300 '$M fit d --reserve 9223372036854775807 --quiet'
+run "--answer-tokens 2^62" 2 10 300 '$M quote d --targets '"$targets"' --answer-tokens 4611686018427387904 --quiet'
+run "--overlap 2^62" 2 10 300 '$M ration d --overlap 4611686018427387904 --quiet'
+run "answer_ratio = 1e20" 2 10 300 '$M quote d --targets ratio.toml --quiet'
+run "price_in = 1e400" 2 10 300 '$M quote d --targets price.toml --quiet'
+run "quote --window 1 --ration" 3 30 300 '$M quote d --targets '"$targets"' --target harbor-small --window 1 --ration --quiet'
+run "--workers 1000000000" 2 10 300 '$M survey d --workers 1000000000 --quiet'
+run "frame /dev/zero" 2 10 300 '$M fit d --frame /dev/zero --quiet'
+run "frame a named pipe" 2 10 300 '$M fit d --frame pipe --quiet'
+run "frame holding a NUL byte" 2 10 300 '$M fit d --frame nul-frame.txt --quiet'
+run "targets /dev/zero" 2 10 300 '$M quote d --targets /dev/zero --quiet'
+run "glossary /dev/zero" 2 10 300 '$M fragments d --terms /dev/zero --quiet'
+run "--vocab /dev/zero" 1 10 300 '$M survey d --vocab /dev/zero --quiet'
+run "--merges /dev/zero" 1 10 300 '$M survey d --vocab '"$PWD"'/bpe/gpt2/vocab.json --merges /dev/zero --quiet'
+run "pieces --file /dev/zero" 2 10 300 '$M pieces --file /dev/zero --quiet'
+run "--as bogus" 2 10 300 '$M survey d --as bogus --quiet'
+run "--min-pieces NaN" 2 10 300 '$M fragments d --min-pieces NaN --quiet'
+run "hostile file names, table" 0 10 300 '$M survey names --quiet --verbose' \
+	'! LC_ALL=C grep -q $'"'"'[\x01-\x08\x0b-\x1f\x7f]'"'"' out && ! grep -q $'"'"'\u202e'"'"' out && grep -qF "\\x1b]0;pwned" out'
+run "hostile file names, csv" 0 10 300 'cd names && $M survey . --quiet --format csv' 'grep -q "^'"'"'=HYPERLINK" out'
+run "gzip cut short, small and large" 1 10 300 '$M survey trunc-small.txt.gz trunc-large.txt.gz --format json --quiet' \
+	'test $(grep -c "\"reason\": \"truncated\"" out) = 2'
+run "JSON nested 100,000 deep" 1 10 300 '$M survey deep.json --quiet'
+
+if [[ $quick == 0 ]]; then
+	# --- large inputs, made on the fly and removed after ---
+	big() { rm -f "$work"/big-* "$work"/big-*.zst; }
+	head -c 40M /dev/urandom | base64 -w100 >"$work/big-b.txt" && zstd -q "$work/big-b.txt"
+	run "zstd text of 54 MB" 0 300 400 '$M survey big-b.txt.zst --quiet'
+	run "zstd text of 54 MB, stdin" 0 300 400 '$M survey - --quiet <big-b.txt.zst'
+	big
+	head -c 100M /dev/zero | tr '\0' a >"$work/big-a.txt"
+	run "100 MB of one letter (10 B/byte)" 0 600 1100 '$M survey big-a.txt --max-document 200MiB --quiet'
+	big
+	head -c 100M /dev/zero | tr '\0' ' ' >"$work/big-s.txt"
+	run "100 MB of spaces" 0 600 1100 '$M survey big-s.txt --quiet'
+	big
+	run "fit of 500 MB of yes on stdin" 0 600 300 'yes | head -c 500M | $M fit - --max-document 1GiB --quiet'
+	run "ration of 500 MB of yes on stdin" 0 600 300 'yes | head -c 500M | $M ration - --max-document 1GiB --quiet'
+	run "fragments of 500 MB of yes" 0 600 1100 'yes | head -c 500M | $M fragments - --max-document 1GiB --quiet'
+	bash scripts/gen-jsonl.sh 1000000 >"$work/big-r.jsonl" 2>/dev/null || true
+	if [[ -s $work/big-r.jsonl ]]; then
+		run "survey of 1M JSON Lines records" 0 300 158 '$M survey big-r.jsonl --quiet --format json >/dev/null'
+	fi
+	big
+	python3 - "$work/big-w.txt" <<-'EOF'
+		import random, sys
+		r = random.Random(7)
+		letters = "abcdefghijklmnopqrstuvwxyz"
+		with open(sys.argv[1], "w") as f:
+		    for _ in range(200):
+		        f.write(" ".join("".join(r.choice(letters) for _ in range(9)) for _ in range(100000)) + "\n")
+	EOF
+	run "fragments, 20M distinct words" 0 900 1600 '$M fragments big-w.txt --quiet'
+	big
+	{ printf 'id,text\n1,"never closed\n'; yes '2,plain row of the csv' | head -c 1G; } >"$work/big-c.csv"
+	run "1 GB CSV, one open quote" 1 900 1200 '$M survey big-c.csv --quiet'
+	big
+fi
+
+echo "$held held, $failed failed"
+[[ $failed == 0 ]]
