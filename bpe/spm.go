@@ -245,6 +245,14 @@ func (sp *spmModel) buildRanks() {
 			}
 		}
 	}
+	// n counted every split, most of which are no pair of symbols: a
+	// table sized for the pairs kept stays in the processor's caches
+	// (59,000 pairs of a 32,000-piece model in 2 MB instead of 8 MB).
+	if kept := sp.ranks.n; 4*kept < len(sp.ranks.slots) {
+		t := newU64Table(kept)
+		sp.ranks.each(t.put)
+		sp.ranks = t
+	}
 }
 
 // cutRule finds where texts may be cut: before each mark that follows
