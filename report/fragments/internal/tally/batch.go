@@ -110,7 +110,7 @@ func (b *Batch) idsOf(sp *batchSplit, buf *[2]uint32) []uint32 {
 
 // Add counts one occurrence of word, split into ids, in the document
 // numbered doc. Its ids are copied; ids is not empty.
-func (b *Batch) Add(word []byte, ids []uint32, doc int32) { b.add(word, hashWord(word), ids, doc) }
+func (b *Batch) Add(word []byte, ids []uint32, doc int32) { b.add(word, ids, doc) }
 
 // AddToken counts one occurrence of word, the token id alone, in the
 // document numbered doc, as Add(word, []uint32{id}, doc) does. It finds
@@ -119,20 +119,27 @@ func (b *Batch) AddToken(word []byte, id uint32, doc int32) {
 	tag := tokenTag(b.epoch)
 	if e := b.byToken[id]; e>>tokenTagShift == tag {
 		wi := e&tokenEntryMask - 1
-		b.occur(&b.words[wi], 1, doc)
-		b.count(wi, int(e>>tokenSplitBit&1))
+		w := &b.words[wi]
+		b.occur(w, 1, doc)
+		// As count, by hand: the hot path makes no call.
+		sp := &w.splits[e>>tokenSplitBit&1]
+		if sp.count == math.MaxUint32 {
+			b.carry(wi, sp)
+		}
+		sp.count++
 		return
 	}
 	ids := [1]uint32{id}
-	if wi, j := b.add(word, hashWord(word), ids[:], doc); j >= 0 && wi+1 <= tokenEntryMask {
+	if wi, j := b.add(word, ids[:], doc); j >= 0 && wi+1 <= tokenEntryMask {
 		b.byToken[id] = tag<<tokenTagShift | uint32(j)<<tokenSplitBit | (wi + 1)
 	}
 }
 
-// add counts one occurrence of word, whose hashWord is h, split into ids,
-// in the document numbered doc. It returns the word's entry and the split
-// it counted, or -1 when the split went to spill.
-func (b *Batch) add(word []byte, h uint64, ids []uint32, doc int32) (uint32, int) {
+// add counts one occurrence of word, split into ids, in the document
+// numbered doc. It returns the word's entry and the split it counted, or
+// -1 when the split went to spill.
+func (b *Batch) add(word []byte, ids []uint32, doc int32) (uint32, int) {
+	h := hashWord(word)
 	if len(b.index) == 0 {
 		b.index = make([]uint64, 2*batchWords)
 	}
@@ -170,8 +177,12 @@ func (b *Batch) add(word []byte, h uint64, ids []uint32, doc int32) (uint32, int
 	b.occur(w, len(ids), doc)
 	j := 0
 	for ; j < len(w.splits) && w.splits[j].n != 0; j++ {
-		if w.splits[j].is(b, ids) {
-			b.count(wi, j)
+		if sp := &w.splits[j]; sp.is(b, ids) {
+			// See count.
+			if sp.count == math.MaxUint32 {
+				b.carry(wi, sp)
+			}
+			sp.count++
 			return wi, j
 		}
 	}
@@ -207,17 +218,9 @@ func (b *Batch) occur(w *batchWord, n int, doc int32) {
 	}
 }
 
-// count counts one more occurrence of split j of words[wi]. A count at the
-// bound of its 32 bits is first carried to spill, so that it stays exact.
-func (b *Batch) count(wi uint32, j int) {
-	sp := &b.words[wi].splits[j]
-	if sp.count == math.MaxUint32 {
-		b.carry(wi, sp)
-	}
-	sp.count++
-}
-
-// carry moves the count of sp, a split of words[wi], to spill.
+// carry moves the count of sp, a split of words[wi], to spill: a split's
+// count at the bound of its 32 bits is carried before it is counted
+// again, so that it stays exact.
 func (b *Batch) carry(wi uint32, sp *batchSplit) {
 	off := sp.a
 	if sp.n <= 2 {
