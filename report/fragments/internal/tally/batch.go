@@ -53,8 +53,7 @@ const batchWords = 8192
 
 // batchFull is the pieces a batch holds before it is due to be flushed,
 // whatever its words; batchBytes bounds its words' bytes and ids the same
-// way. A document adds fewer than 2^31 of each (it is under 2 GiB), so the
-// batch's 32-bit offsets hold.
+// way, half the reach of its 32-bit offsets (see the package doc).
 const (
 	batchFull  = 1 << 29
 	batchBytes = 1 << 31

@@ -9,7 +9,7 @@
 // flushing at once seldom wait for each other and every word is tallied
 // in one place.
 //
-// Invariants (the tests hold the code to them):
+// Invariants:
 //
 //   - A document is scanned within one batch: a batch is flushed only
 //     between documents (the caller calls Flush when Full says so, never
@@ -29,10 +29,12 @@
 //   - Counts are exact at any size: the tables count in 64 bits; a batch
 //     counts a word in 64 bits and a split in 32, and a split count that
 //     reaches 2^32-1 is carried to the batch's spill list and starts again
-//     from zero. Offsets are 32 bits: a batch holds under 4 GiB of words
-//     and ids (it is flushed after a document once it holds batchFull
-//     pieces, and a document is under 4 GiB), and a partition under 4 GiB
-//     of distinct words.
+//     from zero (a streamed document of many gigabytes is one batch).
+//   - Offsets are 32 bits, which bounds the bytes of distinct words and
+//     the ids of uncommon splits that a batch, or a partition of the
+//     tables, holds to 4 GiB. Full reports a batch past 2 GiB of either, so
+//     only one document's own distinct words could pass the bound; these
+//     are limits of the layout, not checked word by word.
 //   - An entry of the one-token look-up made in one batch is never read in
 //     a later one: entries carry the batch's tag, one of numTags, and the
 //     look-up is cleared before a tag is used again.
