@@ -15,7 +15,7 @@ import (
 // such published bundle has them, from memory). With viaRegexp each
 // pattern is wrapped in a group that changes nothing it matches, so that
 // no hand scanner knows it and regexp2 runs it.
-func sequenceBundle(t *testing.T, viaRegexp bool) *Vocab {
+func sequenceBundle(t testing.TB, viaRegexp bool) *Vocab {
 	t.Helper()
 	data, _ := readTestBundle(t, testBundles["qwen3"])
 	var b map[string]json.RawMessage
