@@ -19,15 +19,19 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"slices"
 	"testing"
 )
 
 // bundleGolden is the layout of NAME-ids.json.
 type bundleGolden struct {
-	Library       string       `json:"library"`
-	Version       string       `json:"version"`
-	Bundle        string       `json:"bundle"`
-	BundleSHA256  string       `json:"bundle_sha256"`
+	Library      string `json:"library"`
+	Version      string `json:"version"`
+	Bundle       string `json:"bundle"`
+	BundleSHA256 string `json:"bundle_sha256"`
+	// SplitPatterns are the patterns of a bundle derived from the one
+	// of BundleSHA256 by replacing its pre-tokenizer (see sequenceBundle).
+	SplitPatterns []string     `json:"split_patterns"`
 	Cases         []goldenCase `json:"cases"`
 	TemplateProbe struct {
 		Text    string `json:"text"`
@@ -68,6 +72,11 @@ var testBundles = map[string]string{
 
 func loadTestBundle(t testing.TB, name string) (*Vocab, string) {
 	t.Helper()
+	if name == "cjk-sequence" {
+		data, _ := readTestBundle(t, testBundles["qwen3"])
+		sum := sha256.Sum256(data)
+		return sequenceBundle(t, false), hex.EncodeToString(sum[:])
+	}
 	path, ok := testBundles[name]
 	if !ok {
 		path = filepath.Join("../testdata/bundles", name+".json")
@@ -83,8 +92,8 @@ func loadTestBundle(t testing.TB, name string) (*Vocab, string) {
 
 func bundleGoldenNames(t *testing.T) []string {
 	// The small bundles that have goldens (see SMALL_BUNDLES in
-	// make-golden.js).
-	return []string{"qwen3", "metaspace-32k", "words"}
+	// make-golden.js), and the derived one (DERIVED there).
+	return []string{"qwen3", "metaspace-32k", "words", "cjk-sequence"}
 }
 
 // TestBundleGoldenIDs encodes every golden case under every bundle and
@@ -105,6 +114,9 @@ func TestBundleGoldenIDs(t *testing.T) {
 			v, sum := loadTestBundle(t, name)
 			if sum != g.BundleSHA256 {
 				t.Fatalf("bundle sha256 %s, golden ids (%s %s) were made from %s", sum, g.Library, g.Version, g.BundleSHA256)
+			}
+			if g.SplitPatterns != nil && !slices.Equal(g.SplitPatterns, []string{NumberGroupsPattern, KanaHanPattern, LettersMarksPattern}) {
+				t.Fatalf("the golden's split patterns %q are not the ones sequenceBundle puts in", g.SplitPatterns)
 			}
 			plain, err := NewEncoder(v, Options{})
 			if err != nil {

@@ -227,20 +227,47 @@ const BUNDLE_INLINE_SPECIAL = [
   ["special-twice", "<|endoftext|><|endoftext|>x<s><s>"],
 ];
 
+// DERIVED lists bundles made from another by replacing its pre-tokenizer,
+// for the split patterns no real bundle here has: [name, base, patterns].
+// cjk-sequence is qwen3 with a Sequence of three Isolated Splits (numbers
+// in groups of three, then Han and kana runs, then letters with their marks)
+// and a ByteLevel without its own regex; the patterns are bpe's
+// NumberGroupsPattern, KanaHanPattern and LettersMarksPattern, which
+// bpe/bundle_golden_test.go checks against the golden's copy.
+const DERIVED = [
+  [
+    "cjk-sequence",
+    "/work/shared/vocab/qwen3/tokenizer.json",
+    [
+      "\\p{N}{1,3}",
+      "[\u4e00-\u9fa5\u3040-\u309f\u30a0-\u30ff]+",
+      "[!\"#$%&'()*+,\\-./:;<=>?@\\[\\\\\\]^_`{|}~][A-Za-z]+|[^\\r\\n\\p{L}\\p{P}\\p{S}]?[\\p{L}\\p{M}]+| ?[\\p{P}\\p{S}]+[\\r\\n]*|\\s*[\\r\\n]+|\\s+(?!\\S)|\\s+",
+    ],
+  ],
+];
+
+// chainOf returns the pre-tokenizer of a derived bundle.
+function chainOf(patterns) {
+  const splits = patterns.map((p) => ({ type: "Split", pattern: { Regex: p }, behavior: "Isolated", invert: false }));
+  return { type: "Sequence", pretokenizers: [...splits, { type: "ByteLevel", add_prefix_space: false, trim_offsets: true, use_regex: false }] };
+}
+
 // buildBundle returns a tokenizer for the bundle; without honorSpecials
-// the special added tokens are left out, so their strings are text.
-function buildBundle(file, honorSpecials) {
+// the special added tokens are left out, so their strings are text. With
+// patterns, the pre-tokenizer is replaced by their chain (chainOf).
+function buildBundle(file, honorSpecials, patterns) {
   const json = JSON.parse(readFileSync(file, "utf8"));
+  if (patterns) json.pre_tokenizer = chainOf(patterns);
   const cfgFile = join(dirname(file), "tokenizer_config.json");
   const cfg = existsSync(cfgFile) ? JSON.parse(readFileSync(cfgFile, "utf8")) : {};
   if (!honorSpecials) json.added_tokens = (json.added_tokens ?? []).filter((t) => !t.special);
   return new Tokenizer(json, { ...cfg, clean_up_tokenization_spaces: false });
 }
 
-function bundleGolden(name, file) {
+function bundleGolden(name, file, patterns) {
   const raw = readFileSync(file);
-  const plain = buildBundle(file, false);
-  const honor = buildBundle(file, true);
+  const plain = buildBundle(file, false, patterns);
+  const honor = buildBundle(file, true, patterns);
   const ids = (tok, text) => tok.encode(text, { add_special_tokens: false }).ids;
   const cases = [];
   const files = readdirSync(corpusDir).filter((f) => !f.startsWith(".")).sort();
@@ -275,6 +302,10 @@ function bundleGolden(name, file) {
     },
     template_probe: { text, with_template: withT, without_template: without },
   };
+  if (patterns) {
+    head.derived = "the bundle of bundle_sha256 with its pre_tokenizer replaced by a Sequence of these Isolated Splits and a ByteLevel (use_regex false)";
+    head.split_patterns = patterns;
+  }
   const headJSON = JSON.stringify(head, null, 2);
   return headJSON.slice(0, -2) + ',\n  "cases": [\n' + cases.map((c) => "    " + JSON.stringify(c)).join(",\n") + "\n  ]\n}\n";
 }
@@ -295,6 +326,9 @@ function main() {
   if (bundleFile || process.argv.includes("--all-bundles")) {
     const list = bundleFile ? [[arg("--name", "bundle"), bundleFile]] : allBundles();
     for (const [name, file] of list) writeOrCheck(join(root, "testdata", "golden", `${name}-ids.json`), bundleGolden(name, file));
+    if (!bundleFile) {
+      for (const [name, file, patterns] of DERIVED) writeOrCheck(join(root, "testdata", "golden", `${name}-ids.json`), bundleGolden(name, file, patterns));
+    }
     return;
   }
   const pair = loadPair(vocabDir);
