@@ -5,13 +5,15 @@ import "testing"
 // BenchmarkBundleCount counts the golden corpus's prose, code and CJK
 // texts under the bundles of the survey benchmark (scripts/bench-bundle.sh),
 // warm, on one core: the pipeline's cost per byte without the walk.
+// cjk-sequence-regexp2 is the CJK chain run by regexp2 instead of the hand
+// scanners.
 func BenchmarkBundleCount(b *testing.B) {
 	qwen3, _ := loadTestBundle(b, "qwen3")
 	metaspace, _ := loadTestBundle(b, "metaspace-32k")
 	vocabs := []struct {
 		name string
 		v    *Vocab
-	}{{"qwen3", qwen3}, {"cjk-sequence", sequenceBundle(b, false)}, {"metaspace-32k", metaspace}}
+	}{{"qwen3", qwen3}, {"cjk-sequence", sequenceBundle(b, false)}, {"cjk-sequence-regexp2", sequenceBundle(b, true)}, {"metaspace-32k", metaspace}}
 	texts := []struct {
 		name  string
 		files []string
