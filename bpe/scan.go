@@ -112,11 +112,17 @@ func nextDigitsFamily(t []byte, i int, maxN int) int {
 			return crlfRun(t, runOf(t, i+1+n2, clsOther))
 		}
 	}
-	// White space: "\s*[\r\n]+" ends after the run's last line break;
-	// else "\s+(?!\S)" leaves the last character to what follows, unless
-	// the run ends the text or is one character long ("\s+").
+	return spaceRunEnd(t, i, n)
+}
+
+// spaceRunEnd returns the end of the piece that the white space at t[i]
+// (n bytes long) starts under the tail that the digits family and
+// LettersMarksPattern share: "\s*[\r\n]+" ends after the run's last
+// line break; else "\s+(?!\S)" leaves the last character to what
+// follows, unless the run ends the text or is one character long ("\s+").
+func spaceRunEnd(t []byte, i, n int) int {
 	j, last, lastBreak := i+n, i, -1
-	if isCRLF(b) {
+	if isCRLF(t[i]) {
 		lastBreak = i
 	}
 	for j < len(t) {

@@ -189,29 +189,7 @@ func nextLettersMarks(t []byte, i int) int {
 			return crlfRun(t, lmRun(t, i+n+n2, lmPunct))
 		}
 	}
-	// "\s*[\r\n]+" ends after the run's last line break; else
-	// "\s+(?!\S)" leaves the last character to what follows, unless the
-	// run ends the text or is one character long ("\s+").
-	j, last, lastBreak := i+n, i, -1
-	if isCRLF(b) {
-		lastBreak = i
-	}
-	for j < len(t) {
-		cc, m := lmClassAt(t, j)
-		if cc != lmSpace {
-			break
-		}
-		if isCRLF(t[j]) {
-			lastBreak = j
-		}
-		last = j
-		j += m
-	}
-	if lastBreak >= 0 {
-		return lastBreak + 1
-	}
-	if j == len(t) || last == i {
-		return j
-	}
-	return last
+	// White space is the same class here as for the digits family (no
+	// white-space character is a letter, mark, punctuation or symbol).
+	return spaceRunEnd(t, i, n)
 }
