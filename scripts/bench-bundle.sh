@@ -14,7 +14,8 @@
 # wc -w and the five in turns, forwards in odd rounds and backwards in even
 # ones (the second of two runs is often a little slower on a shared
 # machine); a warming round comes first. Ratios are taken within a round,
-# then the median over rounds is given.
+# then the median over rounds is given. CPU time (user + system) is given
+# beside wall time: on a machine that others load, it moves less.
 # Load: a 250k-token, 500k-merge bundle grown from qwen3 by scripts/bigbundle
 # (never committed), `morsel pieces --vocab BUNDLE hello` with an empty
 # parsed-form cache (a first load), then warm (from the cache): wall time
@@ -38,12 +39,11 @@ go run ./scripts/bigbundle -cjk-sequence -tokens 0 -merges 0 -o "$dir/bundles/cj
 export MORSEL_CACHE_DIR=$dir/cache
 bytes=$(find "$corpus" -type f -printf '%s\n' | awk '{ s += $1 } END { print s + 0 }')
 echo "corpus: $((bytes / 1000000)) MB ($corpus); machine: $(nproc) cores, $(grep -m1 'model name' /proc/cpuinfo | cut -d: -f2 | sed 's/^ //'); load average $(cut -d' ' -f1-3 /proc/loadavg)"
+# wall runs a command and prints its wall time and CPU time (user +
+# system, its children included), in seconds.
 wall() {
-  local t0 t1
-  t0=$(date +%s.%N)
-  "$@" >/dev/null 2>&1 || true
-  t1=$(date +%s.%N)
-  echo "$t1 - $t0" | bc
+  /usr/bin/time -f "%e %U %S" -o "$dir/run.time" "$@" >/dev/null 2>&1 || true
+  awk '{ printf "%s %.2f\n", $1, $2 + $3 }' "$dir/run.time"
 }
 median() { tr ' ' '\n' | grep . | sort -n | awk '{a[NR]=$1} END {print a[int((NR+1)/2)]}'; }
 run() {
@@ -54,7 +54,7 @@ run() {
   esac
 }
 names=(wc gpt2 qwen3 digit-groups cjk-sequence metaspace-32k)
-declare -A times ratios gratios
+declare -A times ratios gratios cpus cratios
 for ((r = 0; r <= runs; r++)); do
   order=("${names[@]}")
   if ((r % 2 == 0)); then
@@ -62,18 +62,22 @@ for ((r = 0; r <= runs; r++)); do
     for ((k = ${#names[@]} - 1; k >= 0; k--)); do order+=("${names[k]}"); done
   fi
   declare -A t=()
-  for n in "${order[@]}"; do t[$n]=$(run "$n"); done
+  declare -A c=()
+  for n in "${order[@]}"; do read -r t[$n] c[$n] < <(run "$n"); done
   ((r == 0)) && continue
   for n in "${names[@]}"; do
     times[$n]+="${t[$n]} "
     ratios[$n]+="$(echo "${t[$n]} / ${t[wc]}" | bc -l) "
     gratios[$n]+="$(echo "${t[$n]} / ${t[gpt2]}" | bc -l) "
+    cpus[$n]+="${c[$n]} "
+    cratios[$n]+="$(echo "${c[$n]} / ${c[gpt2]}" | bc -l) "
   done
 done
-printf '%-22s %8s s\n' "wc -w" "$(echo "${times[wc]}" | median)"
+printf '%-22s %8s s wall, %5s s CPU\n' "wc -w" "$(echo "${times[wc]}" | median)" "$(echo "${cpus[wc]}" | median)"
 for n in gpt2 qwen3 digit-groups cjk-sequence metaspace-32k; do
-  printf '%-22s %8.2f s  %5.2fx wc -w  %5.2fx gpt2  (medians of %d rounds)\n' "survey $n" \
-    "$(echo "${times[$n]}" | median)" "$(echo "${ratios[$n]}" | median)" "$(echo "${gratios[$n]}" | median)" "$runs"
+  printf '%-22s %8.2f s wall  %5.2fx wc -w  %5.2fx gpt2;  %6.2f s CPU  %5.2fx gpt2  (medians of %d rounds)\n' "survey $n" \
+    "$(echo "${times[$n]}" | median)" "$(echo "${ratios[$n]}" | median)" "$(echo "${gratios[$n]}" | median)" \
+    "$(echo "${cpus[$n]}" | median)" "$(echo "${cratios[$n]}" | median)" "$runs"
 done
 [ "${LOAD:-1}" = 1 ] || exit 0
 big=$dir/bundles/big
