@@ -17,6 +17,7 @@ func init() { extraCommands = append(extraCommands, newFragments) }
 func newFragments(sh *shared) *cobra.Command {
 	var cf corpusFlags
 	var minPieces float64
+	memory := sizeFlag(1 << 30)
 	var minCount int64
 	var top, docRows int
 	var termsFile string
@@ -76,6 +77,7 @@ flag when it reaches --min-pieces.`,
 			}
 			paceGrowingHeap()
 			fr := fragments.NewFragmenter(enc, terms)
+			fr.SetMemory(int64(memory))
 			skipped, err := walkDocs(sh, &cf, args, fr.Scan, collector[*fragments.DocWords]{
 				add: func(d *corpus.Document, dw *fragments.DocWords) error {
 					fr.AddWords(d.Source, d.Record, dw)
@@ -104,5 +106,6 @@ flag when it reaches --min-pieces.`,
 	fl.IntVar(&top, "top", 50, "list at most this many words (0: all)")
 	fl.StringVar(&termsFile, "terms", "", "glossary file to check, one term a line")
 	fl.IntVar(&docRows, "doc-rows", 10, "documents in the table of tokens per UAX #29 word (0: all)")
+	fl.Var(&memory, "memory", "bound on the word tables (past it, the most frequent words are counted approximately, with the error stated)")
 	return c
 }

@@ -75,7 +75,12 @@ type Fragmenter struct {
 	mu     sync.Mutex
 	shards []*shard    // every shard made, for Finish
 	free   chan *shard // shards not in use
-	words  tally.Tables
+
+	wmu          sync.RWMutex   // flushes hold it shared; the move to the summary alone
+	words        *tally.Tables  // the words, exactly, while they fit the bound
+	summary      *tally.Summary // the words once the tables passed the bound
+	bound        int64          // the tables' bound in bytes, 0 for none
+	distinctSeen int            // distinct words when the tables gave way
 
 	docs     []DocFertility
 	totals   Totals
@@ -107,7 +112,7 @@ type pendingTerm struct{ term, start, end int }
 // NewFragmenter returns a fragmenter that encodes with enc and looks for
 // the glossary terms (none when terms is nil).
 func NewFragmenter(enc *bpe.Encoder, terms []Term) *Fragmenter {
-	f := &Fragmenter{enc: enc, terms: terms, docs: []DocFertility{}, free: make(chan *shard, 256)}
+	f := &Fragmenter{enc: enc, terms: terms, docs: []DocFertility{}, free: make(chan *shard, 256), words: &tally.Tables{}}
 	f.info = tokenTables(enc.Vocab())
 	if len(terms) > 0 {
 		f.byFirst = map[string][]int{}
@@ -195,7 +200,7 @@ func (f *Fragmenter) Scan(d *corpus.Document) (*DocWords, error) {
 	if err != nil {
 		return nil, err
 	}
-	sh.local.Flush(&f.words)
+	f.flush(sh.local)
 	f.finishDoc(sh, dw, &fc)
 	return dw, nil
 }
@@ -281,7 +286,7 @@ func (f *Fragmenter) scanWindow(sh *shard, dw *DocWords, text []byte, fc *fertil
 // between documents), and the fertility goes to dw.
 func (f *Fragmenter) finishDoc(sh *shard, dw *DocWords, fc *fertility) {
 	if sh.local.Full() {
-		sh.local.Flush(&f.words)
+		f.flush(sh.local)
 	}
 	for i := range dw.ByScript {
 		t := ScriptTally{Words: fc.words[i], Tokens: fc.pieces[i], OneToken: fc.one[i]}
@@ -652,9 +657,9 @@ func (f *Fragmenter) tables() *tally.Tables {
 	f.mu.Lock()
 	defer f.mu.Unlock()
 	for _, sh := range f.shards {
-		sh.local.Flush(&f.words)
+		f.flush(sh.local)
 	}
-	return &f.words
+	return f.words
 }
 
 // betterSplit reports whether a is the more common split, the one of fewer

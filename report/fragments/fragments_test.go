@@ -383,7 +383,7 @@ func TestByTokenTags(t *testing.T) {
 			t.Fatal(err)
 		}
 		for _, sh := range fr.shards {
-			sh.local.Flush(&fr.words)
+			sh.local.Flush(fr.words)
 		}
 	}
 	got := fr.mergeShards()

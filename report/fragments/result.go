@@ -96,6 +96,12 @@ type Totals struct {
 	// those of them listed.
 	FallbackWords  int `json:"byte_fallback_words"`
 	FallbackListed int `json:"listed_byte_fallback_words"`
+	// Approximate says the word tables passed --memory and the words were
+	// counted from there in Counters Space-Saving counters: a word's count
+	// is then at most CountError above its true count, never below it.
+	Approximate bool  `json:"approximate,omitempty"`
+	Counters    int   `json:"counters,omitempty"`
+	CountError  int64 `json:"count_error,omitempty"`
 }
 
 // Report is the report of morsel fragments.
@@ -130,13 +136,16 @@ func (f *Fragmenter) Finish(opt Options, skipped []report.Skipped) *Report {
 			t.Failed++
 		}
 	}
-	tables := f.tables()
+	words, distinct := f.wordSource()
+	if f.summary != nil {
+		t.Approximate, t.Counters, t.CountError = true, f.summary.Counters(), f.summary.MaxErr()
+	}
 	// Rank light records first; only the words listed become Report.
 	// With --top N, a bounded heap keeps the N best without sorting all.
 	top := &rankHeap{limit: opt.Top}
 	fallback := &rankHeap{limit: opt.Top}
-	t.DistinctWords = tables.Len()
-	for w := range tables.All() {
+	t.DistinctWords = distinct
+	for w := range words {
 		if w.Count() < opt.MinCount {
 			continue
 		}

@@ -317,6 +317,42 @@ func (b *Batch) Flush(ts *Tables) {
 		t.mu.Unlock()
 	}
 	b.part, b.order, b.at = part, order, at
+	b.reset()
+}
+
+// FlushSummary moves the batch's words into s and empties the batch, as
+// Flush does into Tables.
+func (b *Batch) FlushSummary(s *Summary) {
+	var buf [2]uint32
+	extra := map[uint32][]Split{} // the spills, by word
+	for _, sp := range b.spill {
+		extra[sp.word] = append(extra[sp.word], Split{IDs: b.ids[sp.off : sp.off+sp.n], Count: int64(sp.count)})
+	}
+	s.mu.Lock()
+	for i := range b.words {
+		lw := &b.words[i]
+		var splits []Split
+		var pieces int64
+		for j := range lw.splits {
+			sp := &lw.splits[j]
+			if sp.n == 0 {
+				break
+			}
+			pieces += int64(sp.count) * int64(sp.n)
+			splits = append(splits, Split{IDs: slices.Clone(b.idsOf(sp, &buf)), Count: int64(sp.count)})
+		}
+		for _, sp := range extra[uint32(i)] {
+			pieces += int64(len(sp.IDs)) * sp.Count
+			splits = append(splits, sp)
+		}
+		s.add(b.bytes[lw.off:lw.off+lw.n], int64(lw.count), pieces, int64(lw.docs), splits, 0)
+	}
+	s.mu.Unlock()
+	b.reset()
+}
+
+// reset empties the batch after a flush.
+func (b *Batch) reset() {
 	if len(b.index) > 2*batchWords {
 		b.index = make([]uint64, 2*batchWords)
 	} else {

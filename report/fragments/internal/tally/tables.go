@@ -81,6 +81,19 @@ func (ts *Tables) Len() int {
 	return n
 }
 
+// Bytes returns about how much memory ts holds.
+func (ts *Tables) Bytes() int64 {
+	var n int64
+	for p := range ts.parts {
+		t := &ts.parts[p]
+		t.mu.Lock()
+		n += int64(len(t.index.slots))*8 + int64(len(t.chunks))*chunkSize*64 + int64(cap(t.arena)) +
+			int64(cap(t.idArena))*4 + int64(cap(t.more))*int64(MaxSplits-1)*16
+		t.mu.Unlock()
+	}
+	return n
+}
+
 // All returns every word of ts, partition by partition and in the order
 // each partition first saw them. It must not run while a batch flushes.
 func (ts *Tables) All() iter.Seq[Word] {
@@ -88,7 +101,7 @@ func (ts *Tables) All() iter.Seq[Word] {
 		for p := range ts.parts {
 			t := &ts.parts[p]
 			for i := range t.nwords {
-				if !yield(Word{t, t.at(i)}) {
+				if !yield(Word{t: t, w: t.at(i)}) {
 					return
 				}
 			}
@@ -96,24 +109,54 @@ func (ts *Tables) All() iter.Seq[Word] {
 	}
 }
 
-// Word is one word's tallies in a Tables. It is valid until the next
-// flush into the tables.
+// Word is one word's tallies in a Tables or a Summary. It is valid until
+// the next flush into them.
 type Word struct {
 	t *table
 	w *wordTally
+	e *summaryEntry // set for a word of a Summary
 }
 
 // Bytes returns the word; the caller must not change them.
-func (w Word) Bytes() []byte { return w.t.word(w.w) }
+func (w Word) Bytes() []byte {
+	if w.e != nil {
+		return []byte(w.e.word)
+	}
+	return w.t.word(w.w)
+}
 
-// Count returns the word's occurrences.
-func (w Word) Count() int64 { return w.w.count }
+// Count returns the word's occurrences (in a Summary, at most Err more).
+func (w Word) Count() int64 {
+	if w.e != nil {
+		return w.e.count
+	}
+	return w.w.count
+}
+
+// Err returns how far Count may be above the true count: 0 in Tables.
+func (w Word) Err() int64 {
+	if w.e != nil {
+		return w.e.err
+	}
+	return 0
+}
 
 // Pieces returns the tokens its occurrences took, all splits together.
-func (w Word) Pieces() int64 { return w.w.pieces }
+func (w Word) Pieces() int64 {
+	if w.e != nil {
+		return w.e.pieces
+	}
+	return w.w.pieces
+}
 
-// Docs returns the number of documents it occurs in.
-func (w Word) Docs() int64 { return w.w.docs }
+// Docs returns the number of documents it occurs in (in a Summary, those
+// since it took its counter).
+func (w Word) Docs() int64 {
+	if w.e != nil {
+		return w.e.docs
+	}
+	return w.w.docs
+}
 
 // Split is one way a word was split into tokens, and how often.
 type Split struct {
@@ -124,6 +167,9 @@ type Split struct {
 // Splits returns the word's splits, at most MaxSplits, in the order they
 // were first seen.
 func (w Word) Splits() []Split {
+	if w.e != nil {
+		return w.e.splits
+	}
 	t := w.t
 	out := []Split{{IDs: t.splitIDs(w.w.split), Count: w.w.split.count}}
 	if w.w.more > 0 {

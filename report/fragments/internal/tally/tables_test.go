@@ -91,7 +91,7 @@ func TestTableSplits(t *testing.T) {
 	}{{[]uint32{7}, 2}, {[]uint32{1, 2, 3}, 1}, {[]uint32{7}, 3}, {[]uint32{9}, 1}, {[]uint32{1, 2}, 4}, {[]uint32{5, 6}, 1}, {[]uint32{1, 2, 3}, 2}} {
 		m.addSplit(w, s.ids, s.n)
 	}
-	checkSplits(t, Word{m, w}.Splits(), []Split{{[]uint32{7}, 5}, {[]uint32{1, 2, 3}, 3}, {[]uint32{9}, 1}, {[]uint32{1, 2}, 4}})
+	checkSplits(t, Word{t: m, w: w}.Splits(), []Split{{[]uint32{7}, 5}, {[]uint32{1, 2, 3}, 3}, {[]uint32{9}, 1}, {[]uint32{1, 2}, 4}})
 	if again := m.entry([]byte("kelderwick"), hashWord([]byte("kelderwick"))); again != i {
 		t.Error("the word's second look-up made a new tally")
 	}
