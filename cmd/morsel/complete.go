@@ -7,7 +7,7 @@ import (
 // Values that the shell completes for flags (cobra's completion command
 // writes the scripts: morsel completion bash|zsh|fish|powershell).
 var (
-	formatNames  = []string{"table", "json", "csv", "md", "html"}
+	formatNames  = []string{"table", "json", "csv", "md", "html", "partial"}
 	asNames      = []string{"text", "markdown", "code", "html", "jsonl", "json", "csv", "tsv"}
 	specialNames = []string{"text", "honor"}
 )

@@ -41,7 +41,7 @@ overflows, else 0.`,
 			if len(sh.vocabs) > 1 {
 				return sh.runSide("fit", &cf, args)
 			}
-			boundMemory()
+			sh.boundMemory()
 			f, err := sh.outFormat("fit", render.Table, render.JSON, render.CSV, render.Markdown, render.HTML)
 			if err != nil {
 				return err
@@ -83,5 +83,6 @@ overflows, else 0.`,
 	addSortFlag(c, &sf, fit.Orders)
 	addTargetFlags(c, &tf, false)
 	addRequestFlags(c, &rf)
+	addShardFlags(sh, c, &cf)
 	return c
 }

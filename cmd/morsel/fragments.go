@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"fmt"
 	"math"
 
@@ -9,6 +10,7 @@ import (
 
 	"morsel/corpus"
 	"morsel/report/fragments"
+	"morsel/report/partial"
 	"morsel/report/render"
 )
 
@@ -84,6 +86,19 @@ flag when it reaches --min-pieces.`,
 					return nil
 				},
 				tokens: func(dw *fragments.DocWords) int { return dw.Tokens },
+				tables: func(pw *partial.Writer) error {
+					return fr.WordRows(func(r fragments.WordRow) error { return pw.Row(wordTable, r) })
+				},
+				load: func(t map[string][]json.RawMessage) error {
+					for _, raw := range t[wordTable] {
+						var r fragments.WordRow
+						if err := json.Unmarshal(raw, &r); err != nil {
+							return &inputError{fmt.Errorf("partial report: a word row that does not read: %w", err)}
+						}
+						fr.AddWordRow(r)
+					}
+					return nil
+				},
 			})
 			if err != nil {
 				return err
@@ -107,5 +122,9 @@ flag when it reaches --min-pieces.`,
 	fl.StringVar(&termsFile, "terms", "", "glossary file to check, one term a line")
 	fl.IntVar(&docRows, "doc-rows", 10, "documents in the table of tokens per UAX #29 word (0: all)")
 	fl.Var(&memory, "memory", "bound on the word tables (past it, the most frequent words are counted approximately, with the error stated)")
+	addShardFlags(sh, c, &cf)
 	return c
 }
+
+// wordTable is the partial report's table of every word's tallies.
+const wordTable = "words"

@@ -6,6 +6,7 @@ package main
 import (
 	"errors"
 	"fmt"
+	"math"
 	"os"
 	"os/signal"
 	"runtime/debug"
@@ -32,8 +33,16 @@ const (
 // below that heap the collector would run without pause.
 const memoryLimit = 100 << 20
 
-// boundMemory sets the soft heap limit for a streaming command.
-func boundMemory() {
+// boundMemory sets the soft heap limit for a streaming command. A merge
+// holds every document's result, so its heap grows with the corpus: it
+// runs without the limit, under which the collector would never pause.
+func (sh *shared) boundMemory() {
+	if sh.replay != nil {
+		if os.Getenv("GOMEMLIMIT") == "" {
+			debug.SetMemoryLimit(math.MaxInt64)
+		}
+		return
+	}
 	if os.Getenv("GOMEMLIMIT") == "" {
 		debug.SetMemoryLimit(memoryLimit)
 	}

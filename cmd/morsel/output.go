@@ -75,6 +75,10 @@ func reportWriteErrors(root *cobra.Command, sh *shared) {
 		run := c.RunE
 		c.RunE = func(c *cobra.Command, args []string) error {
 			err := run(c, args)
+			var done errPartial
+			if errors.As(err, &done) {
+				err = done.err
+			}
 			if sh.report != nil && sh.report.err != nil {
 				return &outputError{sh.report.err}
 			}

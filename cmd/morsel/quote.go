@@ -48,7 +48,7 @@ and one piece of it: the bill is short of it), else 0.`,
   morsel quote exports/ --target harbor-large --batch --format json`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
-			boundMemory()
+			sh.boundMemory()
 			f, err := sh.outFormat("quote", render.Table, render.JSON, render.CSV, render.Markdown, render.HTML)
 			if err != nil {
 				return err
@@ -172,5 +172,6 @@ and one piece of it: the bill is short of it), else 0.`,
 	f.IntVar(&answer, "answer-tokens", 0, "answer tokens per request for every target, instead of each target's")
 	f.BoolVar(&cut, "ration", false, "cut documents whose request overflows the window, and price every chunk as a request")
 	f.BoolVar(&batch, "batch", false, "take each target's batch_discount off")
+	addShardFlags(sh, c, &cf)
 	return c
 }

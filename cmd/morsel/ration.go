@@ -54,7 +54,7 @@ because the budget cannot hold the frame and one character, else 0.`,
   morsel ration notes/ --budget 2000 --overlap 100 --format json`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
-			boundMemory()
+			sh.boundMemory()
 			f, err := sh.outFormat("ration", render.Table, render.JSON, render.CSV, render.Markdown)
 			if err != nil {
 				return err
@@ -81,6 +81,9 @@ because the budget cannot hold the frame and one character, else 0.`,
 				return usagef("ration", "--overlap %d: want 0 or more and less than half the %d-token budget", overlap, budget)
 			}
 			r := &ration.Rationer{Enc: rq.enc, Frame: rq.frame, Budget: budget, Overlap: overlap, Overhead: rq.overhead, Generic: sh.genericSplit(rq.enc)}
+			if emit != "" && (sh.partialOut || sh.replay != nil) {
+				return usagef("ration", "--emit writes the chunks' text, which a partial report does not keep: give it without --format partial")
+			}
 			var plan *outfile.File
 			var out *bufio.Writer
 			var jl *json.Encoder
@@ -112,6 +115,8 @@ because the budget cannot hold the frame and one character, else 0.`,
 				},
 				failed: ration.FailedDoc,
 				tokens: func(d ration.Doc) int { return d.Tokens },
+				encode: encodeRation,
+				decode: decodeRation,
 			})
 			if err != nil {
 				return err
@@ -144,5 +149,40 @@ because the budget cannot hold the frame and one character, else 0.`,
 	c.Flags().IntVar(&overlap, "overlap", 0, "start each chunk with up to this many tokens of the previous chunk's tail")
 	c.Flags().StringVar(&emit, "emit", "", "write the chunks to this file as JSON Lines (never one of the inputs; put in place once whole)")
 	c.Flags().BoolVar(&force, "force", false, "let --emit replace an existing file")
+	addShardFlags(sh, c, &cf)
 	return c
+}
+
+// rationRow is a document's result in a partial report: its row, and its
+// chunks' request tokens and cuts, which the fill histogram and the cut
+// counts take (the chunks' text is not kept).
+type rationRow struct {
+	ration.Doc
+	Plan []chunkSum `json:"plan"`
+}
+
+type chunkSum struct {
+	Tokens int    `json:"t"`
+	Cut    string `json:"c"`
+}
+
+func encodeRation(d ration.Doc) ([]byte, error) {
+	row := rationRow{Doc: d, Plan: make([]chunkSum, len(d.Plan))}
+	for i, c := range d.Plan {
+		row.Plan[i] = chunkSum{c.Tokens, c.Cut}
+	}
+	return json.Marshal(row)
+}
+
+func decodeRation(_ *corpus.Document, raw []byte) (ration.Doc, error) {
+	var row rationRow
+	if err := json.Unmarshal(raw, &row); err != nil {
+		return ration.Doc{}, err
+	}
+	d := row.Doc
+	d.Plan = make([]ration.Chunk, len(row.Plan))
+	for i, c := range row.Plan {
+		d.Plan[i] = ration.Chunk{Source: d.Source, Record: d.Record, Chunk: i + 1, Tokens: c.Tokens, Cut: c.Cut}
+	}
+	return d, nil
 }

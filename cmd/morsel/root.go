@@ -17,6 +17,7 @@ import (
 	"morsel/corpus"
 	"morsel/internal/buildinfo"
 	"morsel/internal/screen"
+	"morsel/report/partial"
 	"morsel/report/render"
 	"morsel/report/walk"
 )
@@ -38,8 +39,18 @@ type shared struct {
 	// glossary); a walk leaves them out.
 	read []corpus.Setting
 
+	// shardable names the running command when it writes partial
+	// reports; partialOut is --format partial; loaded are the
+	// vocabularies loaded; replay, when set, is the
+	// merged partial that a merge feeds the command instead of a walk.
+	shardable  string // set by a command's PreRunE
+	partialOut bool
+	loaded     []*bpe.Vocab
+	replay     *partial.Partial
+
 	stdin          io.Reader
 	stdout, stderr io.Writer
+	out0           io.Writer     // standard output as given, for a merge's own run
 	report         *reportWriter // standard output as the command writes to it
 }
 
@@ -56,7 +67,12 @@ func newRoot() *cobra.Command { return newRootIO(os.Stdin, os.Stdout, os.Stderr)
 // newRootIO builds the command tree with its own standard streams, so that
 // tests can run commands in-process.
 func newRootIO(stdin io.Reader, stdout, stderr io.Writer) *cobra.Command {
-	sh := &shared{stdin: stdin, stdout: stdout, stderr: stderr}
+	return newRootWith(&shared{stdin: stdin, stdout: stdout, stderr: stderr, out0: stdout})
+}
+
+// newRootWith builds the command tree around sh, whose streams (and, for
+// a merge's run, replay) are set.
+func newRootWith(sh *shared) *cobra.Command {
 	root := &cobra.Command{
 		Use:   "morsel",
 		Short: "Weigh a document set in a model's own BPE tokens before a batch job",
@@ -81,7 +97,7 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
 	pf := root.PersistentFlags()
 	pf.Var(&vocabFlag{first: &sh.vocab, all: &sh.vocabs}, "vocab", "vocabulary JSON file (token -> id), or a folder holding vocab.json+merges.txt or encoder.json+vocab.bpe (default: embedded GPT-2); survey, fit and fragments take it more than once to compare vocabularies side by side")
 	pf.StringVar(&sh.merges, "merges", "", "merges file, one ranked pair a line (with --vocab FILE)")
-	pf.StringVar(&sh.format, "format", "table", "output: table, json, csv or md; html too for survey, fit, quote and fragments")
+	pf.StringVar(&sh.format, "format", "table", "output: table, json, csv or md; html too for survey, fit, quote and fragments; partial (a partial report for morsel merge) for survey, fit, quote, ration and fragments")
 	pf.IntVar(&sh.workers, "workers", runtime.NumCPU(), "documents encoded at once")
 	pf.BoolVarP(&sh.quiet, "quiet", "q", false, "no progress or notes on standard error")
 	pf.BoolVar(&sh.wide, "wide", false, "tables as wide as their cells, even on a terminal (a pipe always gets them so)")
@@ -179,7 +195,9 @@ func (sh *shared) loadVocab() (*bpe.Vocab, error) {
 		return nil, usagef("morsel", "--merges needs --vocab")
 	}
 	if sh.vocab == "" {
-		return bpe.Default(), nil
+		v := bpe.Default()
+		sh.loaded = append(sh.loaded, v)
+		return v, nil
 	}
 	for _, f := range []struct{ flag, path string }{{"--vocab", sh.vocab}, {"--merges", sh.merges}} {
 		if _, err := os.Stat(f.path); f.path != "" && errors.Is(err, fs.ErrNotExist) {
@@ -190,6 +208,7 @@ func (sh *shared) loadVocab() (*bpe.Vocab, error) {
 	if err != nil {
 		return nil, &inputError{err}
 	}
+	sh.loaded = append(sh.loaded, v)
 	return v, nil
 }
 
@@ -207,6 +226,17 @@ func (sh *shared) encoderFor(v *bpe.Vocab) (*bpe.Encoder, error) {
 
 // outFormat checks --format against the formats a command offers.
 func (sh *shared) outFormat(cmd string, allowed ...render.Format) (render.Format, error) {
+	if sh.format == formatPartial {
+		switch {
+		case sh.shardable != cmd:
+			return "", usagef(cmd, "--format partial: only survey, fit, quote, ration and fragments write partial reports")
+		case len(sh.vocabs) > 1:
+			return "", usagef(cmd, "--format partial takes one --vocab")
+		}
+		// The walk writes the partial; the report is never rendered.
+		sh.partialOut = true
+		return allowed[0], nil
+	}
 	f, err := render.ParseFormat(sh.format, allowed...)
 	if err != nil {
 		return "", usagef(cmd, "--format: %v", err)
@@ -229,6 +259,7 @@ type corpusFlags struct {
 	as               string
 	maxDocument      sizeFlag
 	written          []fs.FileInfo // files the command writes, which the walk never reads
+	shard            *shardFlags   // --shard and --output, on the commands whose results merge
 }
 
 // addCorpusFlags adds the document-walking flags to c.

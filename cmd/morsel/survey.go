@@ -1,10 +1,14 @@
 package main
 
 import (
+	"encoding/json"
+	"fmt"
+
 	"github.com/spf13/cobra"
 
 	"morsel/corpus"
 	"morsel/report"
+	"morsel/report/partial"
 	"morsel/report/render"
 	"morsel/report/survey"
 )
@@ -35,7 +39,7 @@ be read; the report still covers all the rest.`,
 			if len(sh.vocabs) > 1 {
 				return sh.runSide("survey", &cf, args)
 			}
-			boundMemory()
+			sh.boundMemory()
 			f, err := sh.outFormat("survey", render.Table, render.JSON, render.CSV, render.Markdown, render.HTML)
 			if err != nil {
 				return err
@@ -51,7 +55,7 @@ be read; the report still covers all the rest.`,
 			sv := survey.NewSurveyor(enc.Vocab().Info())
 			work := func(d *corpus.Document) (survey.Weight, error) { return survey.Weigh(enc, d) }
 			var sampler *survey.Sampler
-			if f == render.HTML {
+			if f == render.HTML || sh.partialOut {
 				sampler = survey.NewSampler(enc, sampleOf)
 				work = sampler.Weigh
 			}
@@ -74,6 +78,19 @@ be read; the report still covers all the rest.`,
 			skipped, err := walkDocs(sh, &cf, args, work, collector[survey.Weight]{
 				add:    func(_ *corpus.Document, w survey.Weight) error { return sv.Add(w) },
 				tokens: func(w survey.Weight) int { return w.Tokens },
+				decode: func(d *corpus.Document, raw []byte) (survey.Weight, error) {
+					var w survey.Weight
+					err := json.Unmarshal(raw, &w)
+					w.Hash = d.Hash // not in the JSON row
+					return w, err
+				},
+				tables: func(pw *partial.Writer) error {
+					if w, head, ok := sampler.Kept(); ok {
+						return pw.Row(sampleTable, sampleRow{w, head})
+					}
+					return nil
+				},
+				load: func(t map[string][]json.RawMessage) error { return loadSamples(sampler, t[sampleTable]) },
 			})
 			if err != nil {
 				return err
@@ -98,6 +115,7 @@ be read; the report still covers all the rest.`,
 	addSortFlag(c, &sf, survey.Orders)
 	c.Flags().IntVar(&rows, "rows", 50, "per-document rows in the table and html views (0: all)")
 	c.Flags().StringVar(&sampleOf, "sample", "", "with --format html: the document (SOURCE or SOURCE:RECORD) shown split into tokens (default: the one with the most tokens per wc -w word)")
+	addShardFlags(sh, c, &cf)
 	return c
 }
 
@@ -130,4 +148,28 @@ func (sh *shared) skipStatus(skips []report.Skipped) error {
 	}
 	sh.note("%d input(s) or record(s) could not be read; the report lists them with the reason", failed)
 	return &inputError{}
+}
+
+// sampleTable is the partial report's table of the document each shard
+// kept as the HTML page's sample, which a merge offers to its own sampler.
+const sampleTable = "sample"
+
+type sampleRow struct {
+	Weight survey.Weight `json:"weight"`
+	Head   []byte        `json:"head"`
+}
+
+// loadSamples offers the shards' samples to sampler (none without one).
+func loadSamples(sampler *survey.Sampler, rows []json.RawMessage) error {
+	if sampler == nil {
+		return nil
+	}
+	for _, raw := range rows {
+		var r sampleRow
+		if err := json.Unmarshal(raw, &r); err != nil {
+			return &inputError{fmt.Errorf("partial report: a sample row that does not read: %w", err)}
+		}
+		sampler.Offer(r.Weight, r.Head)
+	}
+	return nil
 }

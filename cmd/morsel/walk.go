@@ -1,11 +1,13 @@
 package main
 
 import (
+	"encoding/json"
 	"slices"
 	"strings"
 
 	"morsel/corpus"
 	"morsel/report"
+	"morsel/report/partial"
 	"morsel/report/walk"
 )
 
@@ -20,6 +22,15 @@ type collector[R any] struct {
 	failed func(d *corpus.Document, err error) report.Skipped
 	// tokens gives the tokens a result counted, for the progress bar.
 	tokens func(r R) int
+	// encode writes a result to a partial report (json.Marshal when
+	// nil), and decode reads it back from a partial report (json.Unmarshal
+	// when nil), for what the JSON leaves out.
+	encode func(r R) ([]byte, error)
+	decode func(d *corpus.Document, raw []byte) (R, error)
+	// tables writes the command's own rows to a partial report, and
+	// load reads them back from the merged one; both may be nil.
+	tables func(pw *partial.Writer) error
+	load   func(tables map[string][]json.RawMessage) error
 
 	prog    walk.Progress
 	skipped []report.Skipped
@@ -71,9 +82,23 @@ func walkDocs[R any](sh *shared, cf *corpusFlags, paths []string, work func(*cor
 		c.once = &onceFilter{}
 	}
 	c.note = func(d *corpus.Document) { sh.note("%s: %s", d.Source, d.Note) }
-	c.prog = sh.progress()
 	c.skipped = []report.Skipped{}
-	if err := walk.Walk(paths, opt, sh.workers, c.prog, work, c.emit); err != nil {
+	switch {
+	case sh.partialOut:
+		return nil, errPartial{writePartial(sh, cf, paths, opt, work, c)}
+	case sh.replay != nil:
+		if err := replay(sh, cf, &c); err != nil {
+			return nil, err
+		}
+		return c.skipped, nil
+	}
+	share, err := cf.shareOf()
+	if err != nil {
+		return nil, err
+	}
+	c.prog = sh.progress()
+	emit := func(_ walk.Place, it corpus.Item, r R, err error) error { return c.emit(it, r, err) }
+	if err := walk.Shard(paths, opt, share, sh.workers, c.prog, work, emit); err != nil {
 		return nil, err
 	}
 	return c.skipped, nil

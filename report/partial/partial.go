@@ -50,6 +50,11 @@ type Header struct {
 	// Lines says what each kind of line holds, for a reader without the
 	// schema at hand.
 	Lines map[string]string `json:"lines"`
+	// Args are the command's flags as given (less those that only cut
+	// the walk or say where the partial goes), and Paths its arguments,
+	// so that a merge renders the report the single run would.
+	Args  []string `json:"args,omitempty"`
+	Paths []string `json:"paths,omitempty"`
 }
 
 // Key places a walk item in the order of a single run: by In, then by
@@ -105,8 +110,13 @@ type Skip struct {
 // work gave), or a skip.
 type Item struct {
 	Key
-	Record int    `json:"rec"`
+	Record int `json:"rec"`
+	// Line is a CSV or TSV row's first line.
+	Line   int    `json:"line,omitempty"`
 	Format string `json:"fmt,omitempty"`
+	// Hash is the document's content hash (XXH64 of its text), by which
+	// a merge finds repeated texts across shards.
+	Hash uint64 `json:"hash,omitempty"`
 	// Skip is set for an input or record that the walk did not read.
 	Skip *Skip `json:"skip,omitempty"`
 	// Err is set for a document whose work failed.
@@ -142,8 +152,8 @@ func New(command string, k, n int, inputs string, agree map[string]string) *Part
 
 // lineDocs is the header's Lines.
 var lineDocs = map[string]string{
-	"h":   "header: format, version, command, shards of of, inputs, agree, lines",
-	"i":   "item: in, seq, src (its place in the walk), rec, fmt, skip {reason, detail, failed} or err or r (the command's result for the document)",
+	"h":   "header: format, version, command, shards of of, inputs, agree, lines, args, paths",
+	"i":   "item: in, seq, src (its place in the walk), rec, line, fmt, hash, skip {reason, detail, failed} or err or r (the command's result for the document)",
 	"t":   "table row: t (table name), r (the row)",
 	"end": "end: items, rows (by table), summary (the command's totals of this partial)",
 }

@@ -241,3 +241,20 @@ func sampleViewOf(s *Sample) *render.SampleView {
 		render.Num(w.Tokens), render.Num(w.WCWords), render.Ratio(float64(w.Tokens), float64(w.WCWords)), render.Ratio(float64(w.Bytes), float64(w.Tokens)), shown)
 	return v
 }
+
+// Kept returns the weight and the start of the text of the document kept
+// so far, or false when none was.
+func (sp *Sampler) Kept() (Weight, []byte, bool) {
+	sp.mu.Lock()
+	defer sp.mu.Unlock()
+	if sp.best == nil {
+		return Weight{}, nil, false
+	}
+	return sp.best.Weight, sp.best.Text, true
+}
+
+// Offer offers a document weighed elsewhere, such as the one another
+// shard's Sampler kept, with the start of its text: the sampler keeps it
+// when Weigh would have. The choice does not depend on the order of the
+// offers, so samplers of shards merge into the whole run's.
+func (sp *Sampler) Offer(w Weight, head []byte) { sp.offer(w, &headBuffer{b: head}) }

@@ -422,3 +422,19 @@ func roomFor[T any](s []T, n int) []T {
 	copy(bigger, s)
 	return bigger
 }
+
+// AddWord adds one word's tallies, as another Tables holds them (a shard's,
+// read back from a partial report), to ts: its occurrences, pieces and
+// documents, and its splits in the order given. It must not be called
+// while batches flush into ts.
+func (ts *Tables) AddWord(word []byte, count, pieces, docs int64, splits []Split) {
+	h := hashWord(word)
+	t := &ts.parts[partOf(h)]
+	w := t.at(t.entry(word, h))
+	w.count += count
+	w.pieces += pieces
+	w.docs += docs
+	for _, sp := range splits {
+		t.addSplit(w, sp.IDs, sp.Count)
+	}
+}
