@@ -1,8 +1,8 @@
 package fragments
 
 import (
-	"errors"
 	"encoding/json"
+	"errors"
 
 	"morsel/report/fragments/internal/tally"
 )
