@@ -68,7 +68,7 @@ func (sh *shared) runSide(cmd string, cf *corpusFlags, args []string) error {
 		if err != nil {
 			return nil, err
 		}
-		return side.Measure(vs, d.Source, d.Record, text), nil
+		return side.Measure(vs, d.Source, d.Record, text)
 	}, collector[*side.DocWords]{
 		add:    func(_ *corpus.Document, dw *side.DocWords) error { col.Add(dw); return nil },
 		tokens: func(dw *side.DocWords) int { return dw.Doc.Tokens[0] },

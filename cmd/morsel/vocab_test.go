@@ -122,15 +122,21 @@ func TestPatternTimeoutSkips(t *testing.T) {
 	dir := t.TempDir()
 	os.WriteFile(filepath.Join(dir, "bad.txt"), []byte(strings.Repeat("a", 40)+"b"), 0o644)
 	os.WriteFile(filepath.Join(dir, "ok.txt"), []byte("hello world"), 0o644)
-	for _, args := range [][]string{
-		{"survey"},
-		{"fit", "--window", "1000"},
-		{"ration", "--budget", "1000"},
-		{"quote", "--targets", demoTargets, "--target", "harbor-small"},
+	for _, c := range []struct {
+		args    []string
+		counted string // how the JSON shows that ok.txt was counted
+	}{
+		{[]string{"survey"}, `"documents": 1`},
+		{[]string{"fit", "--window", "1000"}, `"documents": 1`},
+		{[]string{"ration", "--budget", "1000"}, `"documents": 1`},
+		{[]string{"quote", "--targets", demoTargets, "--target", "harbor-small"}, `"documents": 1`},
+		// Two vocabularies: the side-by-side report lists its documents,
+		// and skips the bad one under both.
+		{[]string{"survey", "--vocab", "../../bpe/gpt2", "--vocab", "../../bpe/gpt2"}, "ok.txt"},
 	} {
-		args = append(args, "--split-pattern", "(a+)+$", "--format", "json", "--quiet", dir)
+		args := append(c.args, "--split-pattern", "(a+)+$", "--format", "json", "--quiet", dir)
 		out, _, code := run(t, "", args...)
-		if code != 1 || !strings.Contains(out, "time limit") || !strings.Contains(out, `"documents": 1`) || !strings.Contains(out, "bad.txt") {
+		if code != 1 || !strings.Contains(out, "time limit") || !strings.Contains(out, c.counted) || !strings.Contains(out, "bad.txt") {
 			t.Errorf("%s: exit %d\n%s", args[0], code, out)
 		}
 	}

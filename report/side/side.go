@@ -5,6 +5,7 @@
 package side
 
 import (
+	"fmt"
 	"sort"
 	"strings"
 
@@ -52,11 +53,18 @@ type DocWords struct {
 	words map[wordKey]int64
 }
 
-// Measure weighs one document's text under every vocabulary.
-func Measure(vs []Vocab, source string, record int, text []byte) *DocWords {
+// Measure weighs one document's text under every vocabulary. Its error is
+// that of a split pattern that ran past its time limit under one of them
+// (bpe.Encoder.CountChecked), naming that vocabulary: the document is then
+// not weighed at all, so every vocabulary's totals cover the same documents.
+func Measure(vs []Vocab, source string, record int, text []byte) (*DocWords, error) {
 	d := &DocWords{Doc: Doc{Source: source, SourceBytes: report.SourceBytes(source), Record: record, Bytes: int64(len(text)), Tokens: make([]int, len(vs))}, words: map[wordKey]int64{}}
 	for i, v := range vs {
-		d.Doc.Tokens[i] = v.Enc.Count(text)
+		n, err := v.Enc.CountChecked(text)
+		if err != nil {
+			return nil, fmt.Errorf("under %s: %w", v.Name, err)
+		}
+		d.Doc.Tokens[i] = n
 	}
 	d.Doc.Spread = spread(d.Doc.Tokens)
 	for i := 0; i < len(text); {
@@ -67,7 +75,7 @@ func Measure(vs []Vocab, source string, record int, text []byte) *DocWords {
 		}
 		i = j
 	}
-	return d
+	return d, nil
 }
 
 func spread(tokens []int) float64 {

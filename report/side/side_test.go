@@ -41,7 +41,11 @@ func demo(t *testing.T) *Report {
 	vs := []Vocab{{"gpt2", g}, {"gpt2+300", x}}
 	c := NewCollector(vs, 10)
 	for i, text := range texts {
-		c.Add(Measure(vs, paths[i], 0, text))
+		dw, err := Measure(vs, paths[i], 0, text)
+		if err != nil {
+			t.Fatal(err)
+		}
+		c.Add(dw)
 	}
 	return c.Finish()
 }
