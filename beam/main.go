@@ -24,6 +24,8 @@ var (
 	output     = flag.String("output", "-", "where to write the report (- for standard output, with the prism runner)")
 	format     = flag.String("format", "table", "table, json, csv, md, or partial")
 	command    = flag.String("command", "survey", "the report: survey")
+	vocab      = flag.String("vocab", "", "vocabulary file or folder, as morsel's --vocab, readable on every worker (default: the embedded GPT-2)")
+	merges     = flag.String("merges", "", "merges file, with --vocab FILE")
 	field      = flag.String("field", "text", "JSON / JSON Lines field holding the text")
 	column     = flag.String("column", "text", "CSV / TSV column holding the text")
 	as         = flag.String("as", "", "read every input as this format")
@@ -39,7 +41,7 @@ func main() {
 		fmt.Fprintln(os.Stderr, "morsel-beam: --input is required")
 		os.Exit(2)
 	}
-	c := Config{Inputs: strings.Split(*input, ","), Output: *output, Format: *format, Command: *command,
+	c := Config{Inputs: strings.Split(*input, ","), Output: *output, Format: *format, Command: *command, Vocab: *vocab, Merges: *merges,
 		Field: *field, Column: *column, As: *as, Hidden: *hidden, SplitAbove: *splitAbove, Workers: *workers}
 	p, s := beam.NewPipelineWithRoot()
 	Build(s, c)

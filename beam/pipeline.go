@@ -42,10 +42,14 @@ type Config struct {
 	Output  string   // where the report goes; "-" is the standard output of the worker that writes it
 	Format  string   // table, json, csv, md, or partial
 	Command string   // survey
-	Field   string
-	Column  string
-	As      string
-	Hidden  bool
+	// Vocab and Merges name the vocabulary as morsel's --vocab and
+	// --merges do (a path every worker can read); empty Vocab is the
+	// embedded GPT-2 vocabulary.
+	Vocab, Merges string
+	Field         string
+	Column        string
+	As            string
+	Hidden        bool
 	// SplitAbove is the size above which a file of records is read by
 	// several workers, each weighing its own share of the records
 	// (corpus.Shard); 0 never splits.
@@ -184,9 +188,21 @@ type weighFn struct {
 }
 
 func (fn *weighFn) Setup() error {
-	enc, err := bpe.NewEncoder(bpe.Default(), bpe.Options{})
+	enc, err := fn.Cfg.encoder()
 	fn.enc = enc
 	return err
+}
+
+// encoder loads the vocabulary the run names and builds its encoder.
+func (c Config) encoder() (*bpe.Encoder, error) {
+	v := bpe.Default()
+	if c.Vocab != "" {
+		var err error
+		if v, err = bpe.LoadFiles(c.Vocab, c.Merges); err != nil {
+			return nil, err
+		}
+	}
+	return bpe.NewEncoder(v, bpe.Options{})
 }
 
 func (fn *weighFn) StartBundle(ctx context.Context, _ func([]byte)) {
@@ -289,14 +305,17 @@ func newPartial(c Config, enc *bpe.Encoder) *partial.Partial {
 		Field, Column, As string
 		Hidden            bool
 	}{c.Inputs, c.Field, c.Column, c.As, c.Hidden})
-	return partial.New(c.Command, 1, 1, string(in), map[string]string{"vocabulary": enc.Vocab().Info().Name})
+	return partial.New(c.Command, 1, 1, string(in), map[string]string{"vocabulary": enc.Vocab().Fingerprint()})
 }
 
 // mergeFn combines the bundles' partial reports into one.
 type mergeFn struct{ Cfg Config }
 
 func (fn *mergeFn) CreateAccumulator() partial.Partial {
-	enc, _ := bpe.NewEncoder(bpe.Default(), bpe.Options{})
+	enc, err := fn.Cfg.encoder()
+	if err != nil {
+		panic(fmt.Sprintf("vocabulary %s: %v", fn.Cfg.Vocab, err)) // Setup of weighFn has reported it already
+	}
 	return *newPartial(fn.Cfg, enc)
 }
 
@@ -344,7 +363,7 @@ func (fn *writeFn) ProcessElement(ctx context.Context, b []byte) error {
 	if err != nil {
 		return err
 	}
-	enc, err := bpe.NewEncoder(bpe.Default(), bpe.Options{})
+	enc, err := fn.Cfg.encoder()
 	if err != nil {
 		return err
 	}

@@ -2,9 +2,11 @@ package main
 
 import (
 	"bytes"
+	"compress/gzip"
 	"context"
 	"flag"
 	"fmt"
+	"io"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -82,6 +84,33 @@ func TestSurveyDemoMatchesCLI(t *testing.T) {
 		if !bytes.Equal(got, want) {
 			t.Errorf("--format %s: the pipeline's report differs from morsel survey's:\n%s", f, firstDiff(got, want))
 		}
+	}
+}
+
+// --vocab weighs in another vocabulary, as morsel survey --vocab does.
+func TestSurveyVocabMatchesCLI(t *testing.T) {
+	dir := t.TempDir()
+	vocab := filepath.Join(dir, "tokenizer.json")
+	gz, err := os.Open("../testdata/vocab/metaspace-32k/tokenizer.json.gz")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer gz.Close()
+	zr, err := gzip.NewReader(gz)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := io.ReadAll(zr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(vocab, b, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	want := cli(t, "survey", "../testdata/demo/docs", "--vocab", vocab, "--format", "json")
+	got := runBeam(t, Config{Inputs: []string{"../testdata/demo/docs/*"}, Format: "json", Command: "survey", Field: "text", Column: "text", Vocab: vocab})
+	if !bytes.Equal(got, want) {
+		t.Errorf("the pipeline's report differs from morsel survey --vocab's:\n%s", firstDiff(got, want))
 	}
 }
 
