@@ -29,6 +29,7 @@ import (
 
 	"morsel/bpe"
 	"morsel/corpus"
+	"morsel/internal/screen"
 	"morsel/report"
 	"morsel/report/partial"
 	"morsel/report/render"
@@ -242,7 +243,7 @@ func (fn *weighFn) weigh(ctx context.Context, u Unit, p *partial.Partial) error 
 		if it.Skip != nil {
 			if share.Owns(it.Skip.Source, it.Skip.Record) {
 				s := it.Skip
-				p.Items = append(p.Items, partial.Item{Key: k, Record: s.Record,
+				p.Items = append(p.Items, partial.Item{Key: k, Record: s.Record, Line: s.Line,
 					Skip: &partial.Skip{Reason: s.Reason, Detail: s.Detail, Failed: s.Failed}})
 			}
 			return nil
@@ -254,8 +255,9 @@ func (fn *weighFn) weigh(ctx context.Context, u Unit, p *partial.Partial) error 
 			}
 			return nil
 		}
-		item := partial.Item{Key: k, Record: d.Record, Format: d.Format}
+		item := partial.Item{Key: k, Record: d.Record, Line: d.Line, Format: d.Format}
 		w, err := survey.Weigh(fn.enc, d)
+		item.Hash = d.Hash // a stream's is known once it is read
 		if err != nil {
 			item.Err = err.Error()
 		} else if item.Result, err = json.Marshal(w); err != nil {
@@ -386,6 +388,8 @@ func (fn *writeFn) ProcessElement(ctx context.Context, b []byte) error {
 	if err != nil {
 		return err
 	}
+	// Sources are shown relative to the inputs, as morsel shows them.
+	out = render.WithView(out, render.View{Base: screen.Base(fn.Cfg.Inputs)})
 	return survey.Write(out, f, sv.Finish(skipped), 50)
 }
 
@@ -394,14 +398,15 @@ func (fn *writeFn) ProcessElement(ctx context.Context, b []byte) error {
 // does not decode.
 func replay(it partial.Item) (ci corpus.Item, w survey.Weight, failed, err error) {
 	if it.Skip != nil {
-		return corpus.Item{Skip: &corpus.Skip{Source: it.Src, Record: it.Record, Reason: it.Skip.Reason, Detail: it.Skip.Detail, Failed: it.Skip.Failed}}, w, nil, nil
+		return corpus.Item{Skip: &corpus.Skip{Source: it.Src, Record: it.Record, Line: it.Line, Reason: it.Skip.Reason, Detail: it.Skip.Detail, Failed: it.Skip.Failed}}, w, nil, nil
 	}
-	d := &corpus.Document{Source: it.Src, Record: it.Record, Format: it.Format}
+	d := &corpus.Document{Source: it.Src, Record: it.Record, Line: it.Line, Format: it.Format, Hash: it.Hash}
 	if it.Err != "" {
 		return corpus.Item{Doc: d}, w, errors.New(it.Err), nil
 	}
 	if err := json.Unmarshal(it.Result, &w); err != nil {
 		return ci, w, nil, fmt.Errorf("%s: %w", report.Where(it.Src, it.Record), err)
 	}
+	w.Hash = it.Hash // not in the JSON row
 	return corpus.Item{Doc: d}, w, nil, nil
 }
