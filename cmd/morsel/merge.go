@@ -16,12 +16,6 @@ import (
 
 func init() { extraCommands = append(extraCommands, newMerge) }
 
-// mergeFlags are the flags of the report that a merge may choose anew:
-// how it is shown, and where the settings files are now. They are passed
-// to the command the partials are of.
-var mergeFlags = []string{"rows", "sort", "top", "min-pieces", "min-count", "doc-rows",
-	"frame", "targets", "terms"}
-
 func newMerge(sh *shared) *cobra.Command {
 	var output string
 	var force bool
@@ -90,6 +84,9 @@ partial instead, for a merge in stages; it may hold only some of the shards.`,
 			return err
 		},
 	}
+	// The flags of the report that a merge may choose anew: how it is
+	// shown, and where the settings files are now. They are passed to the
+	// command the partials are of.
 	f := c.Flags()
 	f.Int("rows", 0, "as the command's --rows")
 	f.String("sort", "", "as the command's --sort")
