@@ -126,12 +126,7 @@ func checkNormalizeFast(t *testing.T, sp *spmModel, name string, text []byte) {
 }
 
 func FuzzSentencePieceCutEqualsWhole(f *testing.F) {
-	g := loadSPMGolden(f)
-	for _, c := range g.Models[0].Cases {
-		if c.Source == "inline" {
-			f.Add(spmCaseText(f, c.Source, c.Name, c.Text, c.Hex, c.SHA256))
-		}
-	}
+	addSPMSeeds(f)
 	encs := spmEncoders(f)
 	f.Fuzz(func(t *testing.T, text []byte) {
 		for k, enc := range encs {

@@ -81,13 +81,18 @@ func TestSentencePieceFastEqualsSteps(t *testing.T) {
 	}
 }
 
-func FuzzSentencePieceFastEqualsSteps(f *testing.F) {
+// addSPMSeeds seeds a fuzz target with the golden file's inline texts.
+func addSPMSeeds(f *testing.F) {
 	g := loadSPMGolden(f)
 	for _, c := range g.Models[0].Cases {
 		if c.Source == "inline" {
 			f.Add(spmCaseText(f, c.Source, c.Name, c.Text, c.Hex, c.SHA256))
 		}
 	}
+}
+
+func FuzzSentencePieceFastEqualsSteps(f *testing.F) {
+	addSPMSeeds(f)
 	encs := spmEncoders(f)
 	f.Fuzz(func(t *testing.T, text []byte) {
 		for k, enc := range encs {
