@@ -44,8 +44,10 @@ type state struct {
 	spmIDs     []uint32
 	spmCounted []uint32
 	spmOut     []uint32
-	cells      []uint32 // mergeLong's cells
-	tree       []uint32 // and its minTree's nodes
+	cells      []uint32    // mergeLong's cells
+	tree       []uint32    // its minTree's nodes
+	base       []uint32    // its starting symbols, when p's bytes do not give them
+	byteSym    [256]uint32 // the starting symbol of each byte, when they do
 }
 
 const (
@@ -290,24 +292,31 @@ func (s *state) mergeShort(p []byte) []uint32 {
 	return s.out
 }
 
-// mergeLong applies the merges to a long pre-token in O(n log n) time and
-// at most 9 bytes of memory per byte of p (8 in cells, at most 1 in the
-// tree), with the same result as mergeShort: the pair of lowest rank merges
-// first, the leftmost on ties.
+// mergeLong applies the merges to a long pre-token in O(n log n) time,
+// with the same result as mergeShort: the pair of lowest rank merges
+// first, the leftmost on ties. Its memory is one word a starting symbol
+// (cells), at most half a byte a symbol for the tree, and, only when the
+// starting symbols cannot be read back from p, one more word a symbol: at
+// most 4.5 bytes a byte of p when every symbol but the first is one byte
+// and each byte starts as the same symbol wherever it stands (byte-level
+// vocabularies, and character-level ones on ASCII text after a prefix
+// such as Metaspace's), else at most 8.5.
 //
-// Each starting symbol (one a byte of p, for byte-level vocabularies) has
-// a cell of two words, its symbol and its rank. A
-// token's first cell holds its id and the rank of the pair it starts with
-// the next token (noPair if none); its other cells are dead, and its second
-// and last hold its length, so that both neighbours are found in O(1)
-// without linked lists. A tree of block minima (minTree) finds the lowest
-// rank, leftmost. Once found, a rank's pairs are worked through left to
-// right. A learned merge list never makes a pair of its own rank or a lower
-// one by a merge; ranks shared by several tokens (equal SentencePiece
-// scores) and lists that are not learned can, and such a merge stops the
-// run: the search starts again from the top.
+// A token's cells are its starting symbols'. Its first cell holds the
+// rank of the pair it starts with the next token (cellNoPair if none); a
+// token of two or more symbols holds its id in its second cell and, from
+// three, its length in its third and its last, so that both neighbours
+// are found in O(1) without linked lists. The tag in a cell's top two bits
+// says which it holds; a first cell's tag is zero, so the cell is the rank
+// itself and every other kind of cell reads as higher than any rank. A
+// tree of block minima (minTree) finds the lowest rank, leftmost. Once
+// found, a rank's pairs are worked through left to right. A learned merge
+// list never makes a pair of its own rank or a lower one by a merge; ranks
+// shared by several tokens (equal SentencePiece scores) and lists that are
+// not learned can, and such a merge stops the run: the search starts again
+// from the top.
 //
-// A pre-token longer than maxLong (2 GiB), more than a cell can measure, is
+// A pre-token longer than maxLong (1 GiB), more than a cell can measure, is
 // merged in pieces of maxLong bytes, as if it were several.
 func (s *state) mergeLong(p []byte) []uint32 {
 	if len(p) <= maxLong {
@@ -324,75 +333,129 @@ func (s *state) mergeLong(p []byte) []uint32 {
 }
 
 // maxLong is the longest pre-token that mergeTree takes.
-const maxLong = 1<<31 - 1
+const maxLong = cellValue
+
+// The cells of mergeTree: a tag in the top two bits, a value below.
+const (
+	cellValue  = 1<<30 - 1 // the value bits; also the largest length
+	cellNoPair = cellValue // a first cell whose token has no merge with the next (or is the last)
+	cellID     = 1 << 30   // a token's second cell: its id
+	cellLen    = 2 << 30   // a token's third and last cells: its length
+	cellDead   = 3 << 30   // any other cell
+	cellTag    = 3 << 30
+)
+
+// compactOK reports whether every rank and merged id of v fits a cell's
+// value; a vocabulary too large for that (none that loads within the
+// vocabulary size cap can be) takes the plain scan.
+func compactOK(v *Vocab) bool {
+	return len(v.tokens) < cellNoPair && v.nMerges < cellNoPair
+}
 
 // mergeTree is mergeLong for a pre-token of at most maxLong bytes.
 func (s *state) mergeTree(p []byte) []uint32 {
-	c := s.cells
-	if cap(c) < 2*len(p) {
-		c = make([]uint32, 0, 2*len(p))
+	if !compactOK(s.v) {
+		return s.mergeShort(p)
 	}
-	syms := s.initial(c[:0], p)
+	buf := s.cells
+	if cap(buf) < len(p) {
+		buf = make([]uint32, 0, len(p))
+	}
+	syms := s.initial(buf[:0], p)
 	n := len(syms)
 	if n < 2 {
 		s.out = append(s.out[:0], syms...)
 		return s.out
 	}
-	if cap(syms) < 2*n {
-		c = make([]uint32, 2*n)
-		copy(c, syms)
+	// base(i) is cell i's starting symbol: read back from byte i+d of p
+	// when the bytes give it (every symbol one byte but the first, the
+	// same byte the same symbol away from the ends), else kept in syms
+	// beside the cells.
+	first, last := syms[0], syms[n-1]
+	d := len(p) - n
+	tab := s.byteSyms(p[d:], syms)
+	var c []uint32
+	if tab != nil {
+		c = syms // the symbols are read back from p: their room becomes the cells
 	} else {
-		c = syms[:2*n]
+		c = growU32(s.base, n)
+		s.base = syms
 	}
-	for i := n - 1; i > 0; i-- {
-		c[2*i] = c[i] // spread the symbols into their cells, from the end
+	base := func(i int) uint32 {
+		switch {
+		case tab == nil:
+			return syms[i]
+		case i == 0:
+			return first
+		case i == n-1:
+			return last
+		}
+		return tab[p[i+d]]
 	}
 	for i := 0; i+1 < n; i++ {
-		c[2*i+1] = s.pairRank(c[2*i], c[2*i+2])
+		c[i] = s.cellRank(base(i), base(i+1))
 	}
-	c[2*n-1] = noPair
+	c[n-1] = cellNoPair
 	t := newMinTree(s.tree, c)
+	// length returns the cells of the token that starts at i; sym its id.
+	length := func(i int) int {
+		if i+1 >= n || c[i+1]&cellTag != cellID {
+			return 1
+		}
+		if i+2 < n && c[i+2]&cellTag == cellLen {
+			return int(c[i+2] & cellValue)
+		}
+		return 2
+	}
+	sym := func(i int) uint32 {
+		if i+1 < n && c[i+1]&cellTag == cellID {
+			return c[i+1] & cellValue
+		}
+		return base(i)
+	}
 	// next and prev return the first cell of the token after or before the
 	// one that starts at i, or -1.
 	next := func(i int) int {
-		j := i + 1
-		if j < n && c[2*j+1] == deadCell {
-			j = i + int(c[2*j])
+		if j := i + length(i); j < n {
+			return j
 		}
-		if j >= n {
-			return -1
-		}
-		return j
+		return -1
 	}
 	prev := func(i int) int {
-		j := i - 1
-		if j >= 0 && c[2*j+1] == deadCell {
-			j = i - int(c[2*j])
+		if i == 0 {
+			return -1
 		}
-		return j
+		switch w := c[i-1]; w & cellTag {
+		case cellID:
+			return i - 2
+		case cellLen:
+			return i - int(w&cellValue)
+		}
+		return i - 1
 	}
 	r, pos := t.min()
-	for r < noPair {
+	for r < cellNoPair {
 		nx := next(pos)
-		_, merged := s.rankOf(c[2*pos], c[2*nx])
+		_, merged := s.rankOf(sym(pos), sym(nx))
 		nn := next(nx)
 		end := nn // the new token is cells pos to end
 		if end < 0 {
 			end = n
 		}
-		length := uint32(end - pos)
-		c[2*nx], c[2*pos+2], c[2*end-2] = length, length, length
-		c[2*pos] = merged
-		c[2*nx+1] = deadCell // the cells pos+1 and end-1 are nx or were dead
+		c[nx] = cellDead // nx is no longer a first cell
+		c[pos+1] = cellID | merged
+		if length := uint32(end - pos); length > 2 {
+			c[pos+2], c[end-1] = cellLen|length, cellLen|length
+		}
 		lower := false
-		r2 := uint32(noPair)
+		r2 := uint32(cellNoPair)
 		if nn >= 0 {
-			r2 = s.pairRank(merged, c[2*nn])
+			r2 = s.cellRank(merged, sym(nn))
 			lower = r2 <= r
 		}
 		t.set(pos, r2)
 		if pv := prev(pos); pv >= 0 {
-			r3 := s.pairRank(c[2*pv], merged)
+			r3 := s.cellRank(sym(pv), merged)
 			t.set(pv, r3)
 			lower = lower || r3 <= r
 		}
@@ -406,38 +469,49 @@ func (s *state) mergeTree(p []byte) []uint32 {
 		}
 	}
 	w := 0
-	for i := 0; i >= 0; i = next(i) {
-		c[w] = c[2*i] // w <= i: this overwrites only cells already passed
+	for i := 0; i >= 0; {
+		id, j := sym(i), next(i)
+		c[w] = id // w <= i: this overwrites only cells already passed
 		w++
+		i = j
 	}
 	if n <= keepLong {
 		s.cells, s.tree = c, t.nodes
 	} else {
 		// Give a huge pre-token's room back once the caller is done with it.
-		s.cells, s.tree = nil, nil
+		s.cells, s.tree, s.base = nil, nil, nil
 	}
 	return c[:w]
 }
 
-// pairRank is rankOf's rank, with noPair for none.
-func (s *state) pairRank(a, b uint32) uint32 {
+// byteSyms returns the table that gives syms[i] as a function of p[i],
+// for every i but the first and the last, when there is one, else nil.
+// p and syms have the same length.
+func (s *state) byteSyms(p []byte, syms []uint32) *[256]uint32 {
+	tab := &s.byteSym
+	var set [256]bool
+	for i := 1; i+1 < len(p); i++ {
+		b := p[i]
+		if !set[b] {
+			tab[b], set[b] = syms[i], true
+		} else if tab[b] != syms[i] {
+			return nil
+		}
+	}
+	return tab
+}
+
+// cellRank is rankOf's rank as a first cell holds it, cellNoPair for none.
+func (s *state) cellRank(a, b uint32) uint32 {
 	if r, _ := s.rankOf(a, b); r != noRank {
 		return r
 	}
-	return noPair
+	return cellNoPair
 }
 
-const (
-	// deadCell, as a cell's rank, marks a cell that is not a token's
-	// first; noPair, a token's first cell whose pair with the next token
-	// has no merge (or that is the last). The symbol word is then free for
-	// the length, whatever ids a model uses (SentencePiece's noSym).
-	deadCell = noRank
-	noPair   = noRank - 1
-	// keepLong is the longest pre-token whose buffers a state keeps for
-	// the next one.
-	keepLong = 1 << 16
-)
+// keepLong is the longest pre-token whose buffers a state keeps for the
+// next one.
+const keepLong = 1 << 16
 
 func growU32(b []uint32, n int) []uint32 {
 	if cap(b) < n {
@@ -446,8 +520,9 @@ func growU32(b []uint32, n int) []uint32 {
 	return b[:n]
 }
 
-// blockBits sets the leaves of minTree: blocks of 16 cells.
-const blockBits = 4
+// blockBits sets the leaves of minTree: blocks of 32 cells (two cache
+// lines).
+const blockBits = 5
 
 // minTree is a binary tree over the ranks of mergeLong's cells: each leaf
 // at most the lowest rank of its block (a rank that grew is not
@@ -461,7 +536,7 @@ type minTree struct {
 }
 
 func newMinTree(buf []uint32, cells []uint32) minTree {
-	t := minTree{cells: cells, n: len(cells) / 2, leaves: 1}
+	t := minTree{cells: cells, n: len(cells), leaves: 1}
 	for t.leaves<<blockBits < t.n {
 		t.leaves *= 2
 	}
@@ -475,20 +550,18 @@ func newMinTree(buf []uint32, cells []uint32) minTree {
 	return t
 }
 
-// block returns the ranks of block b's cells, every other word from the
-// first.
+// block returns block b's cells.
 func (t *minTree) block(b int) []uint32 {
 	lo := min(b<<blockBits, t.n)
 	hi := min(lo+1<<blockBits, t.n)
-	return t.cells[2*lo : 2*hi]
+	return t.cells[lo:hi]
 }
 
 // blockMin returns the lowest rank in block b.
 func (t *minTree) blockMin(b int) uint32 {
 	m := uint32(noRank)
-	c := t.block(b)
-	for j := 1; j < len(c); j += 2 {
-		m = min(m, c[j])
+	for _, w := range t.block(b) {
+		m = min(m, w)
 	}
 	return m
 }
@@ -496,7 +569,7 @@ func (t *minTree) blockMin(b int) uint32 {
 // set sets the rank of cell i, lowering its leaf and their ancestors if
 // needed.
 func (t *minTree) set(i int, r uint32) {
-	t.cells[2*i+1] = r
+	t.cells[i] = r
 	for k := t.leaves + i>>blockBits; k >= 1 && t.nodes[k] > r; k >>= 1 {
 		t.nodes[k] = r
 	}
@@ -506,9 +579,9 @@ func (t *minTree) set(i int, r uint32) {
 func (t *minTree) find(b, i int, r uint32) int {
 	lo := b << blockBits
 	c := t.block(b)
-	for j := 2*(i-lo) + 1; j < len(c); j += 2 {
+	for j := i - lo; j < len(c); j++ {
 		if c[j] == r {
-			return lo + j/2
+			return lo + j
 		}
 	}
 	return -1
@@ -545,7 +618,7 @@ func (t *minTree) down(k int) int {
 func (t *minTree) min() (uint32, int) {
 	for {
 		r := t.nodes[1]
-		if r >= noPair {
+		if r >= cellNoPair {
 			return noRank, -1
 		}
 		b := t.down(1)

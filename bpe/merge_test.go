@@ -125,3 +125,36 @@ func TestMergeLongMatchesShortBundles(t *testing.T) {
 		}
 	}
 }
+
+// The three ways mergeTree finds a cell's starting symbol: read back from
+// the byte (every symbol one byte), from the byte after a longer first
+// symbol (Metaspace's mark), and kept beside the cells (characters of
+// several bytes), each against the plain scan.
+func TestMergeLongStartingSymbols(t *testing.T) {
+	v, _ := loadTestBundle(t, "metaspace-32k")
+	s := newState(v, 100)
+	rng := rand.New(rand.NewSource(13))
+	for _, n := range []int{2, 3, 60, 1 << blockBits, 3000} {
+		letters := make([]byte, n)
+		for i := range letters {
+			letters[i] = "abcde"[rng.Intn(5)]
+		}
+		mergeAgrees(t, s, letters)
+		mergeAgrees(t, s, append([]byte("▁"), letters...))
+		mergeAgrees(t, s, append(append([]byte("▁"), letters...), "é"...))
+		mergeAgrees(t, s, append(append([]byte("é"), letters...), "▁z"...))
+	}
+}
+
+// byteSyms finds the table when the bytes give the symbols, whatever the
+// ends hold, and refuses one byte that stands for two symbols.
+func TestByteSyms(t *testing.T) {
+	s := newState(Default(), 1)
+	tab := s.byteSyms([]byte("xabax"), []uint32{9, 1, 2, 1, 8})
+	if tab == nil || tab['a'] != 1 || tab['b'] != 2 {
+		t.Fatalf("byteSyms gave %v for consistent symbols", tab)
+	}
+	if tab := s.byteSyms([]byte("xabax"), []uint32{9, 1, 2, 3, 8}); tab != nil {
+		t.Fatal("byteSyms gave a table for 'a' as two symbols")
+	}
+}
