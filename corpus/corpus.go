@@ -211,7 +211,10 @@ type Skip struct {
 	Failed bool
 }
 
-// Item is one result of Read: exactly one of Doc and Skip is set.
+// Item is one result of Read: exactly one of Doc and Skip is set, but for
+// a record that Read passed over unread because it belongs to another
+// share of Options.Shard: that Item has neither, and only keeps the
+// record's place in the order of the items.
 type Item struct {
 	Doc  *Document
 	Skip *Skip
@@ -258,6 +261,10 @@ type Options struct {
 	// which it must never read: one met in a walk, or named, is left out
 	// as "output".
 	Written []fs.FileInfo
+	// Shard, when not the whole walk, lets Read pass over the records of
+	// a JSON Lines file that belong to other shares without decoding
+	// them (see Item); the items of Shard are read as without it.
+	Shard Shard
 }
 
 // Setting is a file a run reads as a setting rather than a document.

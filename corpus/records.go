@@ -65,7 +65,12 @@ func (r *reader) jsonl(in *bufio.Reader) error {
 			}
 		} else if rec = bytes.TrimSpace(rec); len(rec) > 0 {
 			records++
-			e := rs.add(line, rec)
+			var e error
+			if rs.passes(line) {
+				e = rs.pass()
+			} else {
+				e = rs.add(line, rec)
+			}
 			if e == errAsText && keep {
 				return r.text(io.MultiReader(bytes.NewReader(prefix), in), FormatJSONL, r.size, rs.textNote(rec))
 			}
@@ -125,6 +130,27 @@ type records struct {
 	heldFields string
 	// others is set once an item other than a held record was emitted.
 	others bool
+}
+
+// passes reports whether record n may be passed over unread: it belongs
+// to another share of Options.Shard, the file has been judged by its
+// first record, and nothing a later record holds can change how the items
+// of this share read. That last holds always for the default field, and
+// for an asked field once an item other than a held record has come: from
+// then on every held record becomes a skip of its own, in record order,
+// whatever the records after it hold.
+func (rs *records) passes(n int) bool {
+	sh := rs.r.opt.Shard
+	return !sh.Whole() && rs.seen && (rs.others || !rs.r.fieldAsked) && !sh.Owns(rs.r.in.Path, n)
+}
+
+// pass emits the place of a record passed over, after the held records
+// before it, which would have been emitted before it too.
+func (rs *records) pass() error {
+	if err := rs.flush(); err != nil {
+		return err
+	}
+	return rs.r.fn(Item{})
 }
 
 // errAsText is returned by records.add when the file is to be read as one

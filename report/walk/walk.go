@@ -51,6 +51,7 @@ func Shard[R any](paths []string, opt corpus.Options, share corpus.Shard, worker
 		workers = runtime.NumCPU()
 	}
 	inputs, skips := corpus.List(paths, opt)
+	opt.Shard = share
 	if prog != nil {
 		var total int64
 		for _, in := range inputs {
@@ -150,6 +151,9 @@ func Shard[R any](paths []string, opt corpus.Options, share corpus.Shard, worker
 		send := func(it corpus.Item) error {
 			here := at
 			at.Seq++
+			if it.Doc == nil && it.Skip == nil {
+				return nil // a record of another share, passed over unread
+			}
 			if src, rec := itemAt(it); !share.Owns(src, rec) {
 				closeStream(it)
 				return nil
