@@ -84,7 +84,7 @@ func init() {
 
 func encodePartial(p partial.Partial) ([]byte, error) {
 	var b bytes.Buffer
-	err := p.Write(&b)
+	err := p.Write(&b, false)
 	return b.Bytes(), err
 }
 
@@ -240,6 +240,9 @@ func (fn *weighFn) weigh(ctx context.Context, u Unit, p *partial.Partial) error 
 	add := func(it corpus.Item) error {
 		k := partial.Key{Src: u.Path, Seq: seq}
 		seq++
+		if it.Doc == nil && it.Skip == nil {
+			return nil // a record of another share, passed over unread
+		}
 		if it.Skip != nil {
 			if share.Owns(it.Skip.Source, it.Skip.Record) {
 				s := it.Skip
@@ -260,8 +263,8 @@ func (fn *weighFn) weigh(ctx context.Context, u Unit, p *partial.Partial) error 
 		item.Hash = d.Hash // a stream's is known once it is read
 		if err != nil {
 			item.Err = err.Error()
-		} else if item.Result, err = json.Marshal(w); err != nil {
-			return err
+		} else {
+			item.Result = survey.AppendWeight(nil, w)
 		}
 		p.Items = append(p.Items, item)
 		return nil
@@ -276,7 +279,9 @@ func (fn *weighFn) weigh(ctx context.Context, u Unit, p *partial.Partial) error 
 		return add(corpus.Item{Skip: &corpus.Skip{Source: u.Path, Reason: corpus.ReasonUnreadable, Detail: err.Error(), Failed: true}})
 	}
 	defer rc.Close()
-	return corpus.ReadStream(u.Path, u.Size, rc, fn.Cfg.options(), add)
+	opt := fn.Cfg.options()
+	opt.Shard = share
+	return corpus.ReadStream(u.Path, u.Size, rc, opt, add)
 }
 
 func (fn *weighFn) FinishBundle(_ context.Context, emit func([]byte)) error {
@@ -404,9 +409,9 @@ func replay(it partial.Item) (ci corpus.Item, w survey.Weight, failed, err error
 	if it.Err != "" {
 		return corpus.Item{Doc: d}, w, errors.New(it.Err), nil
 	}
-	if err := json.Unmarshal(it.Result, &w); err != nil {
+	w, err = survey.DecodeWeight(d, it.Result)
+	if err != nil {
 		return ci, w, nil, fmt.Errorf("%s: %w", report.Where(it.Src, it.Record), err)
 	}
-	w.Hash = it.Hash // not in the JSON row
 	return corpus.Item{Doc: d}, w, nil, nil
 }

@@ -29,7 +29,7 @@ func Read(in Input, opt Options, fn func(Item) error) error {
 }
 
 func newReader(in Input, opt Options, fn func(Item) error) *reader {
-	return &reader{in: in, opt: opt.withDefaults(), fn: fn, fieldAsked: opt.Field != "", columnAsked: opt.Column != ""}
+	return &reader{in: in, opt: opt.withDefaults(), fn: fn, fieldAsked: opt.Field != "", columnAsked: opt.Column != "", source: in.Path}
 }
 
 type reader struct {
@@ -50,6 +50,9 @@ type reader struct {
 	// fieldAsked and columnAsked tell whether Options named the field or
 	// column, rather than leaving the default.
 	fieldAsked, columnAsked bool
+	// source is the items' Source, by which Options.Shard chooses them:
+	// the input's path, or the name ReadStream gives them back.
+	source string
 	// stdinCloser, when set, is closed as the file would be once "-" is
 	// read (ReadStream's decompressor).
 	stdinCloser io.Closer

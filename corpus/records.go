@@ -141,7 +141,7 @@ type records struct {
 // whatever the records after it hold.
 func (rs *records) passes(n int) bool {
 	sh := rs.r.opt.Shard
-	return !sh.Whole() && rs.seen && (rs.others || !rs.r.fieldAsked) && !sh.Owns(rs.r.in.Path, n)
+	return !sh.Whole() && rs.seen && (rs.others || !rs.r.fieldAsked) && !sh.Owns(rs.r.source, n)
 }
 
 // pass emits the place of a record passed over, after the held records

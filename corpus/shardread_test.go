@@ -18,13 +18,19 @@ type placed struct {
 // readPlaced reads data as the input "big.jsonl" with opt and returns the
 // items that share owns, each with its place, as text; it fails on an item
 // passed over that share owns.
-func readPlaced(t *testing.T, data []byte, opt Options, share Shard) []placed {
+func readPlaced(t *testing.T, data []byte, opt Options, share Shard, stream bool) []placed {
 	t.Helper()
 	opt.Stdin = bytes.NewReader(data)
 	opt.Format = FormatJSONL
 	var out []placed
 	at := 0
-	err := Read(Input{Path: "-", Size: -1}, opt, func(it Item) error {
+	read := func(fn func(Item) error) error { return Read(Input{Path: "-", Size: -1}, opt, fn) }
+	if stream { // another name, which the shares go by
+		read = func(fn func(Item) error) error {
+			return ReadStream("exports/big.jsonl", -1, bytes.NewReader(data), opt, fn)
+		}
+	}
+	err := read(func(it Item) error {
 		here := at
 		at++
 		switch {
@@ -63,10 +69,12 @@ func sameShardRead(t *testing.T, data []byte, field string, n int) {
 	t.Helper()
 	for k := 1; k <= n; k++ {
 		share := Shard{K: k, N: n}
-		want := readPlaced(t, data, Options{Field: field, MaxRecord: 64}, share)
-		got := readPlaced(t, data, Options{Field: field, MaxRecord: 64, Shard: share}, share)
-		if !reflect.DeepEqual(got, want) {
-			t.Fatalf("field %q, share %v: the items differ from a whole read's\n got %v\nwant %v", field, share, got, want)
+		for _, stream := range []bool{false, true} {
+			want := readPlaced(t, data, Options{Field: field, MaxRecord: 64}, share, stream)
+			got := readPlaced(t, data, Options{Field: field, MaxRecord: 64, Shard: share}, share, stream)
+			if !reflect.DeepEqual(got, want) {
+				t.Fatalf("field %q, share %v, ReadStream %v: the items differ from a whole read's\n got %v\nwant %v", field, share, stream, got, want)
+			}
 		}
 	}
 }

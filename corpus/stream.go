@@ -19,7 +19,7 @@ func ReadStream(name string, size int64, r io.Reader, opt Options, fn func(Item)
 	named := func(it Item) error {
 		if it.Doc != nil {
 			it.Doc.Source = name
-		} else {
+		} else if it.Skip != nil {
 			it.Skip.Source = name
 		}
 		return fn(it)
@@ -72,5 +72,6 @@ func ReadStream(name string, size int64, r io.Reader, opt Options, fn func(Item)
 	opt.Stdin = body
 	rd := newReader(Input{Path: "-", Size: size}, opt, named)
 	rd.stdinCloser = closer
+	rd.source = name
 	return rd.run()
 }

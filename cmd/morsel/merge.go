@@ -97,7 +97,7 @@ partial instead, for a merge in stages; it may hold only some of the shards.`,
 	f.String("frame", "", "the frame file, where it is now (its contents must be the shards' own)")
 	f.String("targets", "", "the targets file, where it is now (its contents must be the shards' own)")
 	f.String("terms", "", "the glossary, where it is now (its contents must be the shards' own)")
-	f.StringVarP(&output, "output", "o", "", "with --format partial: write the merged partial to this file (default: standard output)")
+	f.StringVarP(&output, "output", "o", "", "with --format partial: write the merged partial to this file, gzip-compressed if its name ends in .gz (default: standard output)")
 	f.BoolVar(&force, "force", false, "with --output: replace an existing file")
 	return c
 }
@@ -119,14 +119,14 @@ func flagName(arg string) string {
 // empty).
 func (sh *shared) writeMerged(c *cobra.Command, m *partial.Partial, output string, force bool, inputs []string) error {
 	if output == "" {
-		return m.Write(sh.stdout)
+		return m.Write(sh.stdout, false)
 	}
 	o, err := sh.createOutput("merge", "--output", output, force, nil, inputs)
 	if err != nil {
 		return err
 	}
 	defer o.Abort()
-	if err := m.Write(o); err != nil {
+	if err := m.Write(o, compressed(output)); err != nil {
 		return &inputError{fmt.Errorf("--output %s: %w", output, err)}
 	}
 	if err := o.Commit(); err != nil {

@@ -17,7 +17,11 @@ func shardRun(t *testing.T, dir string, n int, cmd string, args ...string) []str
 	t.Helper()
 	var parts []string
 	for k := 1; k <= n; k++ {
-		p := filepath.Join(dir, fmt.Sprintf("%s-%d-of-%d.gz", cmd, k, n))
+		ext := ".gz" // compressed, and every other one plain
+		if k%2 == 0 {
+			ext = ".part"
+		}
+		p := filepath.Join(dir, fmt.Sprintf("%s-%d-of-%d%s", cmd, k, n, ext))
 		line := append([]string{cmd}, args...)
 		line = append(line, "--shard", fmt.Sprintf("%d/%d", k, n), "--format", "partial", "-o", p, "-q")
 		if _, errs, code := run(t, "", line...); code != 0 && code != 1 {
@@ -164,11 +168,19 @@ func TestMergeRefusals(t *testing.T) {
 	cut := filepath.Join(dir, "cut.gz")
 	b, _ := os.ReadFile(three[0])
 	os.WriteFile(cut, b[:len(b)/2], 0o644)
+	// A partial of version 1, gzip-compressed JSON Lines.
+	v1 := filepath.Join(dir, "v1.gz")
+	var gzb strings.Builder
+	zw := gzip.NewWriter(&gzb)
+	zw.Write([]byte(`{"h":{"format":"morsel-partial","version":1,"command":"survey","shards":[1],"of":1}}` + "\n"))
+	zw.Close()
+	os.WriteFile(v1, []byte(gzb.String()), 0o644)
 	for _, c := range []struct {
 		args []string
 		want string
 	}{
 		{[]string{three[0], three[1]}, "shard 3 of 3 missing"},
+		{[]string{v1}, "v1.gz: partial report version 1; this build reads version 2 only: write the partials again with this build"},
 		{[]string{three[0], three[1], three[1], three[2]}, "both hold shard 2/3"},
 		{[]string{three[0], fit[1], three[2]}, "one is a survey report, the other a fit report"},
 		{[]string{three[0], onced[1], three[2]}, "they differ in --once: false and true"},

@@ -35,7 +35,7 @@ func addShardFlags(sh *shared, c *cobra.Command, cf *corpusFlags) {
 	cf.shard = &shardFlags{cmd: c}
 	f := c.Flags()
 	f.StringVar(&cf.shard.shard, "shard", "", "walk only share K of N (K/N, such as 3/8): a stable hash of each document's source and record picks its share")
-	f.StringVarP(&cf.shard.output, "output", "o", "", "with --format partial: write the partial report to this file (default: standard output)")
+	f.StringVarP(&cf.shard.output, "output", "o", "", "with --format partial: write the partial report to this file, gzip-compressed if its name ends in .gz (default: standard output)")
 	if f.Lookup("force") == nil {
 		f.Bool("force", false, "with --output: replace an existing file")
 	}
@@ -160,7 +160,7 @@ func writePartial[R any](sh *shared, cf *corpusFlags, paths []string, opt corpus
 	}
 	defer commit(false)
 	opt.Written = cf.written
-	pw, err := partial.NewWriter(out, h)
+	pw, err := partial.NewWriter(out, h, compressed(cf.shard.output))
 	if err != nil {
 		return err
 	}
@@ -255,6 +255,10 @@ func (sh *shared) partialOutput(cf *corpusFlags, paths []string) (w interface{ W
 		return nil
 	}, nil
 }
+
+// compressed reports whether a partial written to name is gzip-compressed:
+// when the name ends in ".gz".
+func compressed(name string) bool { return strings.HasSuffix(name, ".gz") }
 
 // errPartial ends a command once its walk has written the partial report
 // (err is the walk's outcome): the report itself is not made.

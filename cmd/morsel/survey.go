@@ -78,12 +78,8 @@ be read; the report still covers all the rest.`,
 			skipped, err := walkDocs(sh, &cf, args, work, collector[survey.Weight]{
 				add:    func(_ *corpus.Document, w survey.Weight) error { return sv.Add(w) },
 				tokens: func(w survey.Weight) int { return w.Tokens },
-				decode: func(d *corpus.Document, raw []byte) (survey.Weight, error) {
-					var w survey.Weight
-					err := json.Unmarshal(raw, &w)
-					w.Hash = d.Hash // not in the JSON row
-					return w, err
-				},
+				encode: func(w survey.Weight) ([]byte, error) { return survey.AppendWeight(nil, w), nil },
+				decode: survey.DecodeWeight,
 				tables: func(pw *partial.Writer) error {
 					if w, head, ok := sampler.Kept(); ok {
 						return pw.Row(sampleTable, sampleRow{w, head})

@@ -2,23 +2,21 @@
 // shard of a walk found, kept whole so that partials merge into exactly the
 // report a single run gives.
 //
-// A partial is a gzip-compressed JSON Lines file (docs/partial-format.md
-// gives its schema): a header line that names the command, the shards it
-// covers and what every partial of one run must agree on; one line for each
-// walk item (a document's result, or a skip) with its place in the walk's
-// order; the rows of the command's tables (the fragments word tallies); and
-// an end line that counts the lines before it, so that a cut file is
-// refused. Merging sorts the items back into the walk's order, and the
-// command replays them into the aggregation a single run uses.
+// A partial (docs/partial-format.md gives its schema) is a magic line and
+// then frames: a header (JSON) that names the command, the shards it
+// covers and what every partial of one run must agree on; one binary
+// frame for each walk item (a document's result, or a skip) with its place
+// in the walk's order; the rows of the command's tables (the fragments
+// word tallies, JSON); and an end frame that counts the frames before it,
+// so that a cut file is refused. The whole may be gzip-compressed. Merging
+// sorts the items back into the walk's order, and the command replays
+// them into the aggregation a single run uses.
 package partial
 
 import (
-	"bufio"
-	"compress/gzip"
 	"encoding/json"
 	"errors"
 	"fmt"
-	"io"
 	"sort"
 	"strconv"
 	"strings"
@@ -28,7 +26,7 @@ import (
 // package writes and the only one it reads.
 const (
 	Magic   = "morsel-partial"
-	Version = 1
+	Version = 2
 )
 
 // Header describes a partial.
@@ -61,9 +59,9 @@ type Header struct {
 // Source with "/" before any other byte (the order a walk of folders in
 // name order gives), then by Seq.
 type Key struct {
-	In  int    `json:"in"`  // the input's place in the listing; -1 for skips found while listing
-	Seq int    `json:"seq"` // the item's place among the items of its input
-	Src string `json:"src"` // the source, as walked
+	In  int    // the input's place in the listing; -1 for skips found while listing
+	Seq int    // the item's place among the items of its input
+	Src string // the source, as walked
 }
 
 // Less reports whether a comes before b.
@@ -71,8 +69,8 @@ func (a Key) Less(b Key) bool {
 	if a.In != b.In {
 		return a.In < b.In
 	}
-	if c := comparePaths(a.Src, b.Src); c != 0 {
-		return c < 0
+	if a.Src != b.Src {
+		return comparePaths(a.Src, b.Src) < 0
 	}
 	return a.Seq < b.Seq
 }
@@ -101,28 +99,30 @@ func comparePaths(a, b string) int {
 
 // Skip is why an item was not counted.
 type Skip struct {
-	Reason string `json:"reason"`
-	Detail string `json:"detail,omitempty"`
-	Failed bool   `json:"failed,omitempty"`
+	Reason string
+	Detail string
+	Failed bool
 }
 
 // Item is one walk item: a document with its result (or the error its
 // work gave), or a skip.
 type Item struct {
 	Key
-	Record int `json:"rec"`
+	Record int
 	// Line is a CSV or TSV row's first line.
-	Line   int    `json:"line,omitempty"`
-	Format string `json:"fmt,omitempty"`
+	Line   int
+	Format string
 	// Hash is the document's content hash (XXH64 of its text), by which
 	// a merge finds repeated texts across shards.
-	Hash uint64 `json:"hash,omitempty"`
+	Hash uint64
 	// Skip is set for an input or record that the walk did not read.
-	Skip *Skip `json:"skip,omitempty"`
+	Skip *Skip
 	// Err is set for a document whose work failed.
-	Err string `json:"err,omitempty"`
-	// Result is the command's result for the document, as JSON.
-	Result json.RawMessage `json:"r,omitempty"`
+	Err string
+	// Result is the command's result for the document, in the command's
+	// encoding (survey's is binary, the others' JSON; see
+	// docs/partial-format.md).
+	Result []byte
 }
 
 // Partial is a whole partial in memory.
@@ -152,175 +152,10 @@ func New(command string, k, n int, inputs string, agree map[string]string) *Part
 
 // lineDocs is the header's Lines.
 var lineDocs = map[string]string{
-	"h":   "header: format, version, command, shards of of, inputs, agree, lines, args, paths",
-	"i":   "item: in, seq, src (its place in the walk), rec, line, fmt, hash, skip {reason, detail, failed} or err or r (the command's result for the document)",
-	"t":   "table row: t (table name), r (the row)",
-	"end": "end: items, rows (by table), summary (the command's totals of this partial)",
-}
-
-// Line is one line of a partial.
-type line struct {
-	H   *Header         `json:"h,omitempty"`
-	I   *Item           `json:"i,omitempty"`
-	T   string          `json:"t,omitempty"`
-	R   json.RawMessage `json:"r,omitempty"`
-	End *end            `json:"end,omitempty"`
-}
-
-type end struct {
-	Items   int             `json:"items"`
-	Rows    map[string]int  `json:"rows"`
-	Summary json.RawMessage `json:"summary,omitempty"`
-}
-
-// Write writes p to w.
-func (p *Partial) Write(w io.Writer) error {
-	pw, err := NewWriter(w, p.Header)
-	if err != nil {
-		return err
-	}
-	for i := range p.Items {
-		if err := pw.Item(&p.Items[i]); err != nil {
-			return err
-		}
-	}
-	for _, name := range sortedNames(p.Tables) {
-		for _, r := range p.Tables[name] {
-			if err := pw.RawRow(name, r); err != nil {
-				return err
-			}
-		}
-	}
-	return pw.Close(p.Summary)
-}
-
-func sortedNames(m map[string][]json.RawMessage) []string {
-	var names []string
-	for n := range m {
-		names = append(names, n)
-	}
-	sort.Strings(names)
-	return names
-}
-
-// A Writer writes a partial line by line, so that a shard's items need not
-// all be held.
-type Writer struct {
-	zw    *gzip.Writer
-	bw    *bufio.Writer
-	enc   *json.Encoder
-	items int
-	rows  map[string]int
-}
-
-// NewWriter writes the header h to w and returns a Writer for the rest.
-func NewWriter(w io.Writer, h Header) (*Writer, error) {
-	h.Format, h.Version, h.Lines = Magic, Version, lineDocs
-	zw, _ := gzip.NewWriterLevel(w, gzip.BestSpeed)
-	bw := bufio.NewWriterSize(zw, 64<<10)
-	pw := &Writer{zw: zw, bw: bw, enc: json.NewEncoder(bw), rows: map[string]int{}}
-	pw.enc.SetEscapeHTML(false)
-	return pw, pw.enc.Encode(line{H: &h})
-}
-
-// Item writes one item.
-func (w *Writer) Item(it *Item) error {
-	w.items++
-	return w.enc.Encode(line{I: it})
-}
-
-// Row writes one row of the table name.
-func (w *Writer) Row(name string, row any) error {
-	b, err := json.Marshal(row)
-	if err != nil {
-		return fmt.Errorf("partial: table %s: %w", name, err)
-	}
-	return w.RawRow(name, b)
-}
-
-// RawRow writes one row, already JSON, of the table name.
-func (w *Writer) RawRow(name string, row json.RawMessage) error {
-	w.rows[name]++
-	return w.enc.Encode(line{T: name, R: row})
-}
-
-// Close writes the end line with the command's summary (JSON, or nil) and
-// flushes the stream. It does not close the underlying writer.
-func (w *Writer) Close(summary json.RawMessage) error {
-	if err := w.enc.Encode(line{End: &end{Items: w.items, Rows: w.rows, Summary: summary}}); err != nil {
-		return err
-	}
-	if err := w.bw.Flush(); err != nil {
-		return err
-	}
-	return w.zw.Close()
-}
-
-// Read reads a whole partial; name is used in errors ("name:line: ...").
-func Read(r io.Reader, name string) (*Partial, error) {
-	zr, err := gzip.NewReader(r)
-	if err != nil {
-		return nil, fmt.Errorf("%s: not a partial report (%v)", name, err)
-	}
-	defer zr.Close()
-	sc := bufio.NewScanner(zr)
-	sc.Buffer(make([]byte, 0, 64<<10), 1<<30)
-	p := &Partial{Tables: map[string][]json.RawMessage{}}
-	n := 0
-	var fin *end
-	for sc.Scan() {
-		n++
-		where := name + ":" + strconv.Itoa(n)
-		if fin != nil {
-			return nil, fmt.Errorf("%s: data after the end line", where)
-		}
-		var l line
-		if err := json.Unmarshal(sc.Bytes(), &l); err != nil {
-			return nil, fmt.Errorf("%s: %v", where, err)
-		}
-		switch {
-		case n == 1:
-			if l.H == nil {
-				return nil, fmt.Errorf("%s: not a partial report: the first line is not a header", where)
-			}
-			if err := l.H.check(); err != nil {
-				return nil, fmt.Errorf("%s: %w", where, err)
-			}
-			p.Header = *l.H
-		case l.H != nil:
-			return nil, fmt.Errorf("%s: a second header", where)
-		case l.I != nil:
-			if l.I.Skip == nil && l.I.Err == "" && l.I.Result == nil {
-				return nil, fmt.Errorf("%s: an item with neither a result, an error nor a skip", where)
-			}
-			p.Items = append(p.Items, *l.I)
-		case l.T != "":
-			p.Tables[l.T] = append(p.Tables[l.T], l.R)
-		case l.End != nil:
-			fin = l.End
-		default:
-			return nil, fmt.Errorf("%s: a line of no known kind", where)
-		}
-	}
-	if err := sc.Err(); err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
-	}
-	if n == 0 {
-		return nil, fmt.Errorf("%s: empty partial report", name)
-	}
-	if fin == nil {
-		return nil, fmt.Errorf("%s: cut short: no end line after line %d", name, n)
-	}
-	if fin.Items != len(p.Items) {
-		return nil, fmt.Errorf("%s: the end line counts %d items, the file holds %d", name, fin.Items, len(p.Items))
-	}
-	for t, rows := range p.Tables {
-		if fin.Rows[t] != len(rows) {
-			return nil, fmt.Errorf("%s: the end line counts %d rows of table %s, the file holds %d", name, fin.Rows[t], t, len(rows))
-		}
-	}
-	p.Summary = fin.Summary
-	return p, nil
+	"h": "header (JSON): format, version, command, shards of of, inputs, agree, lines, args, paths",
+	"i": "item (binary, docs/partial-format.md): flags, in, seq, src, rec, line, fmt, hash, then skip {reason, detail} or err or r (the command's result for the document)",
+	"t": "table row: the table's name, then the row (JSON)",
+	"e": "end (JSON): items, rows (by table), summary (the command's totals of this partial)",
 }
 
 func (h *Header) check() error {
@@ -328,7 +163,7 @@ func (h *Header) check() error {
 		return fmt.Errorf("not a partial report (format %q)", h.Format)
 	}
 	if h.Version != Version {
-		return fmt.Errorf("partial report version %d; this build reads version %d", h.Version, Version)
+		return versionError(h.Version)
 	}
 	if h.Of < 1 || len(h.Shards) == 0 {
 		return errors.New("the header names no shard")
@@ -397,11 +232,6 @@ func sortedKeys(a, b map[string]string) []string {
 	return keys
 }
 
-// Sort puts the items in the order of a single run.
-func (p *Partial) Sort() {
-	sort.SliceStable(p.Items, func(i, j int) bool { return p.Items[i].Key.Less(p.Items[j].Key) })
-}
-
 // Merge merges the partials of shards of one run into one, items in the
 // order of a single run. It fails, naming the partials by names, when two
 // are not of one run, when a shard is held twice, or, with whole, when
@@ -426,7 +256,9 @@ func Merge(ps []*Partial, names []string, whole bool) (*Partial, error) {
 			owner[k] = names[i]
 			m.Header.Shards = append(m.Header.Shards, k)
 		}
-		m.Combine(p)
+		for t, rows := range p.Tables {
+			m.Tables[t] = append(m.Tables[t], rows...)
+		}
 	}
 	sort.Ints(m.Header.Shards)
 	if whole && len(m.Header.Shards) != first.Of {
@@ -438,6 +270,6 @@ func Merge(ps []*Partial, names []string, whole bool) (*Partial, error) {
 		}
 		return nil, fmt.Errorf("shard %s of %d missing: the merged report would not be the whole run", strings.Join(missing, ", "), first.Of)
 	}
-	m.Sort()
+	m.Items = mergeItems(ps)
 	return m, nil
 }

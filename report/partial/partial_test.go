@@ -2,6 +2,8 @@ package partial
 
 import (
 	"bytes"
+	"compress/gzip"
+	"encoding/binary"
 	"encoding/json"
 	"math/rand"
 	"reflect"
@@ -15,54 +17,93 @@ func sample(k, n int) *Partial {
 	p := New("survey", k, n, "sha256:in", map[string]string{"vocabulary": "sha256:v"})
 	p.Items = []Item{
 		{Key: Key{In: -1, Seq: 0, Src: "missing.txt"}, Skip: &Skip{Reason: "unreadable", Detail: "no such file", Failed: true}},
-		{Key: Key{In: 0, Seq: 0, Src: "a.jsonl"}, Record: 1, Format: "jsonl", Result: json.RawMessage(`{"tokens":3}`)},
+		{Key: Key{In: 0, Seq: 0, Src: "a.jsonl"}, Record: 1, Format: "jsonl", Hash: 1<<63 + 5, Result: []byte{3, 0, 200, 1}},
 		{Key: Key{In: 0, Seq: 1, Src: "a.jsonl"}, Record: 2, Format: "jsonl", Err: "stream cut"},
+		{Key: Key{In: 0, Seq: 2, Src: "a.jsonl"}, Record: 3, Skip: &Skip{Reason: "empty", Detail: "line 3: field \"text\" is empty"}},
+		{Key: Key{In: 1, Seq: 0, Src: "b.csv"}, Record: 4, Line: 9, Format: "csv", Result: []byte(`{"tokens":3}`)},
+		{Key: Key{In: 2, Seq: 0, Src: "\xffodd name"}, Result: []byte{}},
 	}
 	p.Tables["words"] = []json.RawMessage{json.RawMessage(`["alpha",2]`), json.RawMessage(`["beta",1]`)}
 	p.Summary = json.RawMessage(`{"documents":1}`)
 	return p
 }
 
-func encode(t *testing.T, p *Partial) []byte {
+func encode(t testing.TB, p *Partial, compress bool) []byte {
 	t.Helper()
 	var b bytes.Buffer
-	if err := p.Write(&b); err != nil {
+	if err := p.Write(&b, compress); err != nil {
 		t.Fatal(err)
 	}
 	return b.Bytes()
 }
 
 func TestRoundTrip(t *testing.T) {
-	p := sample(2, 7)
-	q, err := Read(bytes.NewReader(encode(t, p)), "a.partial")
-	if err != nil {
-		t.Fatal(err)
-	}
-	if !reflect.DeepEqual(p, q) {
-		t.Fatalf("read back\n%+v\nwrote\n%+v", q, p)
+	for _, compress := range []bool{false, true} {
+		p := sample(2, 7)
+		b := encode(t, p, compress)
+		if gz := len(b) > 2 && b[0] == 0x1f && b[1] == 0x8b; gz != compress {
+			t.Errorf("compress %v: gzip stream %v", compress, gz)
+		}
+		q, err := Read(bytes.NewReader(b), "a.partial")
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(p, q) {
+			t.Fatalf("compress %v: read back\n%+v\nwrote\n%+v", compress, q, p)
+		}
 	}
 }
 
+// frames builds a partial's bytes from the magic line and raw frames.
+func frames(magic string, fs ...string) []byte {
+	b := []byte(magic)
+	for _, f := range fs {
+		b = append(b, f[0])
+		b = binary.AppendUvarint(b, uint64(len(f)-1))
+		b = append(b, f[1:]...)
+	}
+	return b
+}
+
+func gzipped(t *testing.T, b []byte) []byte {
+	var out bytes.Buffer
+	zw := gzip.NewWriter(&out)
+	zw.Write(b)
+	zw.Close()
+	return out.Bytes()
+}
+
 func TestReadRefuses(t *testing.T) {
-	good := encode(t, sample(1, 2))
-	cut := good[:len(good)-12]
+	good := encode(t, sample(1, 2), false)
+	const magic = "morsel-partial 2\n"
+	header := `h{"format":"morsel-partial","version":2,"command":"survey","shards":[1],"of":1}`
+	endOne := `e{"items":1}`
 	other := sample(1, 2)
 	other.Header.Version = 99
-	var plain bytes.Buffer
-	plain.WriteString(`{"h":{"format":"morsel-partial"}}`)
+	otherHeader, _ := json.Marshal(other.Header)
 	for _, c := range []struct {
 		name string
 		data []byte
 		want string
 	}{
-		{"cut", cut, "x.partial"},
-		{"not gzip", plain.Bytes(), "not a partial report"},
-		{"version", encodeRaw(t, other), "version 99"},
+		{"cut", good[:len(good)-12], "x.partial: frame"},
+		{"not a partial", []byte("plain text\n"), "not a partial report"},
+		{"bad gzip", []byte{0x1f, 0x8b, 1, 2}, "not a partial report"},
 		{"empty", nil, "not a partial report"},
-		{"no end", gz(t, `{"h":{"format":"morsel-partial","version":1,"command":"survey","shards":[1],"of":1}}`+"\n"), "cut short"},
-		{"bad count", gz(t, `{"h":{"format":"morsel-partial","version":1,"command":"survey","shards":[1],"of":1}}`+"\n"+`{"end":{"items":2}}`+"\n"), "counts 2 items"},
-		{"bad shard", gz(t, `{"h":{"format":"morsel-partial","version":1,"command":"survey","shards":[3],"of":2}}`+"\n"), "bad shard list"},
-		{"junk line", gz(t, `{"h":{"format":"morsel-partial","version":1,"command":"survey","shards":[1],"of":1}}`+"\n{nope\n"), "x.partial:2"},
+		{"version 1", gzipped(t, []byte(`{"h":{"format":"morsel-partial","version":1,"command":"survey"}}`+"\n")), "version 1; this build reads version 2 only"},
+		{"magic version", frames("morsel-partial 3\n"), "version 3; this build reads version 2"},
+		{"header version", frames(magic, "h"+string(otherHeader)), "version 99"},
+		{"no header", frames(magic, endOne), "first frame is not a header"},
+		{"no end", frames(magic, header), "cut short"},
+		{"bad count", frames(magic, header, `e{"items":2}`), "counts 2 items"},
+		{"bad shard", frames(magic, `h{"format":"morsel-partial","version":2,"command":"survey","shards":[3],"of":2}`), "bad shard list"},
+		{"unknown frame", frames(magic, header, "zjunk"), "x.partial: frame 2: a frame of no known kind"},
+		{"item kinds", frames(magic, header, "i\x07\x00\x00\x00\x00\x00\x00"+strings.Repeat("\x00", 8), endOne), "frame 2: an item that is not one"},
+		{"item cut", frames(magic, header, "i\x08\x00\x00\x02a", endOne), "frame 2: item 1: cut short"},
+		{"skip tail", frames(magic, header, "i\x31\x00\x00\x00\x00"+strings.Repeat("\x00", 8)+"\x01r\x00xx", endOne), "bytes after the skip"},
+		{"row", frames(magic, header, "t\x05words{nope", endOne), "table words: a row that is not JSON"},
+		{"after end", frames(magic, header, `e{"items":0}`, `e{"items":0}`), "data after the end frame"},
+		{"huge frame", append(frames(magic, header), 'i', 0xff, 0xff, 0xff, 0xff, 0x0f), "past the largest"},
 	} {
 		_, err := Read(bytes.NewReader(c.data), "x.partial")
 		if err == nil || !strings.Contains(err.Error(), c.want) {
@@ -71,24 +112,24 @@ func TestReadRefuses(t *testing.T) {
 	}
 }
 
-// encodeRaw writes p without the Writer's fixing of format and version.
-func encodeRaw(t *testing.T, p *Partial) []byte {
-	h, _ := json.Marshal(line{H: &p.Header})
-	return gz(t, string(h)+"\n"+`{"end":{"items":0}}`+"\n")
-}
-
-func gz(t *testing.T, s string) []byte {
-	var b bytes.Buffer
-	w, err := NewWriter(&b, Header{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	// Replace what NewWriter wrote with the raw text.
-	b.Reset()
-	w.zw.Reset(&b)
-	w.zw.Write([]byte(s))
-	w.zw.Close()
-	return b.Bytes()
+// FuzzRead feeds damaged partials to Read: it refuses or reads, and what
+// it reads writes back to the same partial.
+func FuzzRead(f *testing.F) {
+	f.Add(encode(f, sample(1, 2), false))
+	f.Add(encode(f, sample(2, 3), true))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		p, err := Read(bytes.NewReader(data), "fuzz")
+		if err != nil {
+			return
+		}
+		q, err := Read(bytes.NewReader(encode(t, p, false)), "again")
+		if err != nil {
+			t.Fatalf("a partial read back does not read again: %v", err)
+		}
+		if !reflect.DeepEqual(p, q) {
+			t.Fatalf("read, written and read again:\n%+v\n%+v", q, p)
+		}
+	})
 }
 
 func TestMergeRefuses(t *testing.T) {
@@ -122,7 +163,7 @@ func TestMergeRefuses(t *testing.T) {
 			t.Errorf("%s: error %v, want one saying %q", c.name, err, c.want)
 		}
 	}
-	if m, err := Merge([]*Partial{b, a}, names, true); err != nil || !reflect.DeepEqual(m.Header.Shards, []int{1, 2}) || len(m.Items) != 6 {
+	if m, err := Merge([]*Partial{b, a}, names, true); err != nil || !reflect.DeepEqual(m.Header.Shards, []int{1, 2}) || len(m.Items) != 12 {
 		t.Errorf("merge of both shards: %v, %+v", err, m)
 	}
 	if _, err := Merge([]*Partial{a}, names[:1], false); err != nil {
@@ -204,4 +245,40 @@ func sign(x int) int {
 		return 1
 	}
 	return 0
+}
+
+// Merging the shards' items, each run in order or not, gives the order a
+// full sort gives.
+func TestMergeItemsIsSort(t *testing.T) {
+	rng := rand.New(rand.NewSource(3))
+	for _, k := range []int{1, 2, 3, 7, 16, 40} {
+		var all []Item
+		for i := 0; i < 500; i++ {
+			all = append(all, Item{Key: Key{In: rng.Intn(4) - 1, Seq: rng.Intn(50), Src: []string{"a", "a/b", "a-b", "a.b", "b"}[rng.Intn(5)]}, Record: i})
+		}
+		ps := make([]*Partial, k)
+		for i := range ps {
+			ps[i] = &Partial{}
+		}
+		for _, it := range all {
+			p := ps[rng.Intn(k)]
+			p.Items = append(p.Items, it)
+		}
+		for i, p := range ps {
+			if i%3 != 2 { // every third left out of order
+				p.Sort()
+			}
+		}
+		want := &Partial{Items: append([]Item(nil), all...)}
+		want.Sort()
+		got := mergeItems(ps)
+		if len(got) != len(all) {
+			t.Fatalf("%d runs: %d items, want %d", k, len(got), len(all))
+		}
+		for i := range got {
+			if got[i].Key != want.Items[i].Key {
+				t.Fatalf("%d runs: item %d is %+v, a sort gives %+v", k, i, got[i].Key, want.Items[i].Key)
+			}
+		}
+	}
 }

@@ -57,9 +57,14 @@ func Weigh(enc *bpe.Encoder, d *corpus.Document) (Weight, error) {
 	w.Hash = d.Hash // a stream's is known once it is read to its end
 	w.Bytes, w.Chars, w.WCWords = tc.Bytes, tc.Chars, tc.WCWords
 	w.Tokens, w.Specials = st.Tokens, st.Specials
+	w.ratios()
+	return w, nil
+}
+
+// ratios sets the ratios, which follow from the counts.
+func (w *Weight) ratios() {
 	w.BytesPerToken = report.Round2(report.Per(float64(w.Bytes), float64(w.Tokens)))
 	w.TokensPerWCWord = report.Round2(report.Per(float64(w.Tokens), float64(w.WCWords)))
-	return w, nil
 }
 
 // Totals sums a survey.
