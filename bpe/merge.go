@@ -250,6 +250,9 @@ func (s *state) count(p []byte) int {
 }
 
 func (s *state) rankOf(a, b uint32) (rank, merged uint32) {
+	if p := s.v.pairs; p != nil {
+		return p.get(a, b)
+	}
 	if rm, ok := s.v.merges.get(pairKey(a, b)); ok {
 		return uint32(rm >> 32), uint32(rm)
 	}

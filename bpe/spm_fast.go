@@ -97,6 +97,18 @@ func (sp *spmModel) prepareFast(v *Vocab) {
 		sp.charID[c] = id
 	}
 	v.merges = sp.ranks
+	// The ASCII characters start most merges of most texts: their pairs
+	// get the compact table's dense square.
+	v.pairs = newPairTable(&v.merges)
+	if v.pairs != nil {
+		var hot []uint32
+		for _, s := range sp.asciiSym {
+			if s != noSym {
+				hot = append(hot, s)
+			}
+		}
+		v.pairs.setHot(hot)
+	}
 	// A one-byte pre-token is one character: its id is looked up, not
 	// merged (merge.go's shortcut).
 	for b := range 256 {

@@ -23,6 +23,7 @@ type Vocab struct {
 	tokens   [][]byte    // id -> raw bytes
 	byteID   [256]uint32 // byte value -> id of its one-byte token
 	merges   u64table    // left<<32|right -> rank<<32|merged id
+	pairs    *pairTable  // merges in compact form, when they fit (pairs.go)
 	nMerges  int
 	specials []Special
 	window   int

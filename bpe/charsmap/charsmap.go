@@ -9,7 +9,6 @@
 package charsmap
 
 import (
-	"bytes"
 	"encoding/binary"
 	"errors"
 	"fmt"
@@ -25,6 +24,7 @@ type Map struct {
 	units  []uint32 // the double array
 	pool   []byte   // replacement strings, each ended by a NUL
 	starts [256]bool
+	inKeys [256]bool // the bytes some key holds
 	ascii  [128]asciiRule
 	rules  int
 }
@@ -120,7 +120,8 @@ func (m *Map) check() error {
 				m.starts[c] = true
 			}
 
-			if hasLeaf(m.units[q]) {
+			leaf := hasLeaf(m.units[q])
+			if leaf {
 				if err := m.checkValue(m.units[child], child); err != nil {
 					return 0, err
 				}
@@ -131,6 +132,9 @@ func (m *Map) check() error {
 				return 0, err
 			}
 			total += k
+			if leaf || k > 0 {
+				m.inKeys[c] = true
+			}
 		}
 		state[p], keys[p] = done, total
 		return total, nil
@@ -305,13 +309,7 @@ func (m *Map) Alone(s []byte) (repl []byte, n int, alone bool) {
 }
 
 // KeysHold reports whether some rule's key holds the byte b.
-func (m *Map) KeysHold(b byte) bool {
-	found := false
-	m.each(func(key, _ []byte) {
-		found = found || bytes.IndexByte(key, b) >= 0
-	})
-	return found
-}
+func (m *Map) KeysHold(b byte) bool { return m.inKeys[b] }
 
 // each calls fn with every rule's key and replacement, in trie order.
 func (m *Map) each(fn func(key, repl []byte)) {

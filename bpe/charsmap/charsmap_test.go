@@ -147,6 +147,31 @@ func TestRulesMatchReferenceDecompile(t *testing.T) {
 	}
 }
 
+// KeysHold, from the walk that checks the trie, agrees with the keys each
+// lists.
+func TestKeysHoldMatchesKeys(t *testing.T) {
+	f := loadCases(t)
+	for _, want := range f.Maps {
+		m := testMaps(t, f)[want.Model]
+		var held [256]bool
+		m.each(func(key, _ []byte) {
+			for _, b := range key {
+				held[b] = true
+			}
+		})
+		for b := range 256 {
+			if m.KeysHold(byte(b)) != held[b] {
+				t.Errorf("%s: KeysHold(%#x) = %v, the keys say %v", want.Model, b, m.KeysHold(byte(b)), held[b])
+			}
+		}
+		// NFKC folds characters such as U+2122 (0xe2 0x84 0xa2) to others
+		// (Unicode compatibility mappings, from memory).
+		if !held[0xe2] && m.Len() > 1000 {
+			t.Errorf("%s: no key holds 0xe2 among %d rules", want.Model, m.Len())
+		}
+	}
+}
+
 func TestNormalizeMatchesReference(t *testing.T) {
 	f := loadCases(t)
 	for _, mc := range f.Maps {
