@@ -78,6 +78,7 @@ flag when it reaches --min-pieces.`,
 				return err
 			}
 			paceGrowingHeap()
+			sh.boundWords(int64(memory))
 			fr := fragments.NewFragmenter(enc, terms)
 			fr.SetMemory(int64(memory))
 			skipped, err := walkDocs(sh, &cf, args, fr.Scan, collector[*fragments.DocWords]{

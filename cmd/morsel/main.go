@@ -48,6 +48,19 @@ func (sh *shared) boundMemory() {
 	}
 }
 
+// boundWords sets the soft heap limit of fragments under a --memory bound
+// on its word tables: a quarter more, and a constant for the rest (the
+// encoder, the batches, the summary that takes over past the bound),
+// makes the collector work harder as the heap nears the bound instead of
+// letting it grow by half again (growingGC). A merge's tables take every
+// shard's words whatever the bound, so it runs without the limit.
+func (sh *shared) boundWords(bound int64) {
+	if sh.replay != nil || bound <= 0 || os.Getenv("GOMEMLIMIT") != "" {
+		return
+	}
+	debug.SetMemoryLimit(bound + bound/4 + 128<<20)
+}
+
 // growingGC is the garbage collector's GOGC for fragments, whose heap is
 // mostly word tables without pointers, cheap to mark: collecting at half
 // the live heap's growth instead of all of it lowers the peak memory (215

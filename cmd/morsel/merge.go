@@ -63,7 +63,7 @@ partial instead, for a merge in stages; it may hold only some of the shards.`,
 			visit := func(f *pflag.Flag) {
 				if f.Changed {
 					switch f.Name {
-					case "output", "force", "cpuprofile":
+					case "output", "force", "cpuprofile", "memprofile":
 						return
 					}
 					given[f.Name] = true

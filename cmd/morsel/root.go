@@ -111,6 +111,9 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
 	var cpuprofile string
 	pf.StringVar(&cpuprofile, "cpuprofile", "", "write a CPU profile to this file (for development)")
 	pf.MarkHidden("cpuprofile")
+	var memprofile string
+	pf.StringVar(&memprofile, "memprofile", "", "write a heap profile to this file when the command ends (for development)")
+	pf.MarkHidden("memprofile")
 	var profFile *os.File
 	root.PersistentPreRunE = func(c *cobra.Command, args []string) error {
 		if err := checkFloors(c); err != nil {
@@ -132,6 +135,9 @@ With no --vocab it uses the embedded GPT-2 vocabulary (50,257 tokens, 1,024-toke
 		if profFile != nil {
 			pprof.StopCPUProfile()
 			profFile.Close()
+		}
+		if memprofile != "" {
+			writeHeapProfile(memprofile)
 		}
 	}
 	root.AddCommand(newPieces(sh), newSurvey(sh))
@@ -301,4 +307,20 @@ func (sh *shared) progress() walk.Progress {
 		return w
 	}
 	return &screen.Meter{W: f, Columns: columns, Every: 100 * time.Millisecond}
+}
+
+// writeHeapProfile writes the heap as of the last garbage collection to
+// path, for go tool pprof; a failure is only reported, as the command's
+// own work is done.
+func writeHeapProfile(path string) {
+	f, err := os.Create(path)
+	if err == nil {
+		err = pprof.WriteHeapProfile(f)
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+	}
+	if err != nil {
+		fmt.Fprintf(os.Stderr, "morsel: --memprofile: %v\n", err)
+	}
 }

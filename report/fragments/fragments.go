@@ -1,11 +1,14 @@
 package fragments
 
 import (
+	"bytes"
 	"fmt"
+	"io"
 	"math"
 	"slices"
 	"sort"
 	"sync"
+	"sync/atomic"
 	"unicode/utf8"
 
 	"github.com/rivo/uniseg"
@@ -81,6 +84,10 @@ type Fragmenter struct {
 	summary      *tally.Summary // the words once the tables passed the bound
 	bound        int64          // the tables' bound in bytes, 0 for none
 	distinctSeen int            // distinct words when the tables gave way
+
+	partMu      sync.Mutex   // held by the one large document being flushed in parts
+	stamps      uint32       // the stamps given to such documents, under partMu
+	failedWords atomic.Int64 // words of documents that failed after a part was flushed
 
 	docs     []DocFertility
 	totals   Totals
@@ -180,24 +187,41 @@ func (f *Fragmenter) Scan(d *corpus.Document) (*DocWords, error) {
 		return f.ScanText(text)
 	}
 	defer d.Stream.Close()
+	return f.scanLarge(d.Stream)
+}
+
+// scanLarge scans one large document from r in windows, into a batch of
+// its own. The batch is flushed when the document has been read to its
+// end, so that one that fails part way (a read error, past
+// --max-document) has tallied nothing; but a document whose own words
+// outgrow partBytes is flushed in parts as it is read, so that its
+// distinct words never wait whole in memory, and if it then fails, the
+// words of its flushed parts stay counted and the report says how many.
+func (f *Fragmenter) scanLarge(r io.Reader) (*DocWords, error) {
 	sh := f.getShard()
 	defer f.putShard(sh)
-	// The document's words go to a batch of its own, flushed only once
-	// the whole stream is read: one that fails part way (a read error, past
-	// --max-document) has tallied nothing.
 	kept := sh.local
 	sh.local = tally.NewBatch(len(f.info))
 	defer func() { sh.local = kept }()
 	dw := &DocWords{}
 	var fc fertility
+	var parts inParts
+	defer parts.end(f)
 	sh.doc++ // one document for the batch, whatever its windows
-	_, err := f.enc.Windows(d.Stream, scanWindow, func(w []byte, _ bool) error {
+	_, err := f.enc.Windows(r, scanWindow, func(w []byte, _ bool) error {
 		if len(w) > math.MaxInt32 {
 			return fmt.Errorf("a %d-byte stretch without white space is more than fragments handles in one piece (2 GiB)", len(w))
 		}
-		return f.scanWindow(sh, dw, w, &fc)
+		if err := f.scanWindow(sh, dw, w, &fc); err != nil {
+			return err
+		}
+		if sh.local.Bytes() > f.partBytes() {
+			parts.flush(f, sh.local, fc.total())
+		}
+		return nil
 	})
 	if err != nil {
+		f.failedWords.Add(parts.words)
 		return nil, err
 	}
 	f.flush(sh.local)
@@ -205,8 +229,14 @@ func (f *Fragmenter) Scan(d *corpus.Document) (*DocWords, error) {
 	return dw, nil
 }
 
-// scanWindow is how much of a streamed document Scan tokenizes at a time.
-var scanWindow = 8 << 20 // a variable, so that a test can cut a small text into many windows
+// scanWindow is how much of a large document Scan tokenizes at a time:
+// small enough that a window's new words, which its batch holds until the
+// window ends, add little to partBytes.
+var scanWindow = 1 << 20 // a variable, so that a test can cut a small text into many windows
+
+// largeText is the size above which ScanText reads a text in windows, as
+// it does a Stream, into a batch of its own.
+const largeText = 8 << 20
 
 // ScanText scans one text: it tallies its words and returns its fertility.
 // It fails, having tallied nothing, when the encoder's tokens do not spell
@@ -214,6 +244,9 @@ var scanWindow = 8 << 20 // a variable, so that a test can cut a small text into
 func (f *Fragmenter) ScanText(text []byte) (*DocWords, error) {
 	if len(text) > math.MaxInt32 {
 		return nil, fmt.Errorf("a %d-byte document is more than fragments handles in one piece (2 GiB); split it first (morsel ration)", len(text))
+	}
+	if len(text) > largeText && f.terms == nil {
+		return f.scanLarge(bytes.NewReader(text))
 	}
 	sh := f.getShard()
 	defer f.putShard(sh)
@@ -298,6 +331,15 @@ func (f *Fragmenter) finishDoc(sh *shard, dw *DocWords, fc *fertility) {
 // fertility counts a document's words and their pieces by script.
 type fertility struct {
 	words, pieces, one [measure.NumScripts]int64
+}
+
+// total returns the words counted.
+func (fc *fertility) total() int64 {
+	var n int64
+	for _, w := range fc.words {
+		n += w
+	}
+	return n
 }
 
 func (fc *fertility) add(sc measure.Script, n int) {

@@ -21,9 +21,7 @@ func WriteHTML(w io.Writer, r *Report, docRows int) error {
 			render.Num(t.Words), render.Num(t.Documents), render.Num(t.DistinctWords), render.Num(t.Qualifying), r.Options.MinPieces),
 		Facts: render.VocabFacts(r.Vocabulary.Name, r.Vocabulary.Size, r.Vocabulary.Window),
 	}
-	if t.Approximate {
-		p.Notes = append(p.Notes, approximateNote(t))
-	}
+	p.Notes = append(p.Notes, notes(t)...)
 	p.Sections = append(p.Sections, render.Section{
 		ID: "glance", Heading: "At a glance",
 		Cards: render.Cards(totals(r)),

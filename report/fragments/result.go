@@ -102,6 +102,11 @@ type Totals struct {
 	Approximate bool  `json:"approximate,omitempty"`
 	Counters    int   `json:"counters,omitempty"`
 	CountError  int64 `json:"count_error,omitempty"`
+	// FailedWords counts the words of large documents that failed part
+	// way (listed in Skipped) after some of their words had been flushed
+	// into the word counts, where those stay: a document whose own words
+	// outgrow a part of --memory is counted in parts as it is read.
+	FailedWords int64 `json:"failed_document_words,omitempty"`
 }
 
 // Report is the report of morsel fragments.
@@ -136,6 +141,7 @@ func (f *Fragmenter) Finish(opt Options, skipped []report.Skipped) *Report {
 			t.Failed++
 		}
 	}
+	t.FailedWords = f.failedWords.Load()
 	words, distinct := f.wordSource()
 	if f.summary != nil {
 		t.Approximate, t.Counters, t.CountError = true, f.summary.Counters(), f.summary.MaxErr()

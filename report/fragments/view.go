@@ -145,9 +145,7 @@ func totals(r *Report) []render.Measure {
 func savingGrid(r *Report) *render.Grid {
 	g := render.TotalsGrid(totals(r))
 	g.Notes = append(g.Notes, "The saving is an upper bound: it assumes each listed word became one token in every context.")
-	if r.Totals.Approximate {
-		g.Notes = append(g.Notes, approximateNote(r.Totals))
-	}
+	g.Notes = append(g.Notes, notes(r.Totals)...)
 	return g
 }
 

@@ -3,15 +3,18 @@ package fragments
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"io"
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
 	"testing"
 	"testing/iotest"
 
 	"morsel/corpus"
 	"morsel/report/internal/reporttest"
+	"morsel/report/render"
 )
 
 // windowText is the demo's documents joined, in many scripts and with
@@ -92,5 +95,83 @@ func TestScanFailingStreamTalliesNothing(t *testing.T) {
 	}
 	if rep := fr.Finish(Options{MinPieces: 1, MinCount: 1}, nil); rep.Totals.DistinctWords != 0 || len(rep.Words) != 0 {
 		t.Fatalf("%d distinct words tallied from a document that failed", rep.Totals.DistinctWords)
+	}
+}
+
+// TestScanInPartsKeepsDocumentCounts scans large documents that share
+// their words, two at once and each flushed in many parts, beside short
+// ones, and wants the report of the same documents each scanned whole and
+// flushed once: a word met in many parts of one document still counts
+// that document once.
+func TestScanInPartsKeepsDocumentCounts(t *testing.T) {
+	defer func(w int, p int64) { scanWindow, partLimit = w, p }(scanWindow, partLimit)
+	scanWindow = 4 << 10
+	text := windowText(t)
+	for i := 0; i < 4000; i++ {
+		text = fmt.Appendf(text, " qz%dv", i%700) // words that come back in later parts
+	}
+	enc := reporttest.Encoder(t)
+	run := func(parts int64) []byte {
+		partLimit = parts
+		fr := NewFragmenter(enc, nil)
+		var wg sync.WaitGroup
+		dws := make([]*DocWords, 4)
+		for d := range dws {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				var err error
+				if d%2 == 0 {
+					dws[d], err = fr.Scan(&corpus.Document{Source: "big.txt", Stream: io.NopCloser(bytes.NewReader(text))})
+				} else {
+					dws[d], err = fr.ScanText([]byte("a short qz5v note"))
+				}
+				if err != nil {
+					t.Error(err)
+				}
+			}()
+		}
+		wg.Wait()
+		for d, dw := range dws {
+			fr.AddWords("doc.txt", d+1, dw)
+		}
+		b, err := json.Marshal(fr.Finish(Options{MinPieces: 1, MinCount: 1}, nil))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return b
+	}
+	whole, parts := run(1<<40), run(1)
+	if !bytes.Equal(whole, parts) {
+		t.Fatalf("the report of documents flushed in parts differs from the whole documents' (%d and %d bytes of JSON)", len(parts), len(whole))
+	}
+	if !bytes.Contains(whole, []byte(`"word":"qz5v","script":"Latin","count":14,"documents":4`)) {
+		t.Fatalf("qz5v is not counted in 4 documents: %.300s", whole[bytes.Index(whole, []byte("qz5v"))-10:])
+	}
+}
+
+// TestScanFailingInPartsSaysSo reads a large stream that fails after some
+// of its parts were flushed, and wants the report to say how many of its
+// words stay counted.
+func TestScanFailingInPartsSaysSo(t *testing.T) {
+	defer func(w int, p int64) { scanWindow, partLimit = w, p }(scanWindow, partLimit)
+	scanWindow, partLimit = 4<<10, 1
+	text := windowText(t)[:40<<10]
+	fr := NewFragmenter(reporttest.Encoder(t), nil)
+	r := io.MultiReader(bytes.NewReader(text), iotest.ErrReader(io.ErrUnexpectedEOF))
+	if _, err := fr.Scan(&corpus.Document{Source: "cut.txt", Stream: io.NopCloser(r)}); err == nil {
+		t.Fatal("a stream that fails read as whole")
+	}
+	rep := fr.Finish(Options{MinPieces: 1, MinCount: 1}, nil)
+	var counted int64
+	for _, w := range rep.Words {
+		counted += w.Count
+	}
+	if rep.Totals.FailedWords == 0 || rep.Totals.FailedWords > counted {
+		t.Fatalf("failed_document_words %d, with %d occurrences listed", rep.Totals.FailedWords, counted)
+	}
+	var out bytes.Buffer
+	if err := Write(&out, render.Table, rep, 10); err != nil || !strings.Contains(out.String(), "failed part way") {
+		t.Fatalf("the table does not say the words of a failed document stay counted (%v):\n%s", err, out.String())
 	}
 }

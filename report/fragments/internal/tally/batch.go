@@ -23,6 +23,7 @@ type Batch struct {
 	spill  []batchSpill
 	pieces uint64 // the pieces of every occurrence in the batch
 	epoch  uint64 // flushes so far, plus one: what byToken entries are good for
+	stamp  uint32 // the document's stamp, when the batch holds one document flushed in parts (see SetStamp)
 	// byToken finds, by token id, the entry of the word that token is
 	// alone, as tokenTag (see there).
 	byToken []uint32
@@ -231,6 +232,21 @@ func (b *Batch) carry(wi uint32, sp *batchSplit) {
 	sp.count = 0
 }
 
+// SetStamp marks the batch as holding one document alone, flushed in parts
+// as it is scanned, under stamp (not 0, and unique to the document among
+// the batches flushed into the same tables while it lasts). A flush then
+// counts the document for a word only if no earlier flush of the same
+// stamp has: so a document of many millions of distinct words need not
+// wait whole in the batch. Two documents flushed in parts must not
+// interleave their flushes, since a word keeps the last stamp alone.
+func (b *Batch) SetStamp(stamp uint32) { b.stamp = stamp }
+
+// Bytes returns about how much memory the batch holds.
+func (b *Batch) Bytes() int64 {
+	return int64(cap(b.index))*8 + int64(cap(b.words))*64 + int64(cap(b.hashes))*8 + int64(cap(b.bytes)) +
+		int64(cap(b.ids))*4 + int64(cap(b.spill))*16 + int64(cap(b.part)) + int64(cap(b.order)+cap(b.at))*4
+}
+
 // Full reports whether the batch is due to be flushed. The caller asks
 // between documents.
 func (b *Batch) Full() bool {
@@ -295,7 +311,12 @@ func (b *Batch) Flush(ts *Tables) {
 				at[i] = wi
 				w := t.at(wi)
 				w.count += int64(lw.count)
-				w.docs += int64(lw.docs)
+				if b.stamp == 0 {
+					w.docs += int64(lw.docs)
+				} else if w.stamp != b.stamp {
+					w.docs += int64(lw.docs)
+					w.stamp = b.stamp
+				}
 				for j := range lw.splits {
 					sp := &lw.splits[j]
 					if sp.n == 0 {
@@ -345,7 +366,7 @@ func (b *Batch) FlushSummary(s *Summary) {
 			pieces += int64(len(sp.IDs)) * sp.Count
 			splits = append(splits, sp)
 		}
-		s.add(b.bytes[lw.off:lw.off+lw.n], int64(lw.count), pieces, int64(lw.docs), splits, 0)
+		s.add(b.bytes[lw.off:lw.off+lw.n], int64(lw.count), pieces, int64(lw.docs), splits, 0, b.stamp)
 	}
 	s.mu.Unlock()
 	b.reset()

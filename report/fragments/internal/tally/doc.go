@@ -14,7 +14,11 @@
 //   - A document is scanned within one batch: a batch is flushed only
 //     between documents (the caller calls Flush when Full says so, never
 //     in the middle of a document). A word's document count rests on it,
-//     since a batch counts a document once per word by its number.
+//     since a batch counts a document once per word by its number. The
+//     one exception is a batch that holds one large document alone,
+//     stamped (SetStamp) and flushed in parts: a word keeps the stamp of
+//     the last such batch that counted it, and one such document at a
+//     time flushes in parts.
 //   - Batches flush between documents, and all of them before the tables
 //     are read: the tables then hold every word, whichever worker scanned
 //     it, and their counts do not depend on the order of the flushes.
@@ -29,7 +33,7 @@
 //   - Counts are exact at any size: the tables count in 64 bits; a batch
 //     counts a word in 64 bits and a split in 32, and a split count that
 //     reaches 2^32-1 is carried to the batch's spill list and starts again
-//     from zero (a streamed document of many gigabytes is one batch).
+//     from zero (a document of many gigabytes may be one batch).
 //   - Offsets are 32 bits, which bounds the bytes of distinct words and
 //     the ids of uncommon splits that a batch, or a partition of the
 //     tables, holds to 4 GiB. Full reports a batch past 2 GiB of either, so

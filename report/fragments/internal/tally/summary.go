@@ -1,6 +1,7 @@
 package tally
 
 import (
+	"cmp"
 	"iter"
 	"slices"
 	"sync"
@@ -33,6 +34,7 @@ type summaryEntry struct {
 	pieces, docs int64
 	splits       []Split
 	heapAt       int32
+	stamp        uint32 // as a tally's: see Batch.SetStamp
 }
 
 // NewSummary returns a summary of k counters (at least 1).
@@ -68,16 +70,23 @@ func (s *Summary) MaxErr() int64 {
 func (s *Summary) Add(word []byte, count, pieces, docs int64, splits []Split) {
 	s.mu.Lock()
 	defer s.mu.Unlock()
-	s.add(word, count, pieces, docs, splits, 0)
+	s.add(word, count, pieces, docs, splits, 0, 0)
 }
 
-func (s *Summary) add(word []byte, count, pieces, docs int64, splits []Split, floor int64) {
+// add counts word as Add does; floor is the count it starts from when it
+// takes a counter, and stamp the batch's (see Batch.SetStamp).
+func (s *Summary) add(word []byte, count, pieces, docs int64, splits []Split, floor int64, stamp uint32) {
 	s.total += count
 	if i, ok := s.byWord[string(word)]; ok {
 		e := &s.entries[i]
 		e.count += count
 		e.pieces += pieces
-		e.docs += docs
+		if stamp == 0 {
+			e.docs += docs
+		} else if e.stamp != stamp {
+			e.docs += docs
+			e.stamp = stamp
+		}
 		e.addSplits(splits)
 		s.fix(int(e.heapAt))
 		return
@@ -86,7 +95,7 @@ func (s *Summary) add(word []byte, count, pieces, docs int64, splits []Split, fl
 		i := int32(len(s.entries))
 		s.entries = append(s.entries, summaryEntry{heapAt: int32(len(s.heap))})
 		s.heap = append(s.heap, i)
-		s.fill(i, word, count+floor, pieces, docs, splits, floor)
+		s.fill(i, word, count+floor, pieces, docs, splits, floor, stamp)
 		s.up(len(s.heap) - 1)
 		return
 	}
@@ -94,18 +103,18 @@ func (s *Summary) add(word []byte, count, pieces, docs int64, splits []Split, fl
 	old := &s.entries[i]
 	c := old.count
 	delete(s.byWord, old.word)
-	s.fill(i, word, c+count, pieces, docs, splits, c)
+	s.fill(i, word, c+count, pieces, docs, splits, c, stamp)
 	s.fix(0)
 }
 
 // fill puts word in counter i with count, over-counted by at most err.
-func (s *Summary) fill(i int32, word []byte, count, pieces, docs int64, splits []Split, err int64) {
+func (s *Summary) fill(i int32, word []byte, count, pieces, docs int64, splits []Split, err int64, stamp uint32) {
 	e := &s.entries[i]
 	rate := 0.0
 	if count-err > 0 {
 		rate = float64(pieces) / float64(count-err)
 	}
-	*e = summaryEntry{word: string(word), count: count, err: err, docs: docs, heapAt: e.heapAt}
+	*e = summaryEntry{word: string(word), count: count, err: err, docs: docs, heapAt: e.heapAt, stamp: stamp}
 	e.pieces = pieces + int64(float64(err)*rate+0.5)
 	e.addSplits(splits)
 	s.byWord[e.word] = i
@@ -164,36 +173,49 @@ func (s *Summary) fix(j int) {
 // SummaryOf moves the words of ts into a summary of k counters: the k most
 // frequent exactly, the rest dropped. A dropped word counted again later
 // is over-counted by at most the smallest count kept, which bounds its
-// true count before, so every count stays an upper bound.
+// true count before, so every count stays an upper bound. It empties ts
+// as it goes, a partition at a time, so that the summary grows as the
+// tables shrink; ts must not be used after.
 func SummaryOf(ts *Tables, k int) *Summary {
 	s := NewSummary(k)
 	type ref struct {
 		count int64
-		w     Word
+		part  int32
+		i     int32
 	}
-	keep := make([]ref, 0, min(k, ts.Len()))
+	keep := make([]ref, 0, min(2*k, ts.Len())+1)
 	var dropped int64
-	for w := range ts.All() {
-		keep = append(keep, ref{w.Count(), w})
-		if len(keep) > 4*k { // trim now and then, so that this list stays near k
-			slices.SortStableFunc(keep, func(a, b ref) int { return int(min(max(b.count-a.count, -1), 1)) })
-			for _, r := range keep[k:] {
-				dropped += r.count
-			}
-			keep = keep[:k]
-		}
-	}
-	slices.SortStableFunc(keep, func(a, b ref) int { return int(min(max(b.count-a.count, -1), 1)) })
-	if len(keep) > k {
+	trim := func() {
+		slices.SortStableFunc(keep, func(a, b ref) int { return cmp.Compare(b.count, a.count) })
 		for _, r := range keep[k:] {
 			dropped += r.count
 		}
 		keep = keep[:k]
 	}
+	for p := range ts.parts {
+		t := &ts.parts[p]
+		for i := range t.nwords {
+			keep = append(keep, ref{t.at(i).count, int32(p), i})
+			if len(keep) > 2*k { // trim now and then, so that this list stays near k
+				trim()
+			}
+		}
+	}
+	if len(keep) > k {
+		trim()
+	}
+	// Partition by partition, in the order each saw its words.
+	slices.SortFunc(keep, func(a, b ref) int { return cmp.Or(cmp.Compare(a.part, b.part), cmp.Compare(a.i, b.i)) })
 	s.mu.Lock()
 	defer s.mu.Unlock()
-	for _, r := range keep {
-		s.add(r.w.Bytes(), r.w.Count(), r.w.Pieces(), r.w.Docs(), r.w.Splits(), 0)
+	next := 0
+	for p := range ts.parts {
+		t := &ts.parts[p]
+		for ; next < len(keep) && keep[next].part == int32(p); next++ {
+			w := Word{t: t, w: t.at(keep[next].i)}
+			s.add(w.Bytes(), w.Count(), w.Pieces(), w.Docs(), w.Splits(), 0, w.stamp())
+		}
+		t.release()
 	}
 	s.total += dropped
 	return s
@@ -208,6 +230,14 @@ func (s *Summary) All() iter.Seq[Word] {
 			}
 		}
 	}
+}
+
+// stamp returns the stamp of the last batch that counted a document for w.
+func (w Word) stamp() uint32 {
+	if w.e != nil {
+		return w.e.stamp
+	}
+	return w.w.stamp
 }
 
 // Len returns the words the summary holds.

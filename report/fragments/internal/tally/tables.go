@@ -57,7 +57,7 @@ type wordTally struct {
 	count, pieces int64
 	docs          int64
 	more          int32    // 1 + the index of the word's further splits in more, or 0
-	_             uint32   // pads the tally to 64 bytes
+	stamp         uint32   // the stamp of the last batch that counted a document for it (see Batch.SetStamp)
 	split         splitRef // the first split seen
 }
 
@@ -180,6 +180,11 @@ func (w Word) Splits() []Split {
 		}
 	}
 	return out
+}
+
+// release lets the memory of t go; t is empty after.
+func (t *table) release() {
+	t.index, t.chunks, t.nwords, t.arena, t.idArena, t.more = wordIndex{}, nil, 0, nil, nil, nil
 }
 
 // at returns tally i of t.
