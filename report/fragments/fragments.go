@@ -15,7 +15,6 @@ import (
 
 	"morsel/bpe"
 	"morsel/corpus"
-	"morsel/report"
 	"morsel/report/fragments/internal/tally"
 	"morsel/report/measure"
 	"morsel/report/walk"
@@ -89,7 +88,7 @@ type Fragmenter struct {
 	stamps      uint32       // the stamps given to such documents, under partMu
 	failedWords atomic.Int64 // words of documents that failed after a part was flushed
 
-	docs     []DocFertility
+	docs     DocList
 	totals   Totals
 	all      ScriptTally
 	byScript [measure.NumScripts]ScriptTally
@@ -119,7 +118,7 @@ type pendingTerm struct{ term, start, end int }
 // NewFragmenter returns a fragmenter that encodes with enc and looks for
 // the glossary terms (none when terms is nil).
 func NewFragmenter(enc *bpe.Encoder, terms []Term) *Fragmenter {
-	f := &Fragmenter{enc: enc, terms: terms, docs: []DocFertility{}, free: make(chan *shard, 256), words: &tally.Tables{}}
+	f := &Fragmenter{enc: enc, terms: terms, free: make(chan *shard, 256), words: &tally.Tables{}}
 	f.info = tokenTables(enc.Vocab())
 	if len(terms) > 0 {
 		f.byFirst = map[string][]int{}
@@ -678,9 +677,7 @@ func (f *Fragmenter) AddWords(source string, record int, dw *DocWords) {
 	for i := range dw.ByScript {
 		f.byScript[i].add(dw.ByScript[i])
 	}
-	f.docs = append(f.docs, DocFertility{Source: source, SourceBytes: report.SourceBytes(source), Record: record, Tokens: dw.Tokens, Words: dw.All.Words,
-		WordTokens: dw.All.Tokens, Fertility: report.Round2(report.Per(float64(dw.All.Tokens), float64(dw.All.Words))),
-		OneTokenShare: round4(report.Per(float64(dw.All.OneToken), float64(dw.All.Words)))})
+	f.docs.add(source, record, dw.Tokens, dw.All)
 	for i, t := range dw.terms {
 		if t.count > 0 {
 			a := &f.termAgg[i]

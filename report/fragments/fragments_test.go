@@ -200,7 +200,7 @@ func TestFragmentsByHand(t *testing.T) {
 		fe.ByScript[0].Script != "Latin" || fe.ByScript[0].OneToken != 3 {
 		t.Errorf("fertility %+v", fe)
 	}
-	if d := fe.Documents; len(d) != 2 || d[0].Tokens != 11 || d[0].Words != 5 || d[0].WordTokens != 11 || d[1].Fertility != 3.5 {
+	if d := slices.Collect(fe.Documents.All()); len(d) != 2 || d[0].Tokens != 11 || d[0].Words != 5 || d[0].WordTokens != 11 || d[1].Fertility != 3.5 {
 		t.Errorf("documents %+v", d)
 	}
 

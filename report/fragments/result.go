@@ -51,7 +51,7 @@ type Fertility struct {
 	TokensPerWord float64           `json:"tokens_per_word"`
 	OneTokenShare float64           `json:"one_token_share"`
 	ByScript      []ScriptFertility `json:"by_script"`
-	Documents     []DocFertility    `json:"documents"`
+	Documents     DocList           `json:"documents"`
 }
 
 // TermReport is how one glossary term fares.

@@ -3,7 +3,6 @@ package fragments
 import (
 	"fmt"
 	"io"
-	"sort"
 	"strings"
 
 	"morsel/report"
@@ -30,7 +29,7 @@ func readableParts(pieces [][]byte) []string {
 // word table alone.
 func Write(w io.Writer, f render.Format, r *Report, docRows int) error {
 	if f == render.JSON {
-		return render.WriteJSON(w, r)
+		return writeJSON(w, r)
 	}
 	words := fragmentGrid(r, f)
 	if f == render.CSV {
@@ -161,15 +160,13 @@ func scriptGrid(r *Report) *render.Grid {
 }
 
 func docFertilityGrid(r *Report, rows int) *render.Grid {
-	docs := append([]DocFertility(nil), r.Fertility.Documents...)
-	sort.SliceStable(docs, func(i, j int) bool { return docs[i].Fertility > docs[j].Fertility })
+	docs := r.Fertility.Documents.mostFertile(rows)
 	g := &render.Grid{Sources: true, Title: "Documents by tokens per UAX #29 word", Header: []string{"document", "words", "tokens", "tokens/word", "one-token words"}, Right: []int{1, 2, 3, 4}}
-	for i, d := range docs {
-		if rows > 0 && i == rows {
-			g.Notes = append(g.Notes, fmt.Sprintf("... and %s more documents (--doc-rows 0 lists all; --format json gives every one)", render.Num(len(docs)-rows)))
-			break
-		}
+	for _, d := range docs {
 		g.AddRow(report.Where(d.Source, d.Record), render.Num(d.Words), render.Num(d.WordTokens), render.Ratio(float64(d.WordTokens), float64(d.Words)), render.Percent(d.OneTokenShare, 1))
+	}
+	if n := r.Fertility.Documents.Len(); len(docs) < n {
+		g.Notes = append(g.Notes, fmt.Sprintf("... and %s more documents (--doc-rows 0 lists all; --format json gives every one)", render.Num(n-len(docs))))
 	}
 	return g
 }

@@ -5,6 +5,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
+	"strconv"
 	"strings"
 
 	"morsel/internal/screen"
@@ -212,6 +214,18 @@ func WriteJSON(w io.Writer, v any) error {
 	enc.SetIndent("", "  ")
 	enc.SetEscapeHTML(false)
 	return enc.Encode(v)
+}
+
+// AppendJSONFloat appends x as encoding/json writes it: the shortest
+// decimal that reads back as x, without an exponent from 1e-6 to 1e21.
+// The rare others go through encoding/json itself, which fails on NaN and
+// the infinities, as JSON cannot hold them.
+func AppendJSONFloat(b []byte, x float64) ([]byte, error) {
+	if a := math.Abs(x); a != 0 && (a < 1e-6 || a >= 1e21) || math.IsNaN(x) || math.IsInf(x, 0) {
+		j, err := json.Marshal(x)
+		return append(b, j...), err
+	}
+	return strconv.AppendFloat(b, x, 'f', -1, 64), nil
 }
 
 // WriteGrids renders grids one after another in a text format (table, csv

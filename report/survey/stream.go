@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"strconv"
 
 	"morsel/bpe"
@@ -117,7 +116,7 @@ func (rs *RowStream) appendRow(b []byte, d Weight) ([]byte, error) {
 		b = append(b, ","+in+`"`...)
 		b = append(b, f.name...)
 		b = append(b, `": `...)
-		if b, err = appendFloat(b, f.x); err != nil {
+		if b, err = render.AppendJSONFloat(b, f.x); err != nil {
 			return b, err
 		}
 	}
@@ -143,17 +142,6 @@ func (rs *RowStream) quoted(last *quotedString, s string) ([]byte, error) {
 type quotedString struct {
 	s    string
 	json []byte
-}
-
-// appendFloat appends x as encoding/json does: the shortest decimal that
-// reads back as x, without an exponent between 1e-6 and 1e21; the rare
-// others go through encoding/json itself.
-func appendFloat(b []byte, x float64) ([]byte, error) {
-	if a := math.Abs(x); a != 0 && (a < 1e-6 || a >= 1e21) || math.IsNaN(x) {
-		j, err := json.Marshal(x)
-		return append(b, j...), err
-	}
-	return strconv.AppendFloat(b, x, 'f', -1, 64), nil
 }
 
 // Finish writes the rest of the survey s, whose rows were all written,
