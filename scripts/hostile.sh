@@ -83,6 +83,10 @@ seq 1 200000 | gzip >"$work/big.txt.gz"
 head -c 100000 "$work/big.txt.gz" >"$work/trunc-large.txt.gz"
 seq 1 100 | gzip | head -c 100 >"$work/trunc-small.txt.gz"
 python3 -c "print('['*100000 + ']'*100000)" >"$work/deep.json" 2>/dev/null || printf '[[[[' >"$work/deep.json"
+# One 9 MB document of 1M distinct words: past --memory 16MiB its words go
+# to the summary in parts, never gathered whole (400 MB before).
+awk 'BEGIN { srand(3); for (i = 0; i < 1000000; i++) { w = ""; for (j = 0; j < 8; j++) w = w sprintf("%c", 97 + int(rand() * 26)); printf "%s ", w } print "" }' >"$work/distinct.txt"
+seq 1 100000 | sed 's/.*/{"text": "the keeper counts boat &"}/' >"$work/records.jsonl"
 
 run "emit into the walked folder" 0 30 300 '$M ration d --budget 200 --emit d/plan.jsonl --hidden --quiet >/dev/null && $M ration d --budget 200 --emit d/plan.jsonl --hidden --quiet --force' \
 	'test $(ls -A d | wc -l) = 3 && ! grep -q plan.jsonl d/plan.jsonl'
@@ -121,6 +125,8 @@ run "hostile file names, csv" 0 10 300 'cd names && $M survey . --quiet --format
 run "gzip cut short, small and large" 1 10 300 '$M survey trunc-small.txt.gz trunc-large.txt.gz --format json --quiet' \
 	'test $(grep -c "\"reason\": \"truncated\"" out) = 2'
 run "JSON nested 100,000 deep" 1 10 300 '$M survey deep.json --quiet'
+run "fragments, 1M new words, 16MiB" 0 60 200 '$M fragments distinct.txt --memory 16MiB --quiet' 'grep -q "Counts are approximate" out'
+run "fragments of 100k records, JSON" 0 60 100 '$M fragments records.jsonl --format json --quiet' 'test $(grep -c "\"record\": " out) = 100000'
 
 if [[ $quick == 0 ]]; then
 	# --- large inputs, made on the fly and removed after ---
@@ -150,6 +156,7 @@ if [[ $quick == 0 ]]; then
 		bash scripts/gen-jsonl.sh "$work/big-r.jsonl" 1000000 >/dev/null 2>&1
 		# 150 MB + 8 bytes a record.
 		run "survey of 1M JSON Lines records" 0 300 158 '$M survey big-r.jsonl --quiet --format json >/dev/null'
+		run "fragments of 1M JSON Lines records" 0 300 158 '$M fragments big-r.jsonl --quiet --format json >/dev/null'
 		big
 	fi
 	if want words; then
@@ -161,7 +168,8 @@ if [[ $quick == 0 ]]; then
 			    for _ in range(200):
 			        f.write(" ".join("".join(r.choice(letters) for _ in range(9)) for _ in range(100000)) + "\n")
 		EOF
-		run "fragments, 20M distinct words" 0 900 1600 '$M fragments big-w.txt --quiet'
+		# --memory 1GiB (the default) and a modest constant.
+		run "fragments, 20M distinct words" 0 900 1500 '$M fragments big-w.txt --quiet'
 		big
 	fi
 	if want csv; then
