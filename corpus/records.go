@@ -130,6 +130,7 @@ type records struct {
 	heldFields string
 	// others is set once an item other than a held record was emitted.
 	others bool
+	owner  *Owner // of Options.Shard, once a record may be passed over
 }
 
 // passes reports whether record n may be passed over unread: it belongs
@@ -140,8 +141,13 @@ type records struct {
 // then on every held record becomes a skip of its own, in record order,
 // whatever the records after it hold.
 func (rs *records) passes(n int) bool {
-	sh := rs.r.opt.Shard
-	return !sh.Whole() && rs.seen && (rs.others || !rs.r.fieldAsked) && !sh.Owns(rs.r.source, n)
+	if rs.r.opt.Shard.Whole() || !rs.seen || !rs.others && rs.r.fieldAsked {
+		return false
+	}
+	if rs.owner == nil {
+		rs.owner = NewOwner(rs.r.opt.Shard)
+	}
+	return !rs.owner.Owns(rs.r.source, n)
 }
 
 // pass emits the place of a record passed over, after the held records

@@ -106,16 +106,54 @@ func ShardOf(source string, record int, n int) int {
 
 // shardHash is the FNV-1a hash of source, a zero byte and record.
 func shardHash(source string, record int) uint64 {
+	return recordHash(sourceHash(source), record)
+}
+
+// sourceHash is the FNV-1a state after source and its zero byte, which
+// every record of the source continues.
+func sourceHash(source string) uint64 {
 	h := uint64(fnvOffset64)
 	for i := 0; i < len(source); i++ {
 		h ^= uint64(source[i])
 		h *= fnvPrime64
 	}
-	var tail [9]byte
-	binary.LittleEndian.PutUint64(tail[1:], uint64(record))
+	h *= fnvPrime64 // the zero byte: h ^= 0 leaves h as it is
+	return h
+}
+
+// recordHash continues the state h of a source with record's 8 bytes.
+func recordHash(h uint64, record int) uint64 {
+	var tail [8]byte
+	binary.LittleEndian.PutUint64(tail[:], uint64(record))
 	for _, c := range tail {
 		h ^= uint64(c)
 		h *= fnvPrime64
 	}
 	return h
+}
+
+// An Owner answers Shard.Owns for many items, most of them of the same
+// source as the item before: the hash of the source's bytes is kept.
+type Owner struct {
+	share Shard
+	src   string
+	state uint64
+}
+
+// NewOwner returns an Owner for share.
+func NewOwner(share Shard) *Owner {
+	return &Owner{share: share, state: sourceHash("")}
+}
+
+// Owns reports whether the item at source and record belongs to the
+// share, as Shard.Owns does.
+func (o *Owner) Owns(source string, record int) bool {
+	if o.share.Whole() {
+		return true
+	}
+	if source != o.src {
+		o.src, o.state = source, sourceHash(source)
+	}
+	hi, _ := bits.Mul64(recordHash(o.state, record), uint64(o.share.N))
+	return int(hi)+1 == o.share.K
 }

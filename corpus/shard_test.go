@@ -187,3 +187,19 @@ func itemKey(it Item) (string, int) {
 	}
 	return it.Skip.Source, it.Skip.Record
 }
+
+// An Owner gives Shard.Owns's answer whatever order the sources come in.
+func TestOwnerIsOwns(t *testing.T) {
+	for _, n := range []int{1, 2, 7} {
+		for k := 1; k <= n; k++ {
+			share := Shard{K: k, N: n}
+			o := NewOwner(share)
+			for i := 0; i < 300; i++ {
+				src := []string{"a.jsonl", "", "notes/b.csv", "a.jsonl"}[i%7%4]
+				if got, want := o.Owns(src, i), share.Owns(src, i); got != want {
+					t.Fatalf("%v: Owner.Owns(%q, %d) = %v, Shard.Owns %v", share, src, i, got, want)
+				}
+			}
+		}
+	}
+}

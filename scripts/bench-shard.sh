@@ -6,11 +6,14 @@
 # alternating every round, and the script prints the median wall time and
 # CPU time (user + system, of every process) of each, with their ratios.
 #
+# The partials are named p1.gz and so on, which gzips them; EXT=.part
+# writes them plain.
+#
 #   scripts/bench-shard.sh              # N=2, 5 rounds
-#   N=4 ROUNDS=7 CORPUS_DIR=/data/x scripts/bench-shard.sh
+#   N=4 ROUNDS=7 CORPUS_DIR=/data/x EXT=.part scripts/bench-shard.sh
 set -eu
 cd "$(dirname "$0")/.."
-n=${N:-2} rounds=${ROUNDS:-5}
+n=${N:-2} rounds=${ROUNDS:-5} ext=${EXT:-.gz}
 dir=${BENCH_DIR:-/tmp/morsel-bench}
 corpus=${CORPUS_DIR:-$dir/corpus}
 [ -d "$corpus" ] || { echo "no corpus at $corpus: run scripts/bench-survey.sh once, or set CORPUS_DIR" >&2; exit 2; }
@@ -19,7 +22,7 @@ trap 'rm -rf "$tmp"' EXIT
 go build -o "$tmp/morsel" ./cmd/morsel
 m=$tmp/morsel
 bytes=$(find "$corpus" -type f -printf '%s\n' | awk '{ s += $1 } END { print s + 0 }')
-echo "corpus: $((bytes / 1000000)) MB ($corpus); N=$n; machine: $(nproc) cores, load $(cut -d' ' -f1-3 /proc/loadavg)"
+echo "corpus: $((bytes / 1000000)) MB ($corpus); N=$n; partials *$ext; machine: $(nproc) cores, load $(cut -d' ' -f1-3 /proc/loadavg)"
 
 # run LABEL CMD...: appends "wall cpu" of CMD (its children included) to $tmp/LABEL
 run() {
@@ -32,13 +35,13 @@ single() { "$m" survey --quiet --workers "$n" --format json "$corpus"; }
 sharded() {
   local k
   for ((k = 1; k <= n; k++)); do
-    "$m" survey --quiet --workers 1 --shard "$k/$n" --format partial --force -o "$tmp/p$k.gz" "$corpus" &
+    "$m" survey --quiet --workers 1 --shard "$k/$n" --format partial --force -o "$tmp/p$k$ext" "$corpus" &
   done
   wait
-  "$m" merge --quiet --format json "$tmp"/p*.gz
+  "$m" merge --quiet --format json "$tmp"/p*"$ext"
 }
 export -f single sharded
-export m n corpus tmp
+export m n corpus tmp ext
 single >"$tmp/one.json"
 sharded >"$tmp/merged.json"
 cmp -s "$tmp/one.json" "$tmp/merged.json" && echo "merged report equals the single run's: yes" || echo "merged report equals the single run's: NO"

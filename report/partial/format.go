@@ -231,6 +231,7 @@ func Read(r io.Reader, name string) (*Partial, error) {
 		}
 	}
 	p, fin := rd.p, rd.end
+	p.Items = rd.items()
 	switch {
 	case rd.n == 0:
 		return nil, fmt.Errorf("%s: not a partial report: no header", name)
@@ -291,6 +292,10 @@ type reader struct {
 	results          []byte
 	lastSrc, lastFmt string
 	end              *end
+	// The items: full blocks, the block being filled, and their count.
+	blocks [][]Item
+	block  []Item
+	nItems int
 }
 
 func (rd *reader) frame(kind byte) error {
@@ -381,10 +386,34 @@ func (rd *reader) item(b []byte) error {
 		}
 	}
 	if d.err != nil {
-		return fmt.Errorf("item %d: %w", len(rd.p.Items)+1, d.err)
+		return fmt.Errorf("item %d: %w", rd.nItems+1, d.err)
 	}
-	rd.p.Items = append(rd.p.Items, it)
+	if len(rd.block) == cap(rd.block) {
+		if rd.block != nil {
+			rd.blocks = append(rd.blocks, rd.block)
+		}
+		rd.block = make([]Item, 0, itemBlock)
+	}
+	rd.block = append(rd.block, it)
+	rd.nItems++
 	return nil
+}
+
+// itemBlock is how many items the reader holds in one allocation until
+// it knows them all, so that a million items are not copied over and
+// over as one slice grows.
+const itemBlock = 4096
+
+// items returns the items read, in one slice.
+func (rd *reader) items() []Item {
+	if len(rd.blocks) == 0 {
+		return rd.block
+	}
+	all := make([]Item, 0, rd.nItems)
+	for _, b := range rd.blocks {
+		all = append(all, b...)
+	}
+	return append(all, rd.block...)
 }
 
 // keep copies b out of the frame buffer into a shared block.

@@ -122,6 +122,7 @@ func Shard[R any](paths []string, opt corpus.Options, share corpus.Shard, worker
 		defer close(todo)
 		var at Place
 		var batch *job
+		owner := corpus.NewOwner(share)
 		var held int // text bytes in batch
 		flush := func() error {
 			j := batch
@@ -154,7 +155,7 @@ func Shard[R any](paths []string, opt corpus.Options, share corpus.Shard, worker
 			if it.Doc == nil && it.Skip == nil {
 				return nil // a record of another share, passed over unread
 			}
-			if src, rec := itemAt(it); !share.Owns(src, rec) {
+			if src, rec := itemAt(it); !owner.Owns(src, rec) {
 				closeStream(it)
 				return nil
 			}
