@@ -62,7 +62,9 @@ func (cf *corpusFlags) shareOf() (corpus.Shard, error) {
 
 // localFlags are the flags that change neither which documents a walk
 // reads nor what it finds in them: how the report is shown, or how one
-// process runs. A merge takes them anew; every other flag must agree.
+// process runs. A merge takes them anew (the layout flags are merge's own
+// flags too, TestLocalFlagsAreMergeFlags keeps the two in step); every
+// other flag must agree.
 var localFlags = map[string]bool{
 	"format": true, "output": true, "force": true, "shard": true, "workers": true, "quiet": true,
 	"cpuprofile": true, "verbose": true, "wide": true, "width": true, "rows": true, "sort": true,
@@ -70,6 +72,10 @@ var localFlags = map[string]bool{
 	// Files are compared by what they hold, not where they are.
 	"vocab": true, "merges": true, "frame": true, "targets": true, "terms": true,
 }
+
+// processFlags are the local flags that only concern one process or where
+// its output goes: a partial does not keep them for the merge.
+var processFlags = map[string]bool{"format": true, "output": true, "force": true, "shard": true, "workers": true, "quiet": true, "cpuprofile": true}
 
 // agreement returns what every partial of one run must share: the
 // fingerprints of the vocabularies the command loaded, the contents of the
@@ -105,11 +111,7 @@ func (sh *shared) agreement(c *cobra.Command) (map[string]string, error) {
 func givenArgs(c *cobra.Command) []string {
 	var args []string
 	visit := func(f *pflag.Flag) {
-		if !f.Changed {
-			return
-		}
-		switch f.Name {
-		case "format", "output", "force", "shard", "workers", "quiet", "cpuprofile":
+		if !f.Changed || processFlags[f.Name] {
 			return
 		}
 		if sv, ok := f.Value.(pflag.SliceValue); ok {
