@@ -13,11 +13,11 @@ import (
 	"path/filepath"
 	"reflect"
 	"runtime"
+	"slices"
 	"strings"
 	"sync"
 
 	"github.com/apache/beam/sdks/v2/go/pkg/beam"
-	"github.com/apache/beam/sdks/v2/go/pkg/beam/io/fileio"
 	"github.com/apache/beam/sdks/v2/go/pkg/beam/io/filesystem"
 	"github.com/apache/beam/sdks/v2/go/pkg/beam/register"
 
@@ -47,10 +47,13 @@ type Config struct {
 	// --merges do (a path every worker can read); empty Vocab is the
 	// embedded GPT-2 vocabulary.
 	Vocab, Merges string
-	Field         string
-	Column        string
-	As            string
-	Hidden        bool
+	// Field and Column name the JSON and CSV text field as morsel's
+	// --field and --column do; empty is morsel's default ("text", and a
+	// file whose first record has no such field is read as text).
+	Field  string
+	Column string
+	As     string
+	Hidden bool
 	// SplitAbove is the size above which a file of records is read by
 	// several workers, each weighing its own share of the records
 	// (corpus.Shard); 0 never splits.
@@ -65,15 +68,18 @@ func (c Config) options() corpus.Options {
 
 // Unit is one file, or one share of the records of a big file, to weigh.
 type Unit struct {
+	// In is the place of the input it was matched by among
+	// Config.Inputs, which orders the report's rows as morsel orders
+	// them: by argument, then by path.
+	In   int
 	Path string
 	Size int64
 	K, N int // the share of the file's records; 0 and 0 for all of them
 }
 
 func init() {
-	register.DoFn3x1[context.Context, string, func(fileio.FileMetadata), error](&matchFn{})
-	register.Emitter1[fileio.FileMetadata]()
-	register.DoFn2x0[fileio.FileMetadata, func(Unit)](&splitFn{})
+	register.DoFn3x1[context.Context, string, func(Unit), error](&matchFn{})
+	register.DoFn2x0[Unit, func(Unit)](&splitFn{})
 	register.Emitter1[Unit]()
 	register.DoFn3x1[context.Context, Unit, func([]byte), error](&weighFn{})
 	register.Emitter1[[]byte]()
@@ -114,7 +120,8 @@ func Build(s beam.Scope, c Config) {
 // anything else is a pattern for the file system its scheme names.
 type matchFn struct{ Cfg Config }
 
-func (fn *matchFn) ProcessElement(ctx context.Context, pattern string, emit func(fileio.FileMetadata)) error {
+func (fn *matchFn) ProcessElement(ctx context.Context, pattern string, emit func(Unit)) error {
+	in := slices.Index(fn.Cfg.Inputs, pattern)
 	if fi, err := os.Stat(pattern); err == nil && fi.IsDir() && !strings.Contains(pattern, "://") {
 		return filepath.WalkDir(pattern, func(p string, d fs.DirEntry, err error) error {
 			if err != nil {
@@ -131,7 +138,7 @@ func (fn *matchFn) ProcessElement(ctx context.Context, pattern string, emit func
 				if err != nil {
 					return err
 				}
-				emit(fileio.FileMetadata{Path: p, Size: info.Size()})
+				emit(Unit{In: in, Path: p, Size: info.Size()})
 			}
 			return nil
 		})
@@ -153,7 +160,7 @@ func (fn *matchFn) ProcessElement(ctx context.Context, pattern string, emit func
 		if err != nil {
 			return fmt.Errorf("%s: %w", p, err)
 		}
-		emit(fileio.FileMetadata{Path: p, Size: size})
+		emit(Unit{In: in, Path: p, Size: size})
 	}
 	return nil
 }
@@ -161,17 +168,17 @@ func (fn *matchFn) ProcessElement(ctx context.Context, pattern string, emit func
 // splitFn turns a matched file into the units that weigh it.
 type splitFn struct{ Cfg Config }
 
-func (fn *splitFn) ProcessElement(md fileio.FileMetadata, emit func(Unit)) {
+func (fn *splitFn) ProcessElement(md Unit, emit func(Unit)) {
 	n := 1
 	if fn.Cfg.SplitAbove > 0 && md.Size > fn.Cfg.SplitAbove && !corpus.WholeFile(md.Path, fn.Cfg.options()) {
 		n = int((md.Size + fn.Cfg.SplitAbove - 1) / fn.Cfg.SplitAbove)
 	}
 	if n == 1 {
-		emit(Unit{Path: md.Path, Size: md.Size})
+		emit(md)
 		return
 	}
 	for k := 1; k <= n; k++ {
-		emit(Unit{Path: md.Path, Size: md.Size, K: k, N: n})
+		emit(Unit{In: md.In, Path: md.Path, Size: md.Size, K: k, N: n})
 	}
 }
 
@@ -238,7 +245,7 @@ func (fn *weighFn) weigh(ctx context.Context, u Unit, p *partial.Partial) error 
 	share := corpus.Shard{K: u.K, N: u.N}
 	seq := 0
 	add := func(it corpus.Item) error {
-		k := partial.Key{Src: u.Path, Seq: seq}
+		k := partial.Key{In: u.In, Src: u.Path, Seq: seq}
 		seq++
 		if it.Doc == nil && it.Skip == nil {
 			return nil // a record of another share, passed over unread
@@ -307,12 +314,37 @@ func (fn *weighFn) FinishBundle(_ context.Context, emit func([]byte)) error {
 
 // newPartial starts an empty partial of this run.
 func newPartial(c Config, enc *bpe.Encoder) *partial.Partial {
-	in, _ := json.Marshal(struct {
-		Inputs            []string
-		Field, Column, As string
-		Hidden            bool
-	}{c.Inputs, c.Field, c.Column, c.As, c.Hidden})
-	return partial.New(c.Command, 1, 1, string(in), map[string]string{"vocabulary": enc.Vocab().Fingerprint()})
+	return &partial.Partial{Header: c.header(enc.Vocab()), Tables: map[string][]json.RawMessage{}}
+}
+
+// header is the header of this run's partials: the one morsel COMMAND
+// --format partial writes for the same inputs and settings, so that
+// morsel merge takes the pipeline's partial as its own. Agree holds the
+// vocabulary with its window and the settings that are not at morsel's
+// defaults, by morsel's flag names; Args gives them as morsel would be
+// given them (its own flags by name, then --merges and --vocab).
+func (c Config) header(v *bpe.Vocab) partial.Header {
+	h := partial.Header{Format: partial.Magic, Version: partial.Version, Command: c.Command, Shards: []int{1}, Of: 1,
+		Inputs: partial.InputsPrint(c.Inputs), Paths: c.Inputs,
+		Agree: map[string]string{"vocabulary": partial.VocabPrint(v.Fingerprint(), v.Window())}}
+	hidden := ""
+	if c.Hidden {
+		hidden = "true"
+	}
+	for _, f := range [...]struct{ name, value string }{{"as", c.As}, {"column", c.Column}, {"field", c.Field}, {"hidden", hidden}} {
+		if f.value != "" {
+			h.Agree["--"+f.name] = f.value
+			h.Args = append(h.Args, "--"+f.name+"="+f.value)
+		}
+	}
+	// The files are compared by their fingerprint, not their names.
+	if c.Merges != "" {
+		h.Args = append(h.Args, "--merges="+c.Merges)
+	}
+	if c.Vocab != "" {
+		h.Args = append(h.Args, "--vocab="+c.Vocab)
+	}
+	return h
 }
 
 // mergeFn combines the bundles' partial reports into one.

@@ -10,11 +10,14 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 
 	"github.com/apache/beam/sdks/v2/go/pkg/beam"
 	"github.com/apache/beam/sdks/v2/go/pkg/beam/runners/prism"
+
+	"morsel/report/partial"
 )
 
 func TestMain(m *testing.M) {
@@ -80,7 +83,7 @@ func runBeam(t *testing.T, c Config) []byte {
 func TestSurveyDemoMatchesCLI(t *testing.T) {
 	for _, f := range []string{"json", "table", "csv", "md"} {
 		want := cli(t, "survey", "../testdata/demo/docs", "--format", f)
-		got := runBeam(t, Config{Inputs: []string{"../testdata/demo/docs/*"}, Format: f, Command: "survey", Field: "text", Column: "text"})
+		got := runBeam(t, Config{Inputs: []string{"../testdata/demo/docs/*"}, Format: f, Command: "survey"})
 		if !bytes.Equal(got, want) {
 			t.Errorf("--format %s: the pipeline's report differs from morsel survey's:\n%s", f, firstDiff(got, want))
 		}
@@ -108,7 +111,7 @@ func TestSurveyVocabMatchesCLI(t *testing.T) {
 		t.Fatal(err)
 	}
 	want := cli(t, "survey", "../testdata/demo/docs", "--vocab", vocab, "--format", "json")
-	got := runBeam(t, Config{Inputs: []string{"../testdata/demo/docs/*"}, Format: "json", Command: "survey", Field: "text", Column: "text", Vocab: vocab})
+	got := runBeam(t, Config{Inputs: []string{"../testdata/demo/docs/*"}, Format: "json", Command: "survey", Vocab: vocab})
 	if !bytes.Equal(got, want) {
 		t.Errorf("the pipeline's report differs from morsel survey --vocab's:\n%s", firstDiff(got, want))
 	}
@@ -144,7 +147,7 @@ func TestSurveySplitFilesMatchCLI(t *testing.T) {
 		}
 	}
 	want := cli(t, "survey", dir, "--format", "json")
-	got := runBeam(t, Config{Inputs: []string{dir + "/*"}, Format: "json", Command: "survey", Field: "text", Column: "text", SplitAbove: 20000})
+	got := runBeam(t, Config{Inputs: []string{dir + "/*"}, Format: "json", Command: "survey", SplitAbove: 20000})
 	if !bytes.Equal(got, want) {
 		t.Errorf("the pipeline's report differs from morsel survey's:\n%s", firstDiff(got, want))
 	}
@@ -166,4 +169,55 @@ func firstDiff(got, want []byte) string {
 		}
 	}
 	return "(same lines)"
+}
+
+// readHeader reads the header of the partial at path.
+func readHeader(t *testing.T, path string) partial.Header {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	p, err := partial.Read(f, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p.Header
+}
+
+// The pipeline's partial has the header morsel survey --format partial
+// writes for the same inputs and settings, and morsel merge turns it into
+// morsel survey's report.
+func TestPartialIsCLIs(t *testing.T) {
+	const docs = "../testdata/demo/docs"
+	dir := t.TempDir()
+	for i, c := range []struct {
+		cfg  Config
+		args []string
+	}{
+		{Config{Inputs: []string{docs}}, nil},
+		{Config{Inputs: []string{docs, "../testdata/corpus"}, Field: "body", Column: "note", Hidden: true}, []string{"--field", "body", "--column", "note", "--hidden"}},
+	} {
+		c.cfg.Command, c.cfg.Format = "survey", "partial"
+		beamPart := filepath.Join(dir, fmt.Sprintf("beam-%d.part", i))
+		b := runBeam(t, c.cfg)
+		if err := os.WriteFile(beamPart, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		cliPart := filepath.Join(dir, fmt.Sprintf("cli-%d.part", i))
+		args := append(append([]string{"survey"}, c.cfg.Inputs...), c.args...)
+		cli(t, append(args, "--format", "partial", "-o", cliPart)...)
+		got, want := readHeader(t, beamPart), readHeader(t, cliPart)
+		if !reflect.DeepEqual(got, want) {
+			t.Errorf("%v: the pipeline's header\n%+v\nmorsel survey's\n%+v", c.args, got, want)
+		}
+		for _, f := range []string{"json", "csv"} {
+			merged := cli(t, "merge", beamPart, "--format", f)
+			single := cli(t, append(args, "--format", f)...)
+			if !bytes.Equal(merged, single) {
+				t.Errorf("%v: morsel merge of the pipeline's partial, --format %s, differs from morsel survey's report:\n%s", c.args, f, firstDiff(merged, single))
+			}
+		}
+	}
 }

@@ -183,7 +183,7 @@ func TestMergeRefusals(t *testing.T) {
 		{[]string{v1}, "v1.gz: partial report version 1; this build reads version 2 only: write the partials again with this build"},
 		{[]string{three[0], three[1], three[1], three[2]}, "both hold shard 2/3"},
 		{[]string{three[0], fit[1], three[2]}, "one is a survey report, the other a fit report"},
-		{[]string{three[0], onced[1], three[2]}, "they differ in --once: false and true"},
+		{[]string{three[0], onced[1], three[2]}, "they differ in --once: (none) and true"},
 		{[]string{three[0], vocab[1], three[2]}, "they differ in vocabulary: sha256:"},
 		{[]string{"--vocab", meta, three[0], three[1], three[2]}, "the partial reports were made with vocabulary sha256:"},
 		{[]string{cut}, "cut.gz"},

@@ -79,7 +79,9 @@ var processFlags = map[string]bool{"format": true, "output": true, "force": true
 
 // agreement returns what every partial of one run must share: the
 // fingerprints of the vocabularies the command loaded, the contents of the
-// settings files it read, and every flag that is not local, by name.
+// settings files it read, and every flag that is not local and not at its
+// default, by name. Flags at their defaults are left out so that the Beam
+// pipeline, which has only some of the flags, writes the same header.
 func (sh *shared) agreement(c *cobra.Command) (map[string]string, error) {
 	a := map[string]string{}
 	var prints []string
@@ -97,8 +99,8 @@ func (sh *shared) agreement(c *cobra.Command) (map[string]string, error) {
 		a[s.What] = "sha256:" + hex.EncodeToString(sum[:])
 	}
 	visit := func(f *pflag.Flag) {
-		if !localFlags[f.Name] {
-			a["--"+f.Name] = f.Value.String()
+		if v := f.Value.String(); !localFlags[f.Name] && v != f.DefValue {
+			a["--"+f.Name] = v
 		}
 	}
 	c.Flags().VisitAll(visit)
@@ -127,16 +129,6 @@ func givenArgs(c *cobra.Command) []string {
 	return args
 }
 
-// inputsPrint fingerprints the arguments a walk was given, in order.
-func inputsPrint(paths []string) string {
-	h := sha256.New()
-	for _, p := range paths {
-		h.Write([]byte(p))
-		h.Write([]byte{0})
-	}
-	return "sha256:" + hex.EncodeToString(h.Sum(nil))
-}
-
 // writePartial walks the share of paths that --shard names, does work on
 // each document and writes every item, with its result as JSON, to the
 // partial report. Repeats (--once) are left to the merge, which sees every
@@ -151,7 +143,7 @@ func writePartial[R any](sh *shared, cf *corpusFlags, paths []string, opt corpus
 	if err != nil {
 		return err
 	}
-	h := partial.Header{Command: cmd.Name(), Shards: []int{share.K}, Of: share.N, Inputs: inputsPrint(paths),
+	h := partial.Header{Command: cmd.Name(), Shards: []int{share.K}, Of: share.N, Inputs: partial.InputsPrint(paths),
 		Agree: agree, Args: givenArgs(cmd), Paths: paths}
 	if share.Whole() {
 		h.Shards, h.Of = []int{1}, 1
@@ -284,9 +276,7 @@ func vocabPrint(v *bpe.Vocab) string {
 	return vocabPrintOf(v)
 }
 
-func vocabPrintOf(v *bpe.Vocab) string {
-	return fmt.Sprintf("%s/window=%d", v.Fingerprint(), v.Window())
-}
+func vocabPrintOf(v *bpe.Vocab) string { return partial.VocabPrint(v.Fingerprint(), v.Window()) }
 
 var (
 	defaultPrintOnce sync.Once
