@@ -44,6 +44,7 @@ type state struct {
 	spmIDs     []uint32
 	spmCounted []uint32
 	spmOut     []uint32
+	spm        *spmCache   // the word cache of short pieces (spm_cache.go)
 	cells      []uint32    // mergeLong's cells
 	tree       []uint32    // its minTree's nodes
 	base       []uint32    // its starting symbols, when p's bytes do not give them

@@ -21,7 +21,7 @@ func spmAppend[T int | uint32](e *Encoder, s *state, dst []T, text []byte, st *S
 		}
 		for i := 0; i < len(norm); {
 			j := sp.nextCut(norm, i)
-			dst = appendPiece(s, dst, norm[i:j])
+			dst = spmAppendPiece(s, dst, norm[i:j])
 			i = j
 		}
 	})
@@ -45,7 +45,7 @@ func (e *Encoder) spmCount(s *state, text []byte, st *Stats) {
 		norm := s.spmNorm
 		for i := 0; i < len(norm); {
 			j := sp.nextCut(norm, i)
-			st.Tokens += s.count(norm[i:j])
+			st.Tokens += s.spmCountPiece(norm[i:j])
 			i = j
 		}
 	})

@@ -134,6 +134,16 @@ func (sp *spmModel) nextCut(norm []byte, i int) int {
 	mark := sp.mark
 	switch sp.cut {
 	case cutBeforeMarks:
+		if mark == "\u2581" {
+			// The commonest case, scanned by hand: a piece is a few
+			// bytes long, shorter than bytes.Index takes to set up.
+			for j := i + 1; j+2 < len(norm); j++ {
+				if norm[j] == 0xe2 && norm[j+1] == 0x96 && norm[j+2] == 0x81 && !bytes.HasSuffix(norm[:j], []byte(mark)) {
+					return j
+				}
+			}
+			return len(norm)
+		}
 		for j := i + 1; j < len(norm); {
 			k := bytes.Index(norm[j:], []byte(mark))
 			if k < 0 {
