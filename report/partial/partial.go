@@ -233,7 +233,7 @@ func sortedKeys(a, b map[string]string) []string {
 }
 
 // Merge merges the partials of shards of one run into one, items in the
-// order of a single run. It fails, naming the partials by names, when two
+// order of a single run, and leaves ps without their items. It fails, naming the partials by names, when two
 // are not of one run, when a shard is held twice, or, with whole, when
 // the shards do not cover the run.
 func Merge(ps []*Partial, names []string, whole bool) (*Partial, error) {
@@ -271,5 +271,8 @@ func Merge(ps []*Partial, names []string, whole bool) (*Partial, error) {
 		return nil, fmt.Errorf("shard %s of %d missing: the merged report would not be the whole run", strings.Join(missing, ", "), first.Of)
 	}
 	m.Items = mergeItems(ps)
+	for _, p := range ps {
+		p.Items = nil // they are m's now, and need not be kept twice
+	}
 	return m, nil
 }
