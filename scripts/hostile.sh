@@ -127,10 +127,14 @@ run "gzip cut short, small and large" 1 10 300 '$M survey trunc-small.txt.gz tru
 run "JSON nested 100,000 deep" 1 10 300 '$M survey deep.json --quiet'
 run "fragments, 1M new words, 16MiB" 0 60 200 '$M fragments distinct.txt --memory 16MiB --quiet' 'grep -q "Counts are approximate" out'
 run "fragments of 100k records, JSON" 0 60 100 '$M fragments records.jsonl --format json --quiet' 'test $(grep -c "\"record\": " out) = 100000'
+# Past the streaming threshold (32 MiB) ration keeps a window, not the text.
+run "ration --emit, 96 MB of yes" 0 60 150 'yes | head -c 96M | $M ration - --emit plan.jsonl --quiet' \
+	'test $(wc -l <plan.jsonl) -gt 90000 && rm plan.jsonl'
 
 if [[ $quick == 0 ]]; then
 	# --- large inputs, made on the fly and removed after ---
 	big() { rm -f "$work"/big-*; }
+	for v in qwen3 metaspace-32k; do mkdir -p "$work/$v" && gzip -dc "testdata/vocab/$v/tokenizer.json.gz" >"$work/$v/tokenizer.json"; done
 	if want zstd; then
 		head -c 40M /dev/urandom | base64 -w100 >"$work/big-b.txt" && zstd -q "$work/big-b.txt"
 		run "zstd text of 54 MB" 0 300 400 '$M survey big-b.txt.zst --quiet'
@@ -140,16 +144,22 @@ if [[ $quick == 0 ]]; then
 	if want letter; then
 		head -c 100M /dev/zero | tr '\0' a >"$work/big-a.txt"
 		run "100 MB of one letter (10 B/byte)" 0 600 1100 '$M survey big-a.txt --max-document 200MiB --quiet'
+		run "100 MB of one letter, qwen3" 0 600 1100 '$M survey big-a.txt --max-document 200MiB --vocab qwen3/tokenizer.json --quiet'
+		run "100 MB of one letter, ration" 0 600 1100 '$M ration big-a.txt --max-document 200MiB --quiet'
 		big
 	fi
 	if want spaces; then
 		head -c 100M /dev/zero | tr '\0' ' ' >"$work/big-s.txt"
 		run "100 MB of spaces" 0 600 1100 '$M survey big-s.txt --quiet'
+		run "100 MB of spaces, metaspace-32k" 0 600 1100 '$M survey big-s.txt --vocab metaspace-32k/tokenizer.json --quiet'
 		big
 	fi
 	if want yes; then
 		run "fit of 500 MB of yes on stdin" 3 600 300 'yes | head -c 500M | $M fit - --max-document 1GiB --quiet'
 		run "ration of 500 MB of yes on stdin" 0 600 300 'yes | head -c 500M | $M ration - --max-document 1GiB --quiet'
+		run "ration --emit, 200 MB of yes" 0 600 300 'yes | head -c 200M | $M ration - --max-document 1GiB --emit plan.jsonl --quiet' \
+			'test $(wc -l <plan.jsonl) -gt 100000 && rm plan.jsonl'
+		run "ration of an endless yes" 1 600 300 'yes | $M ration - --quiet' 'grep -q too-large out'
 		run "fragments of 500 MB of yes" 0 600 1100 'yes | head -c 500M | $M fragments - --max-document 1GiB --quiet'
 	fi
 	if want jsonl; then

@@ -4,6 +4,8 @@ import (
 	"bufio"
 	"encoding/json"
 	"fmt"
+	"io"
+	"sync"
 
 	"github.com/spf13/cobra"
 
@@ -100,21 +102,55 @@ because the budget cannot hold the frame and one character, else 0.`,
 				jl.SetEscapeHTML(false)
 			}
 			rc := ration.NewCollector(r, rq.target)
-			work := func(d *corpus.Document) (ration.Doc, error) { return r.CutDocument(d, jl != nil) }
-			skipped, err := walkDocs(sh, &cf, args, work, collector[ration.Doc]{
-				add: func(_ *corpus.Document, d ration.Doc) error {
+			var spills scratchSet
+			defer spills.closeAll()
+			work := func(d *corpus.Document) (rationDoc, error) {
+				if jl == nil || d.Stream == nil {
+					doc, err := r.CutDocument(d, jl != nil, nil)
+					return rationDoc{Doc: doc}, err
+				}
+				// A streamed document's chunks wait in a scratch file
+				// until the plan reaches it in input order.
+				sf, err := spills.open(plan.Name())
+				if err != nil {
+					return rationDoc{}, &inputError{fmt.Errorf("--emit %s: %w", emit, err)}
+				}
+				w := bufio.NewWriterSize(sf, 1<<16)
+				enc := json.NewEncoder(w)
+				enc.SetEscapeHTML(false)
+				doc, err := r.CutDocument(d, true, func(c ration.Chunk) error { return enc.Encode(&c) })
+				if err == nil {
+					err = w.Flush()
+				}
+				if err != nil {
+					spills.close(sf)
+					return rationDoc{}, err
+				}
+				return rationDoc{Doc: doc, spill: sf}, nil
+			}
+			skipped, err := walkDocs(sh, &cf, args, work, collector[rationDoc]{
+				add: func(_ *corpus.Document, d rationDoc) error {
 					if jl != nil {
 						for i := range d.Plan {
 							if err := jl.Encode(&d.Plan[i]); err != nil {
 								return &inputError{fmt.Errorf("--emit %s: %w", emit, err)}
 							}
 						}
+						if d.spill != nil {
+							_, err := d.spill.Seek(0, io.SeekStart)
+							if err == nil {
+								_, err = io.Copy(out, d.spill)
+							}
+							spills.close(d.spill)
+							if err != nil {
+								return &inputError{fmt.Errorf("--emit %s: %w", emit, err)}
+							}
+						}
 					}
-					rc.Add(d)
-					return nil
+					return rc.Add(d.Doc)
 				},
 				failed: ration.FailedDoc,
-				tokens: func(d ration.Doc) int { return d.Tokens },
+				tokens: func(d rationDoc) int { return d.Tokens },
 				encode: encodeRation,
 				decode: decodeRation,
 			})
@@ -153,12 +189,58 @@ because the budget cannot hold the frame and one character, else 0.`,
 	return c
 }
 
+// rationDoc is a document's result: its plan, and the scratch file that
+// holds the emitted chunks of a streamed document.
+type rationDoc struct {
+	ration.Doc
+	spill *outfile.ScratchFile
+}
+
+// scratchSet is the scratch files of a run not yet copied into the plan.
+type scratchSet struct {
+	mu    sync.Mutex
+	files map[*outfile.ScratchFile]bool
+}
+
+func (s *scratchSet) open(target string) (*outfile.ScratchFile, error) {
+	f, err := outfile.Scratch(target)
+	if err != nil {
+		return nil, err
+	}
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	if s.files == nil {
+		s.files = map[*outfile.ScratchFile]bool{}
+	}
+	s.files[f] = true
+	return f, nil
+}
+
+func (s *scratchSet) close(f *outfile.ScratchFile) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	delete(s.files, f)
+	f.Close()
+}
+
+// closeAll closes the files of a walk that stopped before their turn.
+func (s *scratchSet) closeAll() {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	for f := range s.files {
+		f.Close()
+	}
+	s.files = nil
+}
+
 // rationRow is a document's result in a partial report: its row, and its
 // chunks' request tokens and cuts, which the fill histogram and the cut
-// counts take (the chunks' text is not kept).
+// counts take (the chunks' text is not kept); for a streamed document,
+// whose chunks are not kept one by one, their tally instead.
 type rationRow struct {
 	ration.Doc
-	Plan []chunkSum `json:"plan"`
+	Plan  []chunkSum    `json:"plan"`
+	Tally *ration.Tally `json:"tally,omitempty"`
 }
 
 type chunkSum struct {
@@ -166,23 +248,27 @@ type chunkSum struct {
 	Cut    string `json:"c"`
 }
 
-func encodeRation(d ration.Doc) ([]byte, error) {
-	row := rationRow{Doc: d, Plan: make([]chunkSum, len(d.Plan))}
+func encodeRation(d rationDoc) ([]byte, error) {
+	row := rationRow{Doc: d.Doc, Plan: make([]chunkSum, len(d.Plan)), Tally: d.Tally}
 	for i, c := range d.Plan {
 		row.Plan[i] = chunkSum{c.Tokens, c.Cut}
 	}
 	return json.Marshal(row)
 }
 
-func decodeRation(_ *corpus.Document, raw []byte) (ration.Doc, error) {
+func decodeRation(_ *corpus.Document, raw []byte) (rationDoc, error) {
 	var row rationRow
 	if err := json.Unmarshal(raw, &row); err != nil {
-		return ration.Doc{}, err
+		return rationDoc{}, err
 	}
 	d := row.Doc
+	if row.Tally != nil {
+		d.Tally = row.Tally
+		return rationDoc{Doc: d}, nil
+	}
 	d.Plan = make([]ration.Chunk, len(row.Plan))
 	for i, c := range row.Plan {
 		d.Plan[i] = ration.Chunk{Source: d.Source, Record: d.Record, Chunk: i + 1, Tokens: c.Tokens, Cut: c.Cut}
 	}
-	return d, nil
+	return rationDoc{Doc: d}, nil
 }

@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"morsel/bpe"
+	"morsel/corpus"
 	"morsel/report"
 	"morsel/report/ration"
 )
@@ -69,5 +70,67 @@ func TestRationEmit(t *testing.T) {
 	_, serr, code = runMorsel(t, "ration", demoDir, "--budget", "100", "--overlap", "60")
 	if code != exitUsage {
 		t.Fatalf("overlap over half the budget: exit %d, want 2: %s", code, serr)
+	}
+}
+
+// A document larger than the streaming threshold is cut in a window: its
+// chunks, emitted between those of the files around it, are those that
+// cutting the whole text gives, and the report's figures are those of
+// the whole text's plan.
+func TestRationStreamedFile(t *testing.T) {
+	dir := t.TempDir()
+	para := []byte("Salt spray dulled the QX-7731-Rb housing; the crew logged 3.5 mm of pitting.\nThe keeper counts the boats.\n\n")
+	big := bytes.Repeat(para, corpus.DefaultStreamAbove/len(para)+1000)
+	os.WriteFile(filepath.Join(dir, "a.txt"), []byte("A short note before."), 0o644)
+	os.WriteFile(filepath.Join(dir, "b.txt"), big, 0o644)
+	os.WriteFile(filepath.Join(dir, "c.txt"), []byte("A short note after."), 0o644)
+	plan := filepath.Join(t.TempDir(), "plan.jsonl")
+	out, serr, code := runMorsel(t, "ration", dir, "--budget", "3000", "--window", "4000", "--overlap", "50", "--emit", plan, "--format", "json", "--quiet", "--workers", "2")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, serr)
+	}
+	var rep ration.Report
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatal(err)
+	}
+
+	enc, _ := bpe.NewEncoder(bpe.Default(), bpe.Options{})
+	r := &ration.Rationer{Enc: enc, Frame: nil, Budget: 3000, Overlap: 50}
+	var want bytes.Buffer
+	jl := json.NewEncoder(&want)
+	jl.SetEscapeHTML(false)
+	rc := ration.NewCollector(r, "")
+	for _, name := range []string{"a.txt", "b.txt", "c.txt"} {
+		p := filepath.Join(dir, name)
+		text, _ := os.ReadFile(p)
+		chunks, tokens, err := r.Cut(p, 0, text, true)
+		if err != nil {
+			t.Fatal(err)
+		}
+		d := ration.Doc{Source: p, Record: 0, Bytes: len(text), Tokens: tokens, Chunks: len(chunks), Plan: chunks, Largest: chunks[0].Tokens, Smallest: chunks[0].Tokens}
+		for _, c := range chunks {
+			d.Largest, d.Smallest = max(d.Largest, c.Tokens), min(d.Smallest, c.Tokens)
+			jl.Encode(&c)
+		}
+		if err := rc.Add(d); err != nil {
+			t.Fatal(err)
+		}
+	}
+	got, err := os.ReadFile(plan)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(got, want.Bytes()) {
+		t.Fatalf("the emitted plan (%d bytes) is not the whole texts' plan (%d bytes)", len(got), want.Len())
+	}
+	whole := rc.Finish(report.OrNone(nil))
+	whole.Vocabulary, whole.Frame = rep.Vocabulary, rep.Frame
+	a, _ := json.Marshal(whole)
+	b, _ := json.Marshal(&rep)
+	if !bytes.Equal(a, b) {
+		t.Fatalf("streamed report\n%s\nwhole texts' report\n%s", b, a)
+	}
+	if ls, _ := os.ReadDir(filepath.Dir(plan)); len(ls) != 1 {
+		t.Fatalf("the plan's folder holds %d files, want the plan alone", len(ls))
 	}
 }

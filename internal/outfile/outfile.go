@@ -255,3 +255,42 @@ func RemovePending() {
 	}
 	pending.names = nil
 }
+
+// Scratch creates an unnamed scratch file for text that will be copied
+// into the output at target later: beside target (os.TempDir for a system
+// path), removed from its directory at once where the system allows, so
+// that nothing lists it and it goes when it is closed. Close removes it
+// where it could not be removed at once.
+func Scratch(target string) (*ScratchFile, error) {
+	dir := os.TempDir()
+	if !isSystemPath(target) {
+		dir = filepath.Dir(target)
+	}
+	f, err := os.CreateTemp(dir, ".morsel-scratch-*")
+	if err != nil {
+		return nil, err
+	}
+	s := &ScratchFile{File: f}
+	if os.Remove(f.Name()) != nil {
+		s.name = f.Name()
+		track(s.name)
+	}
+	return s, nil
+}
+
+// A ScratchFile is a file made by Scratch.
+type ScratchFile struct {
+	*os.File
+	name string // the path still to remove on Close; "" when removed
+}
+
+// Close closes the file and removes it.
+func (s *ScratchFile) Close() error {
+	err := s.File.Close()
+	if s.name != "" {
+		os.Remove(s.name)
+		untrack(s.name)
+		s.name = ""
+	}
+	return err
+}

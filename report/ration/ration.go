@@ -5,6 +5,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
+	"slices"
 	"sort"
 	"unicode"
 	"unicode/utf8"
@@ -14,7 +16,6 @@ import (
 	"morsel/report"
 	"morsel/report/render"
 	"morsel/report/request"
-	"morsel/report/walk"
 )
 
 // The kinds of cut a chunk ends at, from the most to the least wanted.
@@ -78,62 +79,120 @@ const blockMin = 128
 // gives no chunks. It fails, with ErrNoRoom, when the budget cannot hold
 // the frame and one character.
 func (r *Rationer) Cut(source string, record int, text []byte, keepText bool) ([]Chunk, int, error) {
-	c := r.newCutter(report.Where(source, record), text)
-	if c.err != nil {
-		return nil, c.total, c.err
-	}
-	if len(text) == 0 {
-		return nil, 0, nil
-	}
 	var out []Chunk
+	total, _, err := r.cut(r.newCutter(report.Where(source, record), text, nil), source, record, keepText, func(ch Chunk) error {
+		out = append(out, ch)
+		return nil
+	})
+	return out, int(total), err
+}
+
+// CutReader is Cut for a text read from rd, which it reads to the end:
+// each chunk goes to fn once it is decided, and the document's tokens and
+// bytes are returned. With the GPT-2 split rule it holds only a window of
+// the text (see readAhead); with another rule it reads the text whole
+// first. The chunks are those Cut gives for the whole text.
+func (r *Rationer) CutReader(source string, record int, rd io.Reader, keepText bool, fn func(Chunk) error) (tokens, bytes int64, err error) {
+	name := report.Where(source, record)
+	if r.Generic {
+		text, err := io.ReadAll(rd)
+		if err != nil {
+			return 0, int64(len(text)), err
+		}
+		return r.cut(r.newCutter(name, text, nil), source, record, keepText, fn)
+	}
+	return r.cut(r.newCutter(name, nil, rd), source, record, keepText, fn)
+}
+
+// cutReader is CutReader with the window moved by slideAt bytes or more.
+func (r *Rationer) cutReader(source string, record int, rd io.Reader, slideAt int, fn func(Chunk) error) (int64, int64, error) {
+	c := r.newCutter(report.Where(source, record), nil, rd)
+	c.slideAt = slideAt
+	return r.cut(c, source, record, true, fn)
+}
+
+// cut runs c to the text's end, giving fn each chunk, and returns the
+// document's tokens and bytes.
+func (r *Rationer) cut(c *cutter, source string, record int, keepText bool, fn func(Chunk) error) (int64, int64, error) {
+	c.countTo(-1, 1)
+	if c.err != nil {
+		return c.tokens(), c.size(), c.err
+	}
+	if c.final() && len(c.text) == 0 {
+		return 0, 0, nil
+	}
+	sb := report.SourceBytes(source)
 	s, prevEnd := 0, 0
-	for {
+	for k := 0; ; k++ {
+		c.ahead(s, prevEnd+1)
+		if c.err != nil {
+			return c.tokens(), c.size(), c.err
+		}
 		e, cut, tok, err := c.next(s, prevEnd+1)
 		if err == nil {
 			err = c.err
 		}
 		if err != nil {
-			return out, c.total, err
+			return c.tokens(), c.size(), err
 		}
-		ch := Chunk{Source: source, SourceBytes: report.SourceBytes(source), Record: record, Chunk: len(out), Start: s, End: e, Tokens: tok, Cut: cut}
+		ch := Chunk{Source: source, SourceBytes: sb, Record: record, Chunk: k, Start: c.base + s, End: c.base + e, Tokens: tok, Cut: cut}
 		if keepText {
-			ch.Text = string(text[s:e])
+			ch.Text = string(c.text[s:e])
 		}
-		out = append(out, ch)
-		if e == len(text) {
-			return out, c.total, nil
+		if err := fn(ch); err != nil {
+			return c.tokens(), c.size(), err
 		}
+		if c.final() && e == len(c.text) {
+			return c.tokens(), c.size(), nil
+		}
+		start := s
 		prevEnd = e
 		s = e
 		if r.Overlap > 0 {
-			s = c.overlapStart(ch.Start, e)
+			s = c.overlapStart(start, e)
 		}
+		s, prevEnd = c.slide(s, prevEnd)
 	}
 }
 
-// cutter holds one document's state while it is cut.
+// cutter holds one document's state while it is cut. A document read
+// from a Reader is held as a window, text, that starts at byte base of the
+// document: it reaches as far ahead as the next chunk's choice may look
+// (ahead), and what lies before the current chunk is dropped (slide).
+// Offsets inside the cutter are offsets in text.
 type cutter struct {
 	r    *Rationer
 	text []byte
-	// marks are offsets in text, from 0 to len(text), and cums the
-	// whole document's tokens before each: exact at every mark, and
-	// estimated in between by bytes.
+	base int       // the document's offset of text[0]
+	rd   io.Reader // the rest of the document; nil once read to its end
+	// marks are offsets in text, from at most the current chunk's start
+	// on, and cums the document's tokens before each, less cumBase:
+	// exact at every mark, and estimated in between by bytes. Once the
+	// text is read and counted to its end, the last mark is len(text).
 	marks   []uint32
 	cums    []uint32
-	total   int
-	generic bool
-	before  []byte
-	after   []byte
-	preCut  int // before[:preCut] counts on its own
-	preTok  int
-	postCut int // after[postCut:] counts on its own
-	postTok int
+	cumBase int64
+	// scanned is where the search for the next mark goes on, while the
+	// window is read further: no place before it is a safe cut.
+	scanned int
+	// slideAt is the least the window moves by, so that dropping the text
+	// behind the current chunk copies each byte a few times at most.
+	slideAt  int
+	generic  bool
+	genTotal int // the tokens of a generic document, encoded whole
+	before   []byte
+	after    []byte
+	preCut   int // before[:preCut] counts on its own
+	preTok   int
+	postCut  int // after[postCut:] counts on its own
+	postTok  int
 	// frameTok is the tokens of the frame around an empty document,
 	// overhead included.
 	frameTok int
 	buf      []byte
-	// err is the first split-pattern timeout met while counting: the plan
-	// then rests on counts that are not exact, and the document fails.
+	// err is the first split-pattern timeout met while counting (the plan
+	// then rests on counts that are not exact, and the document fails),
+	// or the reader's error.
 	err error
 }
 
@@ -146,8 +205,10 @@ func (c *cutter) count(t []byte) int {
 	return n
 }
 
-func (r *Rationer) newCutter(name string, text []byte) *cutter {
-	c := &cutter{r: r, text: text, generic: r.Generic}
+// newCutter starts the cut of a document: text when rd is nil, else what
+// rd yields.
+func (r *Rationer) newCutter(name string, text []byte, rd io.Reader) *cutter {
+	c := &cutter{r: r, text: text, rd: rd, generic: r.Generic, slideAt: slideMin}
 	c.before, c.after = r.Frame.Parts(name)
 	c.preCut, c.postCut = 0, len(c.after)
 	if !c.generic {
@@ -164,30 +225,160 @@ func (r *Rationer) newCutter(name string, text []byte) *cutter {
 	if c.generic {
 		c.encodeWhole()
 	} else {
-		c.countBlocks()
+		c.marks = make([]uint32, 1, 64)
+		c.cums = make([]uint32, 1, 64)
+		if rd == nil {
+			// The whole text is here: count it at once, and never move it.
+			c.countTo(math.MaxInt, len(text))
+			c.slideAt = math.MaxInt
+		}
 	}
 	return c
 }
 
-// countBlocks counts the document a block at a time, each block ending at
-// a pre-token edge that holds in any context (see safeCut), so the sum is
-// the whole document's count and every mark's count is exact.
-func (c *cutter) countBlocks() {
-	n := len(c.text)
-	c.marks = make([]uint32, 1, n/blockMin+2)
-	c.cums = make([]uint32, 1, n/blockMin+2)
-	sum := 0
-	for x := 0; x < n; {
-		y := firstSafeCut(c.text, x+blockMin, n)
-		if y == 0 {
-			y = n
+// Look-ahead. The choice of a chunk's end looks at the text from the
+// chunk's start up to the estimated end of the budget's tokens (at most
+// the budget less the frame), plus preTokenSlack bytes for the pre-token
+// that crosses it; the estimate needs one mark past it. So the window
+// reaches one mark past the budget's tokens and readAhead bytes past that
+// mark. Marks are at least blockMin bytes apart and fall only where a
+// pre-token must end (safeCut), so a stretch with no such place (one long
+// pre-token) is held whole: --max-document bounds it.
+const (
+	preTokenSlack = 256
+	readAhead     = preTokenSlack + 8
+	// lookBehind is the bytes kept before a chunk's start: character
+	// edges and sentence ends look a few bytes back.
+	lookBehind = 16
+	// readSize is how much a window reads at a time.
+	readSize = 1 << 20
+	// slideMin is the least a window moves by.
+	slideMin = 1 << 20
+)
+
+// ahead makes the window hold what the choice of the chunk from s that
+// ends at minEnd or after may look at.
+func (c *cutter) ahead(s, minEnd int) {
+	if c.generic {
+		return
+	}
+	c.countTo(-1, s+1)
+	ks := c.tokAt(s)
+	c.countTo(ks+max(c.r.Budget-c.frameTok, 0), minEnd+64)
+	c.fill(int(c.marks[len(c.marks)-1]) + readAhead)
+}
+
+// final reports whether the whole document is read and counted.
+func (c *cutter) final() bool {
+	return c.rd == nil && int(c.marks[len(c.marks)-1]) == len(c.text)
+}
+
+// tokens returns the document's tokens counted so far (all of them once
+// final).
+func (c *cutter) tokens() int64 {
+	if c.generic {
+		return int64(c.genTotal)
+	}
+	return c.cumBase + int64(c.cums[len(c.cums)-1])
+}
+
+// size returns the document's bytes read so far.
+func (c *cutter) size() int64 { return int64(c.base + len(c.text)) }
+
+// total returns the document's tokens less cumBase once they are all
+// counted, else a count larger than any.
+func (c *cutter) total() int {
+	if c.generic {
+		return c.genTotal
+	}
+	if c.final() {
+		return int(c.cums[len(c.cums)-1])
+	}
+	return math.MaxInt
+}
+
+// fill reads until the window holds n bytes or the document's end.
+func (c *cutter) fill(n int) {
+	for c.rd != nil && len(c.text) < n {
+		c.read()
+	}
+}
+
+// read reads once more from the document.
+func (c *cutter) read() {
+	if cap(c.text)-len(c.text) < readSize/2 {
+		c.text = slices.Grow(c.text, readSize+len(c.text)/4)
+	}
+	m, err := c.rd.Read(c.text[len(c.text):cap(c.text)])
+	c.text = c.text[:len(c.text)+m]
+	if err != nil {
+		c.rd = nil
+		if err != io.EOF && c.err == nil {
+			c.err = err
 		}
-		sum += c.count(c.text[x:y])
+	}
+}
+
+// countTo counts the document a block at a time until the marks pass tok
+// tokens and reach offset pos, or the whole text is counted. Each block
+// ends at a pre-token edge that holds in any context (see safeCut), so the
+// sum is the whole document's count and every mark's count is exact.
+func (c *cutter) countTo(tok, pos int) {
+	for !c.final() && c.err == nil {
+		last := len(c.marks) - 1
+		x := int(c.marks[last])
+		if int(c.cums[last]) > tok && x >= pos {
+			return
+		}
+		y := 0
+		for {
+			from := max(x+blockMin, c.scanned)
+			if y = firstSafeCut(c.text, from, len(c.text)); y > 0 {
+				break
+			}
+			if c.rd == nil {
+				y = len(c.text)
+				break
+			}
+			c.scanned = max(from, len(c.text))
+			c.read()
+		}
+		if y == x {
+			continue // an empty text: the last mark is its end
+		}
+		sum := int(c.cums[last]) + c.count(c.text[x:y])
 		c.marks = append(c.marks, uint32(y))
 		c.cums = append(c.cums, uint32(sum))
-		x = y
+		c.scanned = 0
 	}
-	c.total = sum
+}
+
+// slide drops the window's text before the chunk that starts at s, but
+// for the mark at or before s and lookBehind bytes, once that is slideAt
+// bytes or more, and returns s and prevEnd in the moved window.
+func (c *cutter) slide(s, prevEnd int) (int, int) {
+	if c.generic {
+		return s, prevEnd
+	}
+	i := sort.Search(len(c.marks), func(i int) bool { return int(c.marks[i]) > s }) - 1
+	d := min(int(c.marks[i]), max(s-lookBehind, 0))
+	if d < c.slideAt {
+		return s, prevEnd
+	}
+	n := copy(c.text, c.text[d:])
+	c.text = c.text[:n]
+	c.base += d
+	k := copy(c.marks, c.marks[i:])
+	c.marks = c.marks[:k]
+	copy(c.cums, c.cums[i:])
+	c.cums = c.cums[:k]
+	cum0 := c.cums[0]
+	c.cumBase += int64(cum0)
+	for j := range c.marks {
+		c.marks[j] -= uint32(d)
+		c.cums[j] -= cum0
+	}
+	return s - d, prevEnd - d
 }
 
 // encodeWhole encodes the whole document at once and marks the end of
@@ -217,7 +408,7 @@ func (c *cutter) encodeWhole() {
 		c.marks = append(c.marks, uint32(len(c.text)))
 		c.cums = append(c.cums, uint32(len(ids)))
 	}
-	c.total = len(ids)
+	c.genTotal = len(ids)
 }
 
 // tokAt returns an estimate of the document's tokens before offset x:
@@ -241,7 +432,7 @@ func (c *cutter) posAfter(k int) int {
 	if k <= 0 {
 		return 0
 	}
-	if k >= c.total {
+	if k >= c.total() {
 		return len(c.text)
 	}
 	i := sort.Search(len(c.cums), func(i int) bool { return int(c.cums[i]) >= k })
@@ -283,7 +474,7 @@ func (c *cutter) pick(s, minEnd, limit, ub int) (int, string) {
 	ks := c.tokAt(s)
 	maxE := s
 	if limit > 0 {
-		if ks+limit >= c.total {
+		if ks+limit >= c.total() {
 			maxE = n
 		} else {
 			maxE = c.posAfter(ks + limit)
@@ -420,7 +611,7 @@ func (c *cutter) preTokenEdge(s, minEnd, maxE int) int {
 	best := 0
 	c.r.Enc.Split(c.text[s:w], func(a, b int, special bool) {
 		p := s + b
-		if p >= minEnd && p <= maxE && (p < w || w == len(c.text)) && charEdge(c.text, p) {
+		if p >= minEnd && p <= maxE && (p < w || w == len(c.text) && c.final()) && charEdge(c.text, p) {
 			best = p
 		}
 	})
@@ -556,7 +747,45 @@ type Doc struct {
 	Largest     int     `json:"largest"`  // tokens of its largest chunk's request
 	Smallest    int     `json:"smallest"` // and of its smallest
 	Plan        []Chunk `json:"-"`
+	// Tally is what the report takes of the chunks of a document whose
+	// plan is not kept (one read as a stream); nil when Plan is.
+	Tally *Tally `json:"-"`
 }
+
+// Tally is what a report takes of a document's chunks: the requests'
+// tokens summed, the kinds of cut, and how full each chunk is.
+type Tally struct {
+	Tokens int64 `json:"tokens"`
+	// Cuts counts the chunks by the kind of cut, in the order of CutKinds.
+	Cuts [6]int `json:"cuts"`
+	// Fill counts the chunks but the last by percent of the budget
+	// (0 to 100); Last is the last one's percent.
+	Fill   [101]int `json:"fill"`
+	Last   int      `json:"last"`
+	Chunks int      `json:"chunks"`
+}
+
+// CutKinds are the kinds of cut, in the order of the report and of
+// Tally.Cuts.
+var CutKinds = [6]string{CutEnd, CutParagraph, CutLine, CutSentence, CutPreToken, CutInside}
+
+// add takes one more chunk, of pct percent of the budget.
+func (t *Tally) add(c Chunk, pct int) {
+	if t.Chunks > 0 {
+		t.Fill[t.Last]++
+	}
+	t.Chunks++
+	t.Last = min(max(pct, 0), 100)
+	t.Tokens += int64(c.Tokens)
+	for k, name := range CutKinds {
+		if c.Cut == name {
+			t.Cuts[k]++
+		}
+	}
+}
+
+// fillPct returns a request's tokens as a whole percent of the budget.
+func fillPct(tokens, budget int) int { return tokens * 100 / budget }
 
 // FillBin counts the chunks whose request fills From% <= fill < To% of the
 // budget (the last bin takes 100%).
@@ -598,8 +827,10 @@ var fillEdges = []int{0, 25, 50, 75, 90, 100}
 
 // Collector folds walk results into a Report.
 type Collector struct {
-	r     Report
-	fills []int
+	r Report
+	// fills counts the chunks but each document's last by percent of the
+	// budget, for the fill spread.
+	fills [101]int
 }
 
 // NewCollector starts a ration report for r.
@@ -612,23 +843,41 @@ func NewCollector(r *Rationer, target string) *Collector {
 	return rc
 }
 
-// CutDocument cuts one document, reading its text; with keepText the
-// plan's chunks carry their text.
-func (r *Rationer) CutDocument(d *corpus.Document, keepText bool) (Doc, error) {
-	text, err := walk.Text(d)
-	if err != nil {
-		return Doc{}, err
-	}
-	chunks, tokens, err := r.Cut(d.Source, d.Record, text, keepText)
-	rd := Doc{Source: d.Source, SourceBytes: report.SourceBytes(d.Source), Record: d.Record, Bytes: len(text), Tokens: tokens, Chunks: len(chunks), Plan: chunks}
-	for i, c := range chunks {
-		if i == 0 || c.Tokens > rd.Largest {
+// CutDocument cuts one document. A document held whole keeps its chunks
+// in Plan, with their text when keepText. A document that comes as a
+// Stream is read in a window (CutReader): its chunks go to sink, when it
+// is not nil, as they are decided, with their text when keepText, and
+// only their Tally is kept.
+func (r *Rationer) CutDocument(d *corpus.Document, keepText bool, sink func(Chunk) error) (Doc, error) {
+	rd := Doc{Source: d.Source, SourceBytes: report.SourceBytes(d.Source), Record: d.Record}
+	note := func(c Chunk) {
+		if rd.Chunks == 0 || c.Tokens > rd.Largest {
 			rd.Largest = c.Tokens
 		}
-		if i == 0 || c.Tokens < rd.Smallest {
+		if rd.Chunks == 0 || c.Tokens < rd.Smallest {
 			rd.Smallest = c.Tokens
 		}
+		rd.Chunks++
 	}
+	if d.Stream == nil {
+		chunks, tokens, err := r.Cut(d.Source, d.Record, d.Text, keepText)
+		for _, c := range chunks {
+			note(c)
+		}
+		rd.Bytes, rd.Tokens, rd.Plan = len(d.Text), tokens, chunks
+		return rd, err
+	}
+	defer d.Stream.Close()
+	rd.Tally = &Tally{}
+	tokens, size, err := r.CutReader(d.Source, d.Record, d.Stream, keepText && sink != nil, func(c Chunk) error {
+		note(c)
+		rd.Tally.add(c, fillPct(c.Tokens, r.Budget))
+		if sink != nil {
+			return sink(c)
+		}
+		return nil
+	})
+	rd.Bytes, rd.Tokens = int(size), int(tokens)
 	return rd, err
 }
 
@@ -648,29 +897,74 @@ func FailedDoc(d *corpus.Document, err error) report.Skipped {
 // piece of.
 const ReasonNoRoom = "no-room"
 
-// Add takes one document's plan.
-func (rc *Collector) Add(d Doc) {
+// Add takes one document's plan. It fails, wrapping
+// report.ErrTotalOverflow, when the request tokens summed would overflow,
+// and then leaves the document out.
+func (rc *Collector) Add(d Doc) error {
 	t := &rc.r.Totals
+	where := report.Where(d.Source, d.Record)
+	tokens := t.Tokens
+	var err error
+	if d.Tally != nil {
+		tokens, err = report.Sum(tokens, d.Tally.Tokens, where+": request tokens")
+	}
+	for _, c := range d.Plan {
+		if err == nil {
+			tokens, err = report.Sum(tokens, int64(c.Tokens), where+": request tokens")
+		}
+	}
+	if err != nil {
+		return err
+	}
+	chunks, err := report.Sum(int64(t.Chunks), int64(d.Chunks), where+": chunks")
+	if err != nil {
+		return err
+	}
+	t.Tokens, t.Chunks = tokens, int(chunks)
 	t.Documents++
 	if d.Chunks > 1 {
 		t.Split++
 	}
-	t.Chunks += d.Chunks
+	if d.Tally != nil {
+		rc.addTally(d.Tally)
+	}
 	for i, c := range d.Plan {
-		t.Tokens += int64(c.Tokens)
 		rc.r.Cuts[c.Cut]++
-		pct := c.Tokens * 100 / rc.r.Budget
-		k := 0
-		for k+1 < len(rc.r.Fill) && pct >= rc.r.Fill[k].To {
-			k++
-		}
-		rc.r.Fill[k].Chunks++
+		pct := fillPct(c.Tokens, rc.r.Budget)
+		rc.r.Fill[rc.bin(pct)].Chunks++
 		if i < len(d.Plan)-1 {
-			rc.fills = append(rc.fills, pct)
+			rc.fills[min(max(pct, 0), 100)]++
 		}
 	}
-	d.Plan = nil
+	d.Plan, d.Tally = nil, nil
 	rc.r.Documents = append(rc.r.Documents, d)
+	return nil
+}
+
+// addTally takes the chunks of a document whose plan was not kept.
+func (rc *Collector) addTally(tl *Tally) {
+	if tl.Chunks == 0 {
+		return
+	}
+	for k, n := range tl.Cuts {
+		if n > 0 {
+			rc.r.Cuts[CutKinds[k]] += n
+		}
+	}
+	for pct, n := range tl.Fill {
+		rc.r.Fill[rc.bin(pct)].Chunks += n
+		rc.fills[pct] += n
+	}
+	rc.r.Fill[rc.bin(tl.Last)].Chunks++
+}
+
+// bin returns the fill bin of a chunk that fills pct percent of the budget.
+func (rc *Collector) bin(pct int) int {
+	k := 0
+	for k+1 < len(rc.r.Fill) && pct >= rc.r.Fill[k].To {
+		k++
+	}
+	return k
 }
 
 // Finish sums the report and returns it.
@@ -685,8 +979,34 @@ func (rc *Collector) Finish(skipped []report.Skipped) *Report {
 			rc.r.Totals.NoRoom++
 		}
 	}
-	rc.r.FillSpread = report.SpreadOf(rc.fills)
+	rc.r.FillSpread = spreadOfCounts(rc.fills[:])
 	return &rc.r
+}
+
+// spreadOfCounts is report.SpreadOf of the values that counts counts (the
+// value v, counts[v] times).
+func spreadOfCounts(counts []int) report.Spread {
+	n := 0
+	for _, k := range counts {
+		n += k
+	}
+	if n == 0 {
+		return report.Spread{}
+	}
+	// at returns the k-th smallest value, from 1.
+	at := func(k int) int {
+		for v, c := range counts {
+			if k <= c {
+				return v
+			}
+			k -= c
+		}
+		return len(counts) - 1
+	}
+	rank := func(p float64) int {
+		return at(min(max(int(p/100*float64(n)+0.999999999), 1), n))
+	}
+	return report.Spread{Min: at(1), Median: rank(50), P90: rank(90), P99: rank(99), Max: at(n)}
 }
 
 // Write renders a ration report in format f.
@@ -724,7 +1044,7 @@ func Write(w io.Writer, f render.Format, r *Report) error {
 		fill.AddRow(label, render.Num(b.Chunks))
 	}
 	cuts := &render.Grid{Title: "Where chunks end", Header: []string{"cut", "chunks"}, Right: []int{1}}
-	for _, k := range []string{CutEnd, CutParagraph, CutLine, CutSentence, CutPreToken, CutInside} {
+	for _, k := range CutKinds {
 		if n := r.Cuts[k]; n > 0 {
 			cuts.AddRow(k, render.Num(n))
 		}

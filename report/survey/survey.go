@@ -153,17 +153,35 @@ func (sv *Surveyor) Keep(n int, rows func(Weight) error) {
 	sv.keep, sv.rows = n, rows
 }
 
-// Add takes one document's weight; the error is the row writer's.
+// Add takes one document's weight; the error is the row writer's, or a
+// total's that would overflow (report.ErrTotalOverflow), which leaves the
+// document out.
 func (sv *Surveyor) Add(d Weight) error {
+	t := &sv.s.Totals
+	// The totals are checked; a format's share, the repeats and the
+	// special strings are parts of them, and so within them.
+	where := report.Where(d.Source, d.Record)
+	tokens, err := report.Sum(t.Tokens, int64(d.Tokens), where+": tokens")
+	if err != nil {
+		return err
+	}
+	bytes, err := report.Sum(t.Bytes, d.Bytes, where+": bytes")
+	if err != nil {
+		return err
+	}
+	chars, err := report.Sum(t.Chars, d.Chars, where+": characters")
+	if err != nil {
+		return err
+	}
+	words, err := report.Sum(t.WCWords, d.WCWords, where+": words")
+	if err != nil {
+		return err
+	}
 	if sv.keep < 0 || len(sv.s.Documents) < sv.keep {
 		sv.s.Documents = append(sv.s.Documents, d)
 	}
-	t := &sv.s.Totals
 	t.Documents++
-	t.Tokens += int64(d.Tokens)
-	t.Bytes += d.Bytes
-	t.Chars += d.Chars
-	t.WCWords += d.WCWords
+	t.Tokens, t.Bytes, t.Chars, t.WCWords = tokens, bytes, chars, words
 	t.Specials += d.Specials
 	if d.Specials > 0 {
 		sv.special++

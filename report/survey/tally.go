@@ -1,6 +1,7 @@
 package survey
 
 import (
+	"math"
 	"sort"
 
 	"morsel/report"
@@ -104,13 +105,16 @@ func (t *tokenTally) histogram() []Bin {
 	most := 0
 	t.each(func(tokens, _ int) { most = max(most, tokens) })
 	bins := []Bin{{From: 0, To: 64}}
-	for bins[len(bins)-1].To <= most {
-		last := bins[len(bins)-1].To
-		bins = append(bins, Bin{From: last, To: 2 * last})
+	for last := bins[0].To; last <= most && last < math.MaxInt; last = bins[len(bins)-1].To {
+		next := math.MaxInt // the last bin ends at the largest int rather than past it
+		if last <= math.MaxInt/2 {
+			next = 2 * last
+		}
+		bins = append(bins, Bin{From: last, To: next})
 	}
 	k := 0
 	t.each(func(tokens, docs int) {
-		for tokens >= bins[k].To {
+		for k+1 < len(bins) && tokens >= bins[k].To {
 			k++
 		}
 		bins[k].Documents += docs
