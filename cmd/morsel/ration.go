@@ -49,6 +49,10 @@ text. The plan is written to a temporary file beside FILE and renamed to FILE on
 whole, so a run that fails leaves no half plan; FILE may not be one of the inputs, and an
 existing FILE is replaced only with --force. A file the run writes is never read as input.
 
+A document over 32 MiB, and standard input, is cut as it is read, in a window that holds
+the next chunk and what its choice looks at, so memory stays bounded; the plan is the one
+the whole text gives.
+
 Exit status: 1 when an input could not be read, else 3 when a document cannot be cut
 because the budget cannot hold the frame and one character, else 0.`,
 		Example: `  morsel ration testdata/demo/docs --budget 512 --frame testdata/demo/settings/frame.txt

@@ -3,8 +3,10 @@ package ration
 import (
 	"bytes"
 	"errors"
+	"math"
 	"math/rand"
 	"os"
+	"strings"
 	"testing"
 
 	"morsel/bpe"
@@ -301,4 +303,32 @@ func demoFrame(tb testing.TB) *request.Frame {
 		tb.Fatal(err)
 	}
 	return f
+}
+
+// The request tokens summed past 2^63-1 are an error naming the document,
+// which is left out; so are the chunks counted past it.
+func TestCollectorTotalOverflow(t *testing.T) {
+	r := &Rationer{Enc: reporttest.Encoder(t), Budget: 100}
+	rc := NewCollector(r, "")
+	half := Doc{Source: "a.txt", Chunks: 1, Tally: &Tally{Tokens: math.MaxInt64/2 + 1, Chunks: 1}}
+	if err := rc.Add(half); err != nil {
+		t.Fatal(err)
+	}
+	half.Source = "b.txt"
+	half.Tally = &Tally{Tokens: math.MaxInt64/2 + 1, Chunks: 1}
+	if err := rc.Add(half); !errors.Is(err, report.ErrTotalOverflow) || !strings.Contains(err.Error(), "b.txt") {
+		t.Fatalf("second half of 2^63 request tokens: %v", err)
+	}
+	plan := Doc{Source: "c.txt", Chunks: 2, Plan: []Chunk{{Tokens: math.MaxInt64 / 2}, {Tokens: math.MaxInt64 / 2}}}
+	if err := rc.Add(plan); !errors.Is(err, report.ErrTotalOverflow) {
+		t.Fatalf("a plan past 2^63 request tokens: %v", err)
+	}
+	many := Doc{Source: "d.txt", Chunks: math.MaxInt}
+	if err := rc.Add(many); !errors.Is(err, report.ErrTotalOverflow) {
+		t.Fatalf("2^63 chunks after one: %v", err)
+	}
+	got := rc.Finish(nil)
+	if got.Totals.Documents != 1 || got.Totals.Tokens != math.MaxInt64/2+1 || got.Totals.Chunks != 1 || len(got.Documents) != 1 {
+		t.Fatalf("after the overflows: %+v", got.Totals)
+	}
 }
