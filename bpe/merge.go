@@ -44,7 +44,8 @@ type state struct {
 	spmIDs     []uint32
 	spmCounted []uint32
 	spmOut     []uint32
-	spm        *spmCache   // the word cache of short pieces (spm_cache.go)
+	spm        *spmCache   // the word cache of SentencePiece pieces (spm_cache.go)
+	pairs      []uint64    // mergeShortPairs's pairs (spm_fast.go)
 	cells      []uint32    // mergeLong's cells
 	tree       []uint32    // its minTree's nodes
 	base       []uint32    // its starting symbols, when p's bytes do not give them

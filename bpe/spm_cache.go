@@ -90,12 +90,24 @@ func newSPMCacheRings(words, ids, text int) *spmCache {
 	}
 }
 
-// spmKey returns the words of a piece of 1 to spmInline bytes.
+// spmKey returns the words of a piece of 1 to spmInline bytes, read
+// without copying: its bytes, and its length where no byte needs the
+// room (the low byte of k2 from 8 bytes on, which the last word's first
+// byte, also in k0 or k1, gives up; the top byte of k0 below that), so
+// that no two pieces share a key and no key is all zero.
 func spmKey(p []byte) (k0, k1, k2 uint64) {
-	var b [24]byte
-	b[0] = byte(len(p))
-	copy(b[1:], p)
-	return binary.LittleEndian.Uint64(b[0:]), binary.LittleEndian.Uint64(b[8:]), binary.LittleEndian.Uint64(b[16:])
+	n := len(p)
+	switch {
+	case n >= 16:
+		return binary.LittleEndian.Uint64(p), binary.LittleEndian.Uint64(p[8:]), binary.LittleEndian.Uint64(p[n-8:])&^0xff | uint64(n)
+	case n >= 8:
+		return binary.LittleEndian.Uint64(p), binary.LittleEndian.Uint64(p[n-8:]), uint64(n)
+	}
+	k0 = uint64(n) << 56
+	for i, b := range p {
+		k0 |= uint64(b) << (8 * i)
+	}
+	return k0, 0, 0
 }
 
 // index returns the set of a hash in a table of 1<<(64-shift) sets.
@@ -181,7 +193,9 @@ func (s *state) spmPiece(p []byte) []uint32 {
 		}
 	}
 	var ids []uint32
-	if len(p) <= spmShortest {
+	if pt := s.v.pairs; pt != nil && len(p) <= spmShortest {
+		ids = s.mergeShortPairs(p, pt)
+	} else if len(p) <= spmShortest {
 		ids = s.mergeShort(p)
 	} else {
 		ids = s.mergeLong(p)

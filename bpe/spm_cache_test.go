@@ -68,3 +68,60 @@ func TestSPMCacheEvictsExactly(t *testing.T) {
 		}
 	}
 }
+
+// mergeShortPairs merges as mergeShort does under every test model, on
+// random pieces of letters, marks, digits and characters some models
+// lack.
+func TestMergeShortPairsEqualsMergeShort(t *testing.T) {
+	alphabet := []string{"▁", "e", "t", "a", "o", "n", "s", "th", "in", "1", "0", ".", "é", "ß", "中", "\u00a0", "x"}
+	rng := rand.New(rand.NewPCG(5, 6))
+	for k, enc := range spmEncoders(t) {
+		pt := enc.v.pairs
+		if pt == nil {
+			continue
+		}
+		s, plain := newState(enc.v, 16), newState(enc.v, 16)
+		for range 3000 {
+			var p []byte
+			for range 1 + rng.IntN(30) {
+				p = append(p, alphabet[rng.IntN(len(alphabet))]...)
+			}
+			want := slices.Clone(plain.mergeShort(p))
+			if got := s.mergeShortPairs(p, pt); !slices.Equal(got, want) {
+				t.Fatalf("%s: %q merges to %v, mergeShort gives %v", spmModels[k], p, got, want)
+			}
+		}
+	}
+}
+
+// No two pieces of 1 to spmInline bytes share a key, and none is all
+// zero (a free entry).
+func TestSPMKeyDistinct(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 8))
+	seen := map[[3]uint64]string{}
+	alphabet := []byte{0, 1, 'a', 0xe2, 0x96, 0x81, 0xff}
+	var pieces [][]byte
+	for n := 1; n <= spmInline; n++ {
+		for _, c := range alphabet {
+			pieces = append(pieces, bytes.Repeat([]byte{c}, n)) // the same bytes at every length
+		}
+	}
+	for range 200000 {
+		p := make([]byte, 1+rng.IntN(spmInline))
+		for i := range p {
+			p[i] = alphabet[rng.IntN(len(alphabet))]
+		}
+		pieces = append(pieces, p)
+	}
+	for _, p := range pieces {
+		k0, k1, k2 := spmKey(p)
+		k := [3]uint64{k0, k1, k2}
+		if k == [3]uint64{} {
+			t.Fatalf("%q has the free entry's key", p)
+		}
+		if q, ok := seen[k]; ok && q != string(p) {
+			t.Fatalf("%q and %q share the key %x", q, p, k)
+		}
+		seen[k] = string(p)
+	}
+}

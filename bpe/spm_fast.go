@@ -169,3 +169,47 @@ func (sp *spmModel) nextCut(norm []byte, i int) int {
 	}
 	return len(norm)
 }
+
+// mergeShortPairs is mergeShort for a vocabulary with the compact merge
+// table: the same merges (the lowest rank first, the leftmost on ties),
+// with each pair's rank and merge in one word and the pairs shifted in
+// place, which for a few dozen symbols costs less than copying three
+// slices a merge.
+func (s *state) mergeShortPairs(p []byte, pt *pairTable) []uint32 {
+	syms := s.v.spm.initial(s.syms[:0], p)
+	n := len(syms)
+	if cap(s.pairs) < n {
+		s.pairs = make([]uint64, n)
+	}
+	pairs := s.pairs[:max(n-1, 0)]
+	for i := range pairs {
+		r, m := pt.get(syms[i], syms[i+1])
+		pairs[i] = uint64(r)<<32 | uint64(m)
+	}
+	for len(pairs) > 0 {
+		best, at := uint64(noRank), -1
+		for i, e := range pairs {
+			if e>>32 < best {
+				best, at = e>>32, i
+			}
+		}
+		if at < 0 {
+			break
+		}
+		syms[at] = uint32(pairs[at])
+		copy(syms[at+1:], syms[at+2:])
+		syms = syms[:len(syms)-1]
+		copy(pairs[at:], pairs[at+1:])
+		pairs = pairs[:len(pairs)-1]
+		if at > 0 {
+			r, m := pt.get(syms[at-1], syms[at])
+			pairs[at-1] = uint64(r)<<32 | uint64(m)
+		}
+		if at < len(pairs) {
+			r, m := pt.get(syms[at], syms[at+1])
+			pairs[at] = uint64(r)<<32 | uint64(m)
+		}
+	}
+	s.syms = syms
+	return syms
+}
