@@ -74,9 +74,9 @@ func (r *reader) csv(in *bufio.Reader, comma byte) error {
 	if col < 0 {
 		if !r.columnAsked {
 			// Not a table of texts: the whole file is one text document.
-			raw := append(append([]byte(nil), lead...), rr.raw...)
+			raw := append(append([]byte(nil), lead...), rr.raw.bytes()...)
 			note := fmt.Sprintf("read as one text document: the header has no column %q (it has %s)", r.opt.Column, joinNames(header))
-			return r.text(io.MultiReader(bytes.NewReader(raw), bytes.NewReader(rr.back), in), format, r.size, note)
+			return r.text(io.MultiReader(bytes.NewReader(raw), rr.back.reader(), in), format, r.size, note)
 		}
 		return r.skip(0, ReasonNoField, fmt.Sprintf("line 1: no column %q in header (%s)", r.opt.Column, strings.Join(header, ", ")), true)
 	}

@@ -108,6 +108,8 @@ func FuzzRowReader(f *testing.F) {
 	} {
 		f.Add([]byte(s))
 	}
+	defer func(n int) { lineChunk = n }(lineChunk)
+	lineChunk = 7 // rows of many chunks
 	f.Fuzz(func(t *testing.T, data []byte) {
 		for _, comma := range []byte{',', '\t'} {
 			want, wantLines, failed := referenceRows(data, rune(comma))
@@ -154,4 +156,40 @@ func FuzzRowReader(f *testing.F) {
 			}
 		}
 	})
+}
+
+// TestLinesKeepLinesInOrder adds lines to a lines of small chunks, reads
+// some back, moves others before them, and wants what a plain byte slice
+// holds after the same steps.
+func TestLinesKeepLinesInOrder(t *testing.T) {
+	defer func(n int) { lineChunk = n }(lineChunk)
+	lineChunk = 8
+	var l, front lines
+	var plain []byte
+	in := []string{"a\n", "bb\n", "a line longer than a chunk\n", "\n", "ccc\n", "last"}
+	for _, s := range in[:5] {
+		l.add([]byte(s))
+		plain = append(plain, s...)
+	}
+	if got := string(l.next()); got != "a\n" || l.lines() != 4 {
+		t.Fatalf("next %q, then %d lines; want \"a\\n\", 4", got, l.lines())
+	}
+	plain = plain[2:]
+	front.add([]byte("x\n"))
+	front.add([]byte(in[5]))
+	l.prepend(&front)
+	plain = append([]byte("x\nlast"), plain...)
+	if front.n != 0 || l.n != int64(len(plain)) || string(l.bytes()) != string(plain) {
+		t.Fatalf("after prepend: %q (%d bytes), want %q", l.bytes(), l.n, plain)
+	}
+	// "last" has no line break (as the input's last line given back may
+	// not): it is read alone, as its chunk ends there.
+	var got []string
+	for line := l.next(); line != nil; line = l.next() {
+		got = append(got, string(line))
+	}
+	want := []string{"x\n", "last", "bb\n", "a line longer than a chunk\n", "\n", "ccc\n"}
+	if fmt.Sprint(got) != fmt.Sprint(want) || l.n != 0 {
+		t.Fatalf("lines %q, %d bytes left; want %q", got, l.n, want)
+	}
 }

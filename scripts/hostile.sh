@@ -183,9 +183,13 @@ if [[ $quick == 0 ]]; then
 		big
 	fi
 	if want csv; then
-		# Rows of about 77 bytes, as in the export that showed the bug (13M rows a GB).
-		{ printf 'id,text\n1,"never closed\n'; yes '2,a plain row of the export: the keeper counts the boats at dawn and at dusk' | head -c 1G; } >"$work/big-c.csv"
-		run "1 GB CSV, one open quote" 1 900 1200 '$M survey big-c.csv --quiet'
+		# Rows of about 77 bytes, as in the export that showed the bug (13M rows
+		# a GB), numbered so that they are not one group of identical texts. The
+		# open quote holds about the row bound (256 MiB) of lines, whatever reads it.
+		{ printf 'id,text\n1,"never closed\n'; awk 'BEGIN { for (i = 2; i < 13000000; i++) printf "%d,row %d of the export: the keeper counts the boats at dawn\n", i, i }'; } >"$work/big-c.csv"
+		run "1 GB CSV, one open quote" 1 900 450 '$M survey big-c.csv --quiet' 'grep -q "(line 2): the quote opened" out'
+		run "1 GB CSV, open quote, fit" 1 900 450 '$M fit big-c.csv --quiet --format json >/dev/null'
+		run "1 GB CSV, open quote, fragments" 1 900 550 '$M fragments big-c.csv --quiet >/dev/null'
 		big
 	fi
 fi
