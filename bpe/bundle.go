@@ -507,9 +507,9 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 			}
 		}
 	}
-	p.cuts = cutsFor(v, p)
 	v.pipe = p
 	v.slow = !v.plainModel()
+	p.cuts = cutsFor(v, p) // after v.slow, which the model's first symbols follow
 	if config != nil {
 		w, err := configWindow(configName, config)
 		if err != nil {

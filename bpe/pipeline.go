@@ -150,40 +150,77 @@ func (s *state) pretokenize(t []byte, al []int32, first bool) {
 		s.emit(0, t, al, first)
 		return
 	}
-	r := p.metaspace
-	start := 0
-	for i := 1; i < len(t); i++ {
-		x, y := t[i-1], t[i]
-		switch {
-		case y < utf8.RuneSelf:
-			if x < utf8.RuneSelf && c.known[x] && c.known[y] && !c.pair[x][y] {
-				break
-			}
-			continue
-		case c.beforeRepl && y == r[0] && bytes.HasPrefix(t[i:], []byte(r)) && !bytes.HasSuffix(t[:i], []byte(r)):
-		default:
-			continue
-		}
-		s.emitSub(0, t, al, first, start, i)
-		start = i
+	if s.mode == sinkCount {
+		s.n += s.countCuts(t, c)
+		return
 	}
-	s.emitSub(0, t, al, first, start, len(t))
+	for start := 0; start < len(t); {
+		end := c.next(t, start)
+		s.emitSub(0, t, al, first, start, end)
+		start = end
+	}
+}
+
+// countCuts returns the number of tokens of t cut as pretokenize cuts it:
+// counting, the commonest use, takes the pieces straight to the word cache.
+func (s *state) countCuts(t []byte, c *cutTable) int {
+	n := 0
+	for start := 0; start < len(t); {
+		end := c.next(t, start)
+		if end-start == 1 {
+			n += int(c.one[t[start]])
+		} else {
+			n += s.count(t[start:end])
+		}
+		start = end
+	}
+	return n
 }
 
 // cutTable says where a text with no pre-tokenizer may be cut without
 // changing its ids: between two ASCII characters that are tokens of their
-// own (or need none: see cutsFor) and that no token holds side by side
-// (pair false), and, with
-// beforeRepl, before a replacement character that follows another
-// character, when every token holding the replacement holds it only in a
-// leading run. A merge across such a cut would make a token holding the
-// two characters there, and there is none; both characters having tokens,
-// no unknown can be fused across it, and no merge involves the unk or
-// byte-fallback tokens (checked), so the two sides merge as the whole.
+// own (or need none: see cutsFor) and that no token holds side by side,
+// and, with beforeRepl, before a replacement character that follows
+// another character, when every token holding the replacement holds it
+// only in a leading run. A merge across such a cut would make a token
+// holding the two characters there, and there is none; both characters
+// having tokens, no unknown can be fused across it, and no merge involves
+// the unk or byte-fallback tokens (checked), so the two sides merge as the
+// whole.
 type cutTable struct {
-	known      [utf8.RuneSelf]bool
-	pair       [utf8.RuneSelf][utf8.RuneSelf]bool
+	// at is indexed by two bytes side by side, x<<8 | y: cutHere where the
+	// text may be cut between them, cutRepl where it may if y starts a
+	// replacement character that does not follow one, else 0. One look-up
+	// a byte decides the common case.
+	at         [1 << 16]uint8
+	repl       []byte
 	beforeRepl bool
+	// one is the number of tokens of a piece of one byte.
+	one [256]uint8
+}
+
+const (
+	cutHere = 1 + iota
+	cutRepl
+)
+
+// next returns the first place after start (start < len(t)) where t may be
+// cut, or len(t).
+func (c *cutTable) next(t []byte, start int) int {
+	x := t[start]
+	for i := start + 1; i < len(t); i++ {
+		y := t[i]
+		switch c.at[uint16(x)<<8|uint16(y)] {
+		case cutHere:
+			return i
+		case cutRepl:
+			if bytes.HasPrefix(t[i:], c.repl) && !bytes.HasSuffix(t[:i], c.repl) {
+				return i
+			}
+		}
+		x = y
+	}
+	return len(t)
 }
 
 var allBytes = func() (b [256]byte) {
@@ -212,16 +249,18 @@ func cutsFor(v *Vocab, p *pipeline) *cutTable {
 	if !ok {
 		return nil
 	}
-	c := &cutTable{beforeRepl: p.metaspace != ""}
+	c := &cutTable{beforeRepl: p.metaspace != "", repl: []byte(p.metaspace)}
 	// With no unk token to fuse (a character with no token is dropped or
 	// spelled in byte tokens), a character need not be a token to be cut
 	// beside.
+	var known [utf8.RuneSelf]bool
+	var pair [utf8.RuneSelf][utf8.RuneSelf]bool
 	if m.unk < 0 || (m.fallback && m.fallbackAll(allBytes[:])) {
-		for i := range c.known {
-			c.known[i] = true
+		for i := range known {
+			known[i] = true
 		}
 	}
-	r := []byte(p.metaspace)
+	r := c.repl
 	if c.beforeRepl {
 		if _, ok := v.ID(r); !ok {
 			c.beforeRepl = false
@@ -232,11 +271,11 @@ func cutsFor(v *Vocab, p *pipeline) *cutTable {
 			continue
 		}
 		if len(sp) == 1 && sp[0] < utf8.RuneSelf {
-			c.known[sp[0]] = true
+			known[sp[0]] = true
 		}
 		for i := 1; i < len(sp); i++ {
 			if sp[i-1] < utf8.RuneSelf && sp[i] < utf8.RuneSelf {
-				c.pair[sp[i-1]][sp[i]] = true
+				pair[sp[i-1]][sp[i]] = true
 			}
 		}
 		if c.beforeRepl {
@@ -248,6 +287,23 @@ func cutsFor(v *Vocab, p *pipeline) *cutTable {
 				c.beforeRepl = false
 			}
 		}
+	}
+	for x := range utf8.RuneSelf {
+		for y := range utf8.RuneSelf {
+			if known[x] && known[y] && !pair[x][y] {
+				c.at[x<<8|y] = cutHere
+			}
+		}
+	}
+	if c.beforeRepl && r[0] >= utf8.RuneSelf { // an ASCII byte follows the rule above alone
+		for x := range 256 {
+			c.at[x<<8|int(r[0])] = cutRepl
+		}
+	}
+	// A piece of one byte is one symbol and merges with nothing.
+	st := newState(v, 1)
+	for b := range c.one {
+		c.one[b] = uint8(len(st.initial(nil, []byte{byte(b)})))
 	}
 	return c
 }
