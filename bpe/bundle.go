@@ -455,6 +455,11 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 	for i := range m.fallbackID {
 		m.fallbackID[i] = noToken
 	}
+	for c := range m.asciiID {
+		if id, ok := lookup[string(rune(c))]; ok && m.charLevel && m.prefix == "" && m.suffix == "" {
+			m.asciiID[c] = uint32(id) + 1
+		}
+	}
 	if b.model.ByteFallback {
 		m.fallback = true
 		for c := 0; c < 256; c++ {

@@ -15,6 +15,11 @@ type modelOpts struct {
 	// fallback: a character with no token becomes its bytes' <0xNN> tokens.
 	fallback   bool
 	fallbackID [256]uint32 // the <0xNN> token of each byte, noToken when there is none
+	// asciiID is one more than the token of each ASCII character alone,
+	// or 0 (the zero value) when there is none or when a prefix or suffix
+	// makes the key differ: the commonest first symbols, found without
+	// hashing.
+	asciiID [utf8.RuneSelf]uint32
 	// ignoreMerges: a pre-token that is itself a token is that token.
 	ignoreMerges bool
 	// prefix goes before every symbol but a pre-token's first; suffix after
@@ -44,6 +49,12 @@ func (s *state) initial(syms []uint32, p []byte) []uint32 {
 	m := &v.model
 	lastUnk := false
 	for i := 0; i < len(p); {
+		if c := p[i]; c < utf8.RuneSelf && m.asciiID[c] != 0 {
+			syms = append(syms, m.asciiID[c]-1)
+			lastUnk = false
+			i++
+			continue
+		}
 		n := 1
 		if m.charLevel {
 			if _, n = utf8.DecodeRune(p[i:]); n < 1 {
