@@ -177,7 +177,8 @@ func TestBundleSplitTilesText(t *testing.T) {
 // Cutting a metaspace text where the cut table allows (before each
 // replacement character that follows another character, between ASCII
 // characters no token holds side by side) gives the ids of the whole text
-// as one merge problem.
+// as one merge problem, and counting the cut text (its own path) their
+// number.
 func TestMetaspaceCutKeepsIDs(t *testing.T) {
 	v, _ := loadTestBundle(t, "metaspace-32k")
 	if c := v.pipe.cuts; c == nil || !c.beforeRepl {
@@ -197,6 +198,9 @@ func TestMetaspaceCutKeepsIDs(t *testing.T) {
 		v.pipe.cuts = c
 		if !eqInts(cut, whole) {
 			t.Errorf("%s: %d ids cut, %d whole", name, len(cut), len(whole))
+		}
+		if n := enc.Count(text); n != len(whole) {
+			t.Errorf("%s: counted %d, %d ids whole", name, n, len(whole))
 		}
 	}
 }
@@ -303,6 +307,9 @@ func FuzzMetaspaceCutKeepsIDs(f *testing.F) {
 		v.pipe.cuts = c
 		if !eqInts(cut, whole) {
 			t.Fatalf("%q: ids %v cut, %v whole", s, cut, whole)
+		}
+		if n := enc.Count([]byte(s)); n != len(whole) {
+			t.Fatalf("%q: counted %d, %d ids whole", s, n, len(whole))
 		}
 	})
 }
