@@ -9,10 +9,11 @@ import (
 // merge loop. It is never shared between goroutines.
 type state struct {
 	v     *Vocab
-	near  [nearSize]slot    // a direct-mapped copy of recently used short entries, small enough to stay in the core's cache
-	short u64table          // pre-tokens of 2-7 bytes, packed into the key -> their ids (see idsValue)
-	mid   u128table         // pre-tokens of 8-15 bytes, packed into two words -> the same
-	cache map[string]uint64 // longer pre-tokens, up to cacheLongest bytes -> the same
+	near  [nearSize]slot     // a direct-mapped copy of recently used short entries, small enough to stay in the core's cache
+	nearM [nearMidSize]slot3 // the same for pre-tokens of 8-15 bytes
+	short u64table           // pre-tokens of 2-7 bytes, packed into the key -> their ids (see idsValue)
+	mid   u128table          // pre-tokens of 8-15 bytes, packed into two words -> the same
+	cache map[string]uint64  // longer pre-tokens, up to cacheLongest bytes -> the same
 	arena []uint32
 	max   int
 
@@ -54,8 +55,14 @@ type state struct {
 
 const (
 	noRank = math.MaxUint32
-	// cacheLongest is the longest pre-token, in bytes, that the cache keeps.
-	cacheLongest = 64
+	// cacheLongest is the longest pre-token, in bytes, that the cache
+	// keeps (at most 255: the number of ids goes in a byte). Deep
+	// indentation under a metaspace vocabulary makes pre-tokens of some 80
+	// bytes that recur throughout a code base.
+	cacheLongest = 128
+	// arenaMost is how many ids the arena holds before the cache starts
+	// afresh, whatever the number of words.
+	arenaMost = 1 << 22
 	// shortest is the longest pre-token, in bytes, that the plain scan
 	// merges; longer ones go through the heap.
 	shortest = 48
@@ -66,9 +73,14 @@ func newState(v *Vocab, maxWords int) *state {
 }
 
 // packShort packs a pre-token of 2 to 7 bytes, and its length, into one
-// key: no hashing of strings for the commonest words.
+// key: no hashing of strings for the commonest words. When the slice's
+// capacity allows (a pre-token cut from a longer text), the bytes are read
+// as one word.
 func packShort(p []byte) uint64 {
 	k := uint64(len(p)) << 56
+	if cap(p) >= 8 {
+		return k | binary.LittleEndian.Uint64(p[:8])&(1<<(8*len(p))-1)
+	}
 	for i, b := range p {
 		k |= uint64(b) << (8 * i)
 	}
@@ -76,10 +88,13 @@ func packShort(p []byte) uint64 {
 }
 
 // nearSize is the number of slots in the direct-mapped front of the short
-// cache: 4096 slots of 16 bytes, 64 KB.
+// cache: 4096 slots of 16 bytes, 64 KB; nearMidSize that of the mid cache,
+// 1024 slots of 24 bytes.
 const (
-	nearBits = 12
-	nearSize = 1 << nearBits
+	nearBits    = 12
+	nearSize    = 1 << nearBits
+	nearMidBits = 10
+	nearMidSize = 1 << nearMidBits
 )
 
 // packMid packs a pre-token of 8 to 15 bytes, and its length, into two
@@ -87,6 +102,9 @@ const (
 func packMid(p []byte) (uint64, uint64) {
 	k1 := binary.LittleEndian.Uint64(p)
 	k2 := uint64(len(p)) << 56
+	if cap(p) >= 16 {
+		return k1, k2 | binary.LittleEndian.Uint64(p[8:16])&(1<<(8*(len(p)-8))-1)
+	}
 	for i, b := range p[8:] {
 		k2 |= uint64(b) << (8 * i)
 	}
@@ -108,7 +126,17 @@ func (s *state) cached(p []byte) (uint64, bool) {
 		return v, ok
 	}
 	if len(p) < 16 {
-		return s.mid.get(packMid(p))
+		k1, k2 := packMid(p)
+		// k2 holds the length: never 0, the empty slot's.
+		n := &s.nearM[(k1*0x9E3779B97F4A7C15^k2)>>(64-nearMidBits)]
+		if n.k2 == k2 && n.k1 == k1 {
+			return n.v, true
+		}
+		v, ok := s.mid.get(k1, k2)
+		if ok {
+			n.k1, n.k2, n.v = k1, k2, v
+		}
+		return v, ok
 	}
 	if len(p) <= cacheLongest {
 		loc, ok := s.cache[string(p)]
@@ -192,10 +220,11 @@ func (s *state) piece(p []byte) []uint32 {
 		ids = s.spmFinish(p, ids)
 	}
 	if len(p) <= cacheLongest {
-		if s.short.full() || s.mid.full() || len(s.cache) >= s.max {
+		if s.short.full() || s.mid.full() || len(s.cache) >= s.max || len(s.arena) >= arenaMost {
 			s.short.reset()
 			s.mid.reset()
 			s.near = [nearSize]slot{}
+			s.nearM = [nearMidSize]slot3{}
 			clear(s.cache)
 			s.arena = s.arena[:0]
 		}
