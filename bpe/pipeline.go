@@ -214,7 +214,7 @@ func (c *cutTable) next(t []byte, start int) int {
 		case cutHere:
 			return i
 		case cutRepl:
-			if bytes.HasPrefix(t[i:], c.repl) && !bytes.HasSuffix(t[:i], c.repl) {
+			if c.replAt(t, i) && (x != c.repl[len(c.repl)-1] || !bytes.HasSuffix(t[:i], c.repl)) {
 				return i
 			}
 		}
@@ -229,6 +229,15 @@ var allBytes = func() (b [256]byte) {
 	}
 	return b
 }()
+
+// replAt reports whether t holds the replacement at i, whose first byte
+// is known to match.
+func (c *cutTable) replAt(t []byte, i int) bool {
+	if r := c.repl; len(r) == 3 { // U+2581 and every other character of three bytes
+		return i+2 < len(t) && t[i+1] == r[1] && t[i+2] == r[2]
+	}
+	return bytes.HasPrefix(t[i:], c.repl)
+}
 
 // cutsFor returns the cut table of a vocabulary, or nil when it allows no
 // cuts.
