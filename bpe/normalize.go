@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
+	"slices"
 	"unicode"
 	"unicode/utf8"
 
@@ -306,6 +307,9 @@ func (n *replaceString) normalize(s *state, src []byte, al []int32) ([]byte, []i
 		return src, al
 	}
 	out, oal := s.normOut(n.k)
+	if len(n.old) == 1 && al == nil {
+		return s.normKeep(n.k, replaceByte(out, src, n.old[0], n.new), nil, false)
+	}
 	last := 0
 	for i >= 0 {
 		at := last + i
@@ -325,6 +329,39 @@ func (n *replaceString) normalize(s *state, src []byte, al []int32) ([]byte, []i
 		oal = append(oal, al[last:]...)
 	}
 	return s.normKeep(n.k, out, oal, al != nil)
+}
+
+// replaceByte appends src to out with every byte old replaced by new. A
+// loop over the bytes into a buffer sized once costs less than a search
+// for each occurrence when they are as close as spaces in text.
+func replaceByte(out, src []byte, old byte, new []byte) []byte {
+	size := len(out) + len(src) + bytes.Count(src, []byte{old})*(len(new)-1)
+	out = slices.Grow(out, size-len(out))
+	w := len(out)
+	out = out[:size]
+	if len(new) == 3 { // the metaspace replacement, U+2581
+		a, b, c := new[0], new[1], new[2]
+		for _, x := range src {
+			if x == old {
+				o := out[w : w+3]
+				o[0], o[1], o[2] = a, b, c
+				w += 3
+				continue
+			}
+			out[w] = x
+			w++
+		}
+		return out
+	}
+	for _, x := range src {
+		if x == old {
+			w += copy(out[w:], new)
+			continue
+		}
+		out[w] = x
+		w++
+	}
+	return out
 }
 
 // replaceRegex replaces every match of a regular expression with a
