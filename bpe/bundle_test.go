@@ -205,6 +205,33 @@ func TestMetaspaceCutKeepsIDs(t *testing.T) {
 	}
 }
 
+// A long metaspace text counted in pieces on several goroutines counts as
+// it does on one, whatever the size of the pieces.
+func TestMetaspaceCountParallel(t *testing.T) {
+	v, _ := loadTestBundle(t, "metaspace-32k")
+	enc, err := NewEncoder(v, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := v.pipe.cuts
+	s := enc.get()
+	defer enc.put(s)
+	for name, text := range corpusTexts(t) {
+		norm, _ := v.pipe.norm.normalize(s, text, nil)
+		norm = bytes.Clone(norm)
+		want := s.countCuts(norm, c)
+		for _, size := range []int{1, 7, 100, 4096} {
+			if got := s.countParallel(norm, c, size); got != want {
+				t.Errorf("%s, pieces of %d bytes: %d tokens, %d on one goroutine", name, size, got, want)
+			}
+		}
+	}
+	long := bytes.Repeat([]byte("func main() {\n\tfmt.Println(\"héllo, 世界\")\n}\n"), cutParallelMin/40)
+	if got, want := enc.Count(long), len(enc.Encode(long)); got != want {
+		t.Errorf("a text of %d bytes: counted %d, %d ids", len(long), got, want)
+	}
+}
+
 // A vocabulary with a token that holds the replacement character after
 // another character cannot be cut there.
 func TestMetaspaceCutRefused(t *testing.T) {

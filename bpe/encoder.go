@@ -89,7 +89,9 @@ func (e *Encoder) get() *state {
 	case s := <-e.free:
 		return s
 	default:
-		return newState(e.v, e.maxWords)
+		s := newState(e.v, e.maxWords)
+		s.enc = e
+		return s
 	}
 }
 

@@ -9,6 +9,7 @@ import (
 // merge loop. It is never shared between goroutines.
 type state struct {
 	v     *Vocab
+	enc   *Encoder           // the encoder that lent the state: a long text is counted on every core with more of its states (pipeline.go)
 	near  [nearSize]slot     // a direct-mapped copy of recently used short entries, small enough to stay in the core's cache
 	nearM [nearMidSize]slot3 // the same for pre-tokens of 8-15 bytes
 	short u64table           // pre-tokens of 2-7 bytes, packed into the key -> their ids (see idsValue)

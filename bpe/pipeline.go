@@ -2,6 +2,9 @@ package bpe
 
 import (
 	"bytes"
+	"runtime"
+	"sync"
+	"sync/atomic"
 	"unicode/utf8"
 )
 
@@ -151,7 +154,11 @@ func (s *state) pretokenize(t []byte, al []int32, first bool) {
 		return
 	}
 	if s.mode == sinkCount {
-		s.n += s.countCuts(t, c)
+		if len(t) >= cutParallelMin && s.enc != nil {
+			s.n += s.countParallel(t, c, cutStretch)
+		} else {
+			s.n += s.countCuts(t, c)
+		}
 		return
 	}
 	for start := 0; start < len(t); {
@@ -175,6 +182,52 @@ func (s *state) countCuts(t []byte, c *cutTable) int {
 		start = end
 	}
 	return n
+}
+
+// A stretch of text of cutParallelMin bytes or more is counted on every
+// core, in pieces of about cutStretch bytes cut where the table allows.
+const (
+	cutParallelMin = 4 << 20
+	cutStretch     = 1 << 20
+)
+
+// countParallel is countCuts on every core: pieces of t of about size
+// bytes are counted apart, by s and by other states of its encoder, and
+// their counts added. Cut places are found by the bytes around them alone,
+// so a piece counts as it does inside the whole.
+func (s *state) countParallel(t []byte, c *cutTable, size int) int {
+	var ends []int
+	for i := 0; i < len(t); {
+		j := len(t)
+		if i+size < len(t) {
+			j = c.next(t, i+size)
+		}
+		ends = append(ends, j)
+		i = j
+	}
+	var next, total atomic.Int64
+	work := func(w *state) {
+		n := 0
+		for k := int(next.Add(1) - 1); k < len(ends); k = int(next.Add(1) - 1) {
+			a := 0
+			if k > 0 {
+				a = ends[k-1]
+			}
+			n += w.countCuts(t[a:ends[k]], c)
+		}
+		total.Add(int64(n))
+	}
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), len(ends)) - 1 {
+		wg.Go(func() {
+			w := s.enc.get()
+			defer s.enc.put(w)
+			work(w)
+		})
+	}
+	work(s)
+	wg.Wait()
+	return int(total.Load())
 }
 
 // cutTable says where a text with no pre-tokenizer may be cut without
