@@ -148,6 +148,17 @@ func compileNorm(file, where string, raw json.RawMessage, slot *int) (normalizer
 type normSeq struct{ list []normalizer }
 
 func (n *normSeq) normalize(s *state, src []byte, al []int32) ([]byte, []int32) {
+	if al == nil && len(n.list) == 2 && len(src) > 0 {
+		// A metaspace vocabulary's pair, Prepend then Replace of one
+		// byte: the text is copied once, not twice.
+		p, ok1 := n.list[0].(*prepend)
+		r, ok2 := n.list[1].(*replaceString)
+		if ok1 && ok2 && len(r.old) == 1 {
+			out, _ := s.normOut(r.k)
+			out = replaceByte(out, p.s, r.old[0], r.new)
+			return s.normKeep(r.k, replaceByte(out, src, r.old[0], r.new), nil, false)
+		}
+	}
 	for _, x := range n.list {
 		src, al = x.normalize(s, src, al)
 	}

@@ -30,3 +30,25 @@ func TestReplaceOneByte(t *testing.T) {
 		}
 	}
 }
+
+// Prepend then Replace of one byte, which a Sequence runs in one pass when
+// no alignment is asked for, gives what the two give in turn (the prepended
+// text replaced too).
+func TestPrependReplaceOnePass(t *testing.T) {
+	for _, pre := range []string{"\u2581", " ", "", "a b"} {
+		p := &prepend{s: []byte(pre), k: 0}
+		r := &replaceString{old: []byte(" "), new: []byte("\u2581"), k: 1}
+		seq := &normSeq{list: []normalizer{p, r}}
+		s := newState(Default(), 16)
+		for _, tx := range []string{"", "x", " lead and trail ", "none", "\xff \xe2\x96\x81 é"} {
+			want := []byte(tx)
+			if tx != "" {
+				want = bytes.ReplaceAll([]byte(pre+tx), []byte(" "), []byte("\u2581"))
+			}
+			got, al := seq.normalize(s, []byte(tx), nil)
+			if !bytes.Equal(got, want) || al != nil {
+				t.Errorf("prepend %q, %q: got %q (alignment %v), want %q", pre, tx, got, al, want)
+			}
+		}
+	}
+}
