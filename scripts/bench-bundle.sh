@@ -4,6 +4,8 @@
 #
 #   scripts/bench-bundle.sh                 # RUNS=5 rounds, medians
 #   CORPUS=prose scripts/bench-bundle.sh    # the manual pages instead of code
+#   CORPUS=/tmp/morsel-bench-spm/text.txt scripts/bench-bundle.sh   # any file or folder
+#   ONLY="gpt2 metaspace-32k" scripts/bench-bundle.sh                # some surveys only
 #   LOAD=0 scripts/bench-bundle.sh          # survey only
 #
 # Survey: a corpus of scripts/bench-survey.sh ($BENCH_DIR/corpus or
@@ -24,9 +26,17 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 dir=${BENCH_DIR:-/tmp/morsel-bench}
 runs=${RUNS:-5}
-corpus=$dir/corpus
-[ "${CORPUS:-code}" = prose ] && corpus=$dir/prose
-[ -f "$corpus.done" ] || { echo "make the corpus first: CORPUS=${CORPUS:-code} scripts/bench-survey.sh"; exit 1; }
+case ${CORPUS:-code} in
+code | prose)
+  corpus=$dir/corpus
+  [ "${CORPUS:-code}" = prose ] && corpus=$dir/prose
+  [ -f "$corpus.done" ] || { echo "make the corpus first: CORPUS=${CORPUS:-code} scripts/bench-survey.sh"; exit 1; }
+  ;;
+*)
+  corpus=$CORPUS # one 100 MB file (scripts/bench-spm.sh makes one) is one document
+  [ -e "$corpus" ] || { echo "no corpus $corpus"; exit 1; }
+  ;;
+esac
 go build -o "$dir/morsel" ./cmd/morsel
 mkdir -p "$dir/bundles/qwen3"
 zcat testdata/vocab/qwen3/tokenizer.json.gz > "$dir/bundles/qwen3/tokenizer.json"
@@ -53,7 +63,8 @@ run() {
   *) wall "$dir/morsel" survey --quiet --format json --vocab "$dir/bundles/$1" "$corpus" ;;
   esac
 }
-names=(wc gpt2 qwen3 digit-groups cjk-sequence metaspace-32k)
+surveys=(${ONLY:-gpt2 qwen3 digit-groups cjk-sequence metaspace-32k})
+names=(wc "${surveys[@]}")
 declare -A times ratios gratios cpus cratios
 for ((r = 0; r <= runs; r++)); do
   order=("${names[@]}")
@@ -68,16 +79,16 @@ for ((r = 0; r <= runs; r++)); do
   for n in "${names[@]}"; do
     times[$n]+="${t[$n]} "
     ratios[$n]+="$(echo "${t[$n]} / ${t[wc]}" | bc -l) "
-    gratios[$n]+="$(echo "${t[$n]} / ${t[gpt2]}" | bc -l) "
+    [ -n "${t[gpt2]:-}" ] && gratios[$n]+="$(echo "${t[$n]} / ${t[gpt2]}" | bc -l) "
     cpus[$n]+="${c[$n]} "
-    cratios[$n]+="$(echo "${c[$n]} / ${c[gpt2]}" | bc -l) "
+    [ -n "${c[gpt2]:-}" ] && cratios[$n]+="$(echo "${c[$n]} / ${c[gpt2]}" | bc -l) "
   done
 done
 printf '%-22s %8s s wall, %5s s CPU\n' "wc -w" "$(echo "${times[wc]}" | median)" "$(echo "${cpus[wc]}" | median)"
-for n in gpt2 qwen3 digit-groups cjk-sequence metaspace-32k; do
+for n in "${surveys[@]}"; do
   printf '%-22s %8.2f s wall  %5.2fx wc -w  %5.2fx gpt2;  %6.2f s CPU  %5.2fx gpt2  (medians of %d rounds)\n' "survey $n" \
-    "$(echo "${times[$n]}" | median)" "$(echo "${ratios[$n]}" | median)" "$(echo "${gratios[$n]}" | median)" \
-    "$(echo "${cpus[$n]}" | median)" "$(echo "${cratios[$n]}" | median)" "$runs"
+    "$(echo "${times[$n]}" | median)" "$(echo "${ratios[$n]}" | median)" "$(echo "${gratios[$n]:-0}" | median)" \
+    "$(echo "${cpus[$n]}" | median)" "$(echo "${cratios[$n]:-0}" | median)" "$runs"
 done
 [ "${LOAD:-1}" = 1 ] || exit 0
 big=$dir/bundles/big
