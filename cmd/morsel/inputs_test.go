@@ -1,6 +1,7 @@
 package main
 
 import (
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -42,5 +43,22 @@ func TestStdinCSVAsAFile(t *testing.T) {
 	}
 	if !strings.Contains(stdin, `"line": 3`) {
 		t.Errorf("no line beside the second row's record:\n%s", stdin)
+	}
+}
+
+// Every walking command skips a document over 256 MiB unless told
+// otherwise (the bound the hostile-input issue asks for, like the line
+// cap).
+func TestMaxDocumentDefault(t *testing.T) {
+	root := newRootIO(strings.NewReader(""), io.Discard, io.Discard)
+	for _, name := range []string{"survey", "fit", "ration", "quote", "fragments"} {
+		c, _, err := root.Find([]string{name})
+		if err != nil {
+			t.Fatal(err)
+		}
+		f := c.Flags().Lookup("max-document")
+		if f == nil || f.DefValue != "256MiB" {
+			t.Errorf("%s --max-document: %+v, want a default of 256MiB", name, f)
+		}
 	}
 }
