@@ -96,6 +96,8 @@ run "emit through a hard link" 2 10 300 'ln -f d/README.md hard.md && $M ration 
 run "learn --out over its last vocabulary" 2 60 500 '$M learn d --add 5 --out v --quiet >/dev/null && cp v/merges.txt keep-merges.txt && $M learn d --add 9 --out v --quiet' 'cmp v/merges.txt keep-merges.txt'
 run "emit to /dev/full" 1 10 300 '$M ration d --budget 200 --emit /dev/full --quiet'
 run "report to /dev/full" 1 10 300 '$M survey d --quiet >/dev/full' 'test $(wc -l <err) = 1 && grep -q "no space left" err'
+run "report to a closed stdout" 1 10 300 '$M survey d --quiet >&-' 'grep -q "standard output is closed" err'
+run "ration --emit - (standard output)" 0 10 300 '$M ration d --budget 200 --emit - --quiet' 'test ! -e ./- && head -1 out | grep -q "\"chunk\":0" && grep -q "Chunk plan" err'
 run "report into a closed pipe" 1 30 300 '$M survey rows.jsonl --format json --quiet | head -c 10 >/dev/null; exit ${PIPESTATUS[0]}' 'test ! -s err'
 run "named pipe on the command line" 1 10 300 '$M survey pipe --quiet'
 run "link to /proc/kmsg in a folder" 0 10 300 '$M survey k --quiet'

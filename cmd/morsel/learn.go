@@ -87,6 +87,8 @@ func runLearn(sh *shared, cf *corpusFlags, tf *targetFlags, lf *learnFlags, args
 		return usagef(cmd, "--holdout %v: give a share from 0 to below 1", lf.holdout)
 	case lf.out == "":
 		return usagef(cmd, "--out: name the folder to write the vocabulary to")
+	case lf.out == "-":
+		return usagef(cmd, "--out -: learn writes a folder of files, which standard output cannot hold: name a folder")
 	case lf.write != "pair" && lf.write != "bundle" && lf.write != "both":
 		return usagef(cmd, "--write %q: want pair, bundle or both", lf.write)
 	}

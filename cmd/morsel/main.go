@@ -76,6 +76,10 @@ func paceGrowingHeap() {
 }
 
 func main() {
+	if stdoutClosed() {
+		fmt.Fprintln(os.Stderr, "morsel: standard output is closed (it is /dev/null opened for reading and writing, which a closed one becomes), so the report would go nowhere: redirect it to a file, or to /dev/null (>/dev/null) to throw it away")
+		os.Exit(exitInput)
+	}
 	cleanUpOnSignal()
 	err := newRoot().Execute()
 	os.Exit(exitStatus(err))

@@ -97,7 +97,7 @@ partial instead, for a merge in stages; it may hold only some of the shards.`,
 	f.String("frame", "", "the frame file, where it is now (its contents must be the shards' own)")
 	f.String("targets", "", "the targets file, where it is now (its contents must be the shards' own)")
 	f.String("terms", "", "the glossary, where it is now (its contents must be the shards' own)")
-	f.StringVarP(&output, "output", "o", "", "with --format partial: write the merged partial to this file, gzip-compressed if its name ends in .gz (default: standard output)")
+	f.StringVarP(&output, "output", "o", "", "with --format partial: write the merged partial to this file, gzip-compressed if its name ends in .gz (default, or -: standard output)")
 	f.BoolVar(&force, "force", false, "with --output: replace an existing file")
 	return c
 }
@@ -116,9 +116,9 @@ func flagName(arg string) string {
 }
 
 // writeMerged writes the merged partial m to output (standard output when
-// empty).
+// empty or "-").
 func (sh *shared) writeMerged(c *cobra.Command, m *partial.Partial, output string, force bool, inputs []string) error {
-	if output == "" {
+	if output == "" || output == "-" {
 		return m.Write(sh.stdout, false)
 	}
 	o, err := sh.createOutput("merge", "--output", output, force, nil, inputs)

@@ -211,3 +211,28 @@ func TestReportWriteError(t *testing.T) {
 		}
 	}
 }
+
+// --emit - writes the plan to standard output, the same lines --emit FILE
+// writes, and the report to standard error; no file named "-" is made.
+func TestEmitToStandardOutput(t *testing.T) {
+	dir := notesDir(t)
+	plan := filepath.Join(t.TempDir(), "plan.jsonl")
+	_, _, code := run(t, "", "ration", dir, "--budget", "100", "--quiet", "--emit", plan)
+	if code != 0 {
+		t.Fatalf("--emit FILE: exit %d", code)
+	}
+	t.Chdir(t.TempDir())
+	out, serr, code := run(t, "", "ration", dir, "--budget", "100", "--quiet", "--emit", "-")
+	if code != 0 || out != readFile(t, plan) {
+		t.Fatalf("--emit -: exit %d, standard output %.200q, want the plan %.200q", code, out, readFile(t, plan))
+	}
+	if !strings.Contains(serr, "Chunk plan") {
+		t.Errorf("--emit -: the report is not on standard error: %q", serr)
+	}
+	if _, err := os.Stat("-"); err == nil {
+		t.Error(`--emit - made a file named "-"`)
+	}
+	if _, serr, code := run(t, "", "learn", dir, "--add", "5", "--out", "-", "--quiet"); code != exitUsage || !strings.Contains(serr, "--out -") {
+		t.Errorf("learn --out -: exit %d (%s), want %d", code, serr, exitUsage)
+	}
+}

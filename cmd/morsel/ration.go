@@ -5,6 +5,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"os"
+	"path/filepath"
 	"sync"
 
 	"github.com/spf13/cobra"
@@ -48,6 +50,7 @@ offsets in the document), tokens (the request's), cut (the kind of place it ends
 text. The plan is written to a temporary file beside FILE and renamed to FILE once it is
 whole, so a run that fails leaves no half plan; FILE may not be one of the inputs, and an
 existing FILE is replaced only with --force. A file the run writes is never read as input.
+--emit - writes the plan to standard output as it goes, and the report to standard error.
 
 A document over 32 MiB, and standard input, is cut as it is read, in a window that holds
 the next chunk and what its choice looks at, so memory stays bounded; the plan is the one
@@ -93,7 +96,15 @@ because the budget cannot hold the frame and one character, else 0.`,
 			var plan *outfile.File
 			var out *bufio.Writer
 			var jl *json.Encoder
-			if emit != "" {
+			report, scratchBeside := sh.stdout, emit
+			switch emit {
+			case "":
+			case "-":
+				// The chunks are standard output; the report goes to
+				// standard error, as the two cannot share one stream.
+				out, report = bufio.NewWriterSize(sh.stdout, 1<<16), sh.stderr
+				scratchBeside = filepath.Join(os.TempDir(), "plan.jsonl")
+			default:
 				file, err := sh.createOutput("ration", "--emit", emit, force, &cf, args)
 				if err != nil {
 					return err
@@ -102,6 +113,9 @@ because the budget cannot hold the frame and one character, else 0.`,
 				defer file.Abort()
 				plan = file
 				out = bufio.NewWriterSize(file, 1<<16)
+				scratchBeside = plan.Name()
+			}
+			if out != nil {
 				jl = json.NewEncoder(out)
 				jl.SetEscapeHTML(false)
 			}
@@ -115,7 +129,7 @@ because the budget cannot hold the frame and one character, else 0.`,
 				}
 				// A streamed document's chunks wait in a scratch file
 				// until the plan reaches it in input order.
-				sf, err := spills.open(plan.Name())
+				sf, err := spills.open(scratchBeside)
 				if err != nil {
 					return rationDoc{}, &inputError{fmt.Errorf("--emit %s: %w", emit, err)}
 				}
@@ -165,13 +179,15 @@ because the budget cannot hold the frame and one character, else 0.`,
 				if err := out.Flush(); err != nil {
 					return &inputError{fmt.Errorf("--emit %s: %w", emit, err)}
 				}
+			}
+			if plan != nil {
 				if err := plan.Commit(); err != nil {
 					return &inputError{fmt.Errorf("--emit: %w", err)}
 				}
 			}
 			rep := rc.Finish(skipped)
 			rep.Sort(order)
-			if err := ration.Write(sh.stdout, f, rep); err != nil {
+			if err := ration.Write(report, f, rep); err != nil {
 				return err
 			}
 			var check error
@@ -187,7 +203,7 @@ because the budget cannot hold the frame and one character, else 0.`,
 	addRequestFlags(c, &rf)
 	c.Flags().IntVar(&budget, "budget", 0, "tokens a chunk's request may take, frame and overhead included (default: window - reserve)")
 	c.Flags().IntVar(&overlap, "overlap", 0, "start each chunk with up to this many tokens of the previous chunk's tail")
-	c.Flags().StringVar(&emit, "emit", "", "write the chunks to this file as JSON Lines (never one of the inputs; put in place once whole)")
+	c.Flags().StringVar(&emit, "emit", "", "write the chunks to this file as JSON Lines (never one of the inputs; put in place once whole); - for standard output, the report then on standard error")
 	c.Flags().BoolVar(&force, "force", false, "let --emit replace an existing file")
 	addShardFlags(sh, c, &cf)
 	return c

@@ -35,7 +35,7 @@ func addShardFlags(sh *shared, c *cobra.Command, cf *corpusFlags) {
 	cf.shard = &shardFlags{cmd: c}
 	f := c.Flags()
 	f.StringVar(&cf.shard.shard, "shard", "", "walk only share K of N (K/N, such as 3/8): a stable hash of each document's source and record picks its share")
-	f.StringVarP(&cf.shard.output, "output", "o", "", "with --format partial: write the partial report to this file, gzip-compressed if its name ends in .gz (default: standard output)")
+	f.StringVarP(&cf.shard.output, "output", "o", "", "with --format partial: write the partial report to this file, gzip-compressed if its name ends in .gz (default, or -: standard output)")
 	if f.Lookup("force") == nil {
 		f.Bool("force", false, "with --output: replace an existing file")
 	}
@@ -224,7 +224,7 @@ func writePartial[R any](sh *shared, cf *corpusFlags, paths []string, opt corpus
 // (put in place by commit(true), dropped by commit(false)), else standard
 // output.
 func (sh *shared) partialOutput(cf *corpusFlags, paths []string) (w interface{ Write([]byte) (int, error) }, commit func(bool) error, err error) {
-	if cf.shard.output == "" {
+	if cf.shard.output == "" || cf.shard.output == "-" {
 		return sh.stdout, func(bool) error { return nil }, nil
 	}
 	force, _ := cf.shard.cmd.Flags().GetBool("force")
