@@ -163,29 +163,22 @@ func replay[R any](sh *shared, cf *corpusFlags, c *collector[R]) error {
 		}
 	}
 	var zero R
-	for i := range m.Items {
-		it := &m.Items[i]
+	return m.Each(func(it *partial.Item) error {
 		if s := it.Skip; s != nil {
 			sk := corpus.Skip{Source: it.Src, Record: it.Record, Line: it.Line, Reason: s.Reason, Detail: s.Detail, Failed: s.Failed}
-			if err := c.emit(corpus.Item{Skip: &sk}, zero, nil); err != nil {
-				return err
-			}
-			continue
+			return c.emit(corpus.Item{Skip: &sk}, zero, nil)
 		}
 		d := &corpus.Document{Source: it.Src, Record: it.Record, Line: it.Line, Format: it.Format, Hash: it.Hash}
 		if it.Err != "" {
 			c.skipped = append(c.skipped, report.Skipped{Source: d.Source, Record: d.Record, Line: d.Line, Reason: report.ReasonFailed, Detail: it.Err, Failed: true})
-			continue
+			return nil
 		}
 		r, err := decode(d, it.Result)
 		if err != nil {
 			return &inputError{fmt.Errorf("%s: a result that does not read: %w", report.Where(d.Source, d.Record), err)}
 		}
-		if err := c.emit(corpus.Item{Doc: d}, r, nil); err != nil {
-			return err
-		}
-	}
-	return nil
+		return c.emit(corpus.Item{Doc: d}, r, nil)
+	})
 }
 
 func orNone(s string) string {

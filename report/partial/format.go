@@ -52,10 +52,8 @@ func (p *Partial) Write(w io.Writer, compress bool) error {
 	if err != nil {
 		return err
 	}
-	for i := range p.Items {
-		if err := pw.Item(&p.Items[i]); err != nil {
-			return err
-		}
+	if err := p.Each(pw.Item); err != nil {
+		return err
 	}
 	names := make([]string, 0, len(p.Tables))
 	for n := range p.Tables {

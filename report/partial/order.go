@@ -17,25 +17,57 @@ func sorted(items []Item) bool {
 	return true
 }
 
-// mergeItems returns the items of ps in the order of a single run. A
-// shard's partial holds its items in that order already, so they are
-// merged as sorted runs, one comparison per item and heap level; a
-// partial out of order is sorted first. Ties go to the earlier partial.
-func mergeItems(ps []*Partial) []Item {
-	total := 0
+// sortedRuns returns the items of ps as runs in the order of a single
+// run: a shard's partial holds its items in that order already, and a
+// partial out of order is sorted first.
+func sortedRuns(ps []*Partial) [][]Item {
 	var runs [][]Item
 	for _, p := range ps {
-		if !sorted(p.Items) {
-			p.Sort()
+		for _, r := range append(append([][]Item(nil), p.runs...), p.Items) {
+			if !sorted(r) {
+				r = append([]Item(nil), r...)
+				sort.SliceStable(r, func(i, j int) bool { return r[i].Key.Less(r[j].Key) })
+			}
+			if len(r) > 0 {
+				runs = append(runs, r)
+			}
 		}
-		if len(p.Items) > 0 {
-			runs = append(runs, p.Items)
-		}
-		total += len(p.Items)
 	}
-	out := make([]Item, 0, total)
+	return runs
+}
+
+// Len returns the number of items.
+func (p *Partial) Len() int {
+	n := len(p.Items)
+	for _, r := range p.runs {
+		n += len(r)
+	}
+	return n
+}
+
+// Each calls fn with every item, stopping at the first error: p.Items in
+// their order, and then, for a merged partial, the shards' items merged
+// from their runs as they are asked for (one comparison per item and
+// heap level; ties go to the earlier run), so that they are never copied.
+func (p *Partial) Each(fn func(*Item) error) error {
+	for i := range p.Items {
+		if err := fn(&p.Items[i]); err != nil {
+			return err
+		}
+	}
+	return eachMerged(append([][]Item(nil), p.runs...), fn)
+}
+
+// eachMerged calls fn with the items of the sorted runs in order; it uses
+// runs up.
+func eachMerged(runs [][]Item, fn func(*Item) error) error {
 	if len(runs) == 1 {
-		return append(out, runs[0]...)
+		for i := range runs[0] {
+			if err := fn(&runs[0][i]); err != nil {
+				return err
+			}
+		}
+		return nil
 	}
 	// heap holds the runs' indices, the run with the least head first.
 	heap := make([]int, len(runs))
@@ -70,12 +102,14 @@ func mergeItems(ps []*Partial) []Item {
 	}
 	for len(heap) > 0 {
 		r := heap[0]
-		out = append(out, runs[r][0])
+		if err := fn(&runs[r][0]); err != nil {
+			return err
+		}
 		if runs[r] = runs[r][1:]; len(runs[r]) == 0 {
 			heap[0] = heap[len(heap)-1]
 			heap = heap[:len(heap)-1]
 		}
 		down(0)
 	}
-	return out
+	return nil
 }

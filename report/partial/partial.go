@@ -128,7 +128,11 @@ type Item struct {
 // Partial is a whole partial in memory.
 type Partial struct {
 	Header Header
-	Items  []Item
+	// Items are the items, in the order of a single run once sorted;
+	// Merge leaves them nil and holds the shards' items as runs (Each
+	// and Len see both).
+	Items []Item
+	runs  [][]Item
 	// Tables are the command's tables, by name, as rows of JSON; the
 	// command merges rows of the same key.
 	Tables map[string][]json.RawMessage
@@ -185,6 +189,9 @@ func (p *Partial) Combine(q *Partial) error {
 		return err
 	}
 	p.Items = append(p.Items, q.Items...)
+	for _, r := range q.runs {
+		p.Items = append(p.Items, r...)
+	}
 	for t, rows := range q.Tables {
 		p.Tables[t] = append(p.Tables[t], rows...)
 	}
@@ -232,8 +239,9 @@ func sortedKeys(a, b map[string]string) []string {
 	return keys
 }
 
-// Merge merges the partials of shards of one run into one, items in the
-// order of a single run, and leaves ps without their items. It fails, naming the partials by names, when two
+// Merge merges the partials of shards of one run into one, whose Each
+// gives the items in the order of a single run. The merged partial holds
+// the items of ps, which are not to be changed after. It fails, naming the partials by names, when two
 // are not of one run, when a shard is held twice, or, with whole, when
 // the shards do not cover the run.
 func Merge(ps []*Partial, names []string, whole bool) (*Partial, error) {
@@ -270,9 +278,6 @@ func Merge(ps []*Partial, names []string, whole bool) (*Partial, error) {
 		}
 		return nil, fmt.Errorf("shard %s of %d missing: the merged report would not be the whole run", strings.Join(missing, ", "), first.Of)
 	}
-	m.Items = mergeItems(ps)
-	for _, p := range ps {
-		p.Items = nil // they are m's now, and need not be kept twice
-	}
+	m.runs = sortedRuns(ps)
 	return m, nil
 }

@@ -163,7 +163,7 @@ func TestMergeRefuses(t *testing.T) {
 			t.Errorf("%s: error %v, want one saying %q", c.name, err, c.want)
 		}
 	}
-	if m, err := Merge([]*Partial{b, a}, names, true); err != nil || !reflect.DeepEqual(m.Header.Shards, []int{1, 2}) || len(m.Items) != 12 {
+	if m, err := Merge([]*Partial{b, a}, names, true); err != nil || !reflect.DeepEqual(m.Header.Shards, []int{1, 2}) || m.Len() != 12 {
 		t.Errorf("merge of both shards: %v, %+v", err, m)
 	}
 	if _, err := Merge([]*Partial{a}, names[:1], false); err != nil {
@@ -271,7 +271,12 @@ func TestMergeItemsIsSort(t *testing.T) {
 		}
 		want := &Partial{Items: append([]Item(nil), all...)}
 		want.Sort()
-		got := mergeItems(ps)
+		var got []Item
+		m := &Partial{runs: sortedRuns(ps)}
+		m.Each(func(it *Item) error { got = append(got, *it); return nil })
+		if m.Len() != len(all) {
+			t.Fatalf("%d runs: Len %d, want %d", k, m.Len(), len(all))
+		}
 		if len(got) != len(all) {
 			t.Fatalf("%d runs: %d items, want %d", k, len(got), len(all))
 		}
