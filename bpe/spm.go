@@ -53,6 +53,8 @@ type spmModel struct {
 	charID   map[string]uint32 // a character's symbol, when it has one
 	lens     []int32           // a piece's length in bytes
 	resolved []uint32          // the id a piece's text looks up
+	apart    [128][2]uint64    // bit b of apart[a]: no piece holds the ASCII characters a, b side by side
+	anyApart bool
 }
 
 // noSym is the symbol of a character no piece holds.

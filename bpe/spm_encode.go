@@ -21,7 +21,11 @@ func spmAppend[T int | uint32](e *Encoder, s *state, dst []T, text []byte, st *S
 		}
 		for i := 0; i < len(norm); {
 			j := sp.nextCut(norm, i)
-			dst = spmAppendPiece(s, dst, norm[i:j])
+			for p := norm[i:j]; len(p) > 0; {
+				k := sp.partEnd(p)
+				dst = spmAppendPiece(s, dst, p[:k])
+				p = p[k:]
+			}
 			i = j
 		}
 	})
@@ -45,10 +49,25 @@ func (e *Encoder) spmCount(s *state, text []byte, st *Stats) {
 		norm := s.spmNorm
 		for i := 0; i < len(norm); {
 			j := sp.nextCut(norm, i)
-			st.Tokens += s.spmCountPiece(norm[i:j])
+			for p := norm[i:j]; len(p) > 0; {
+				k := sp.partEnd(p)
+				st.Tokens += s.spmCountPiece(p[:k])
+				p = p[k:]
+			}
 			i = j
 		}
 	})
+}
+
+// partEnd returns the end of the first part of a piece that merges apart
+// from the rest: the piece is cut wherever two ASCII characters merge
+// apart (findApart), so that a piece seen once, such as a path or a word
+// with its punctuation, is mostly parts the word cache holds.
+func (sp *spmModel) partEnd(p []byte) int {
+	if !sp.anyApart {
+		return len(p)
+	}
+	return sp.apartAt(p)
 }
 
 // spmSplit calls fn with the spans of text that merge apart: the stretches

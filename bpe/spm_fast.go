@@ -126,6 +126,42 @@ func (sp *spmModel) prepareFast(v *Vocab) {
 		sp.cut = cutNone
 	}
 	sp.inputCut = sp.inputCutOK()
+	sp.findApart()
+}
+
+// findApart fills apart: two ASCII characters that are symbols and that
+// no piece holds side by side can be merged apart, as no merge can join
+// them and no user-defined piece spans them. The merges on each side go
+// in the same order as in the whole, since none changes the other side's
+// pairs.
+func (sp *spmModel) findApart() {
+	var joined [128][2]uint64
+	for _, p := range sp.m.Pieces {
+		for i := 0; i+1 < len(p.Text); i++ {
+			if a, b := p.Text[i], p.Text[i+1]; a < 0x80 && b < 0x80 {
+				joined[a][b>>6] |= 1 << (b & 63)
+			}
+		}
+	}
+	for a := range 128 {
+		for b := range 128 {
+			if sp.asciiSym[a] != noSym && sp.asciiSym[b] != noSym && joined[a][b>>6]>>(b&63)&1 == 0 {
+				sp.apart[a][b>>6] |= 1 << (b & 63)
+				sp.anyApart = true
+			}
+		}
+	}
+}
+
+// apartAt returns the first place in p, from 1 on, where its two sides
+// merge apart (see findApart), or len(p).
+func (sp *spmModel) apartAt(p []byte) int {
+	for k := 1; k < len(p); k++ {
+		if a, b := p[k-1], p[k]; a < 0x80 && b < 0x80 && sp.apart[a][b>>6]>>(b&63)&1 != 0 {
+			return k
+		}
+	}
+	return len(p)
 }
 
 // nextCut returns the end of the stretch of norm that starts at i and

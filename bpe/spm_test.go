@@ -203,3 +203,31 @@ func TestSentencePieceSplitTiles(t *testing.T) {
 		}
 	}
 }
+
+// Pieces cut where two ASCII characters merge apart (findApart) encode as
+// the reference's steps encode the whole text: random printable ASCII,
+// paths and punctuation, under every test model.
+func TestSentencePiecePartsEqualSteps(t *testing.T) {
+	r := rand.New(rand.NewPCG(11, 12))
+	words := []string{"/usr/share/doc/", "e.g.", "(see", "foo_bar", "--", "x86_64", "v1.2.3", "a,b;c", "https://", "\"q\"", "[1]"}
+	for k, enc := range spmEncoders(t) {
+		sp, cuts := enc.v.spm, 0
+		for range 300 {
+			var text []byte
+			for len(text) < r.IntN(120) {
+				if r.IntN(3) == 0 {
+					text = append(text, words[r.IntN(len(words))]...)
+				} else {
+					text = append(text, byte(' '+r.IntN(95)))
+				}
+			}
+			if sp.anyApart && sp.apartAt(text) < len(text) {
+				cuts++
+			}
+			checkFastEqualsSteps(t, enc, spmModels[k], text)
+		}
+		if spmModels[k] == "nfkc-bytes.model" && cuts == 0 {
+			t.Errorf("%s: no text was cut into parts", spmModels[k])
+		}
+	}
+}
