@@ -26,8 +26,9 @@ func BenchmarkSentencePiece(b *testing.B) {
 		b.Fatal(err)
 	}
 	text := spmBenchText(b, 1<<20)
-	// The same text with no white space at all: one merge problem of a
-	// megabyte, through the heap merge.
+	// The same text with no white space at all, which is cut where two
+	// ASCII characters merge apart; and one letter a megabyte long, one
+	// merge problem through the heap merge.
 	line := bytes.Map(func(r rune) rune {
 		if r == ' ' || r == '\n' || r == '\t' || r == '\r' {
 			return -1
@@ -37,7 +38,7 @@ func BenchmarkSentencePiece(b *testing.B) {
 	for _, c := range []struct {
 		name string
 		text []byte
-	}{{"count-prose", text}, {"count-1MB-line", line}} {
+	}{{"count-prose", text}, {"count-1MB-line", line}, {"count-1MB-one-letter", oneLetter(1 << 20)}} {
 		b.Run(c.name, func(b *testing.B) {
 			b.SetBytes(int64(len(c.text)))
 			for b.Loop() {
