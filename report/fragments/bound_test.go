@@ -1,10 +1,13 @@
 package fragments
 
 import (
+	"bytes"
 	"encoding/json"
 	"fmt"
+	"io"
 	"testing"
 
+	"morsel/corpus"
 	"morsel/report/internal/reporttest"
 )
 
@@ -64,5 +67,44 @@ func TestMemoryBoundFallsBackToSpaceSaving(t *testing.T) {
 	}
 	if tt.Words != exact.Totals.Words || tt.Tokens != exact.Totals.Tokens {
 		t.Fatalf("totals of words and tokens changed: %d, %d against %d, %d", tt.Words, tt.Tokens, exact.Totals.Words, exact.Totals.Tokens)
+	}
+}
+
+// TestPartsPastTheBoundKeepDocumentsALowerBound flushes large documents
+// in parts into the summary, past a small bound, and wants every listed
+// word's documents no more than the exact run's: a word met in many parts
+// of one document counts it once there too.
+func TestPartsPastTheBoundKeepDocumentsALowerBound(t *testing.T) {
+	defer func(w int, p int64) { scanWindow, partLimit = w, p }(scanWindow, partLimit)
+	scanWindow, partLimit = 4<<10, 1
+	text := windowText(t)
+	for i := 0; i < 6000; i++ {
+		text = fmt.Appendf(text, " qz%dv", i%900)
+	}
+	enc := reporttest.Encoder(t)
+	run := func(bound int64) *Report {
+		fr := NewFragmenter(enc, nil)
+		fr.SetMemory(bound)
+		for rec := 1; rec <= 3; rec++ {
+			dw, err := fr.Scan(&corpus.Document{Source: "big.txt", Stream: io.NopCloser(bytes.NewReader(text))})
+			if err != nil {
+				t.Fatal(err)
+			}
+			fr.AddWords("big.txt", rec, dw)
+		}
+		return fr.Finish(Options{MinPieces: 1, MinCount: 1, Top: 0}, nil)
+	}
+	exact, bounded := run(0), run(64<<10)
+	if exact.Totals.Approximate || !bounded.Totals.Approximate {
+		t.Fatalf("approximate: exact run %v, bounded run %v", exact.Totals.Approximate, bounded.Totals.Approximate)
+	}
+	docs := map[string]int{}
+	for _, w := range exact.Words {
+		docs[w.Word] = w.Documents
+	}
+	for _, w := range bounded.Words {
+		if w.Documents > docs[w.Word] || w.Documents > 3 {
+			t.Fatalf("%q: %d documents, the exact run %d", w.Word, w.Documents, docs[w.Word])
+		}
 	}
 }
