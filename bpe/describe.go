@@ -6,6 +6,7 @@ import (
 	"encoding/hex"
 	"fmt"
 	"strings"
+	"unicode/utf8"
 )
 
 // Chain returns the vocabulary's normalizer and pre-tokenizer in words,
@@ -101,23 +102,38 @@ func (v *Vocab) Fingerprint() string {
 	if v.spm != nil {
 		return v.spm.m.Fingerprint // the model file's own hash
 	}
-	h := sha256.New()
-	var n [binary.MaxVarintLen64]byte
-	num := func(x uint64) { h.Write(n[:binary.PutUvarint(n[:], x)]) }
-	str := func(s string) { num(uint64(len(s))); h.Write([]byte(s)) }
+	// The canonical form is built in one buffer and hashed once: every
+	// process of a sharded run computes it, and a write per token cost
+	// more than the hash.
+	b := make([]byte, 0, 16*len(v.tokens)+8*v.nMerges+1024)
+	num := func(x uint64) { b = binary.AppendUvarint(b, x) }
+	str := func(s string) { num(uint64(len(s))); b = append(b, s...) }
 	str("morsel vocabulary 1")
 	str(v.Family())
 	norm, pre := v.Chain()
 	str(norm)
 	str(pre)
 	num(uint64(len(v.tokens)))
-	for id := range v.tokens {
-		sp, ok := v.Spelling(id)
-		if !ok {
-			str("\x00hole")
-			continue
+	var added []bool // by id: the added tokens, spelled as they are
+	if v.pipe != nil {
+		added = make([]bool, len(v.tokens))
+		for _, id := range v.pipe.addedIDs {
+			if int(id) < len(added) {
+				added[id] = true
+			}
 		}
-		str(sp)
+	}
+	for id, raw := range v.tokens {
+		switch {
+		case raw == nil:
+			str("\x00hole")
+		case v.spell != nil && v.spell[id] != nil:
+			str(string(v.spell[id]))
+		case added != nil && added[id]:
+			str(string(raw))
+		default:
+			b = appendSpelled(b, raw)
+		}
 	}
 	ranked := make([][2]uint32, v.nMerges)
 	v.merges.each(func(k, rm uint64) {
@@ -142,5 +158,23 @@ func (v *Vocab) Fingerprint() string {
 			num(uint64(id))
 		}
 	}
-	return "sha256:" + hex.EncodeToString(h.Sum(nil))
+	sum := sha256.Sum256(b)
+	return "sha256:" + hex.EncodeToString(sum[:])
+}
+
+// appendSpelled appends SpellBytes(raw) to b, its length first, as the
+// fingerprint writes a string.
+func appendSpelled(b, raw []byte) []byte {
+	n := 0
+	for _, c := range raw {
+		n += 2 // the alphabet's runes are below U+0800
+		if byteToRune[c] < utf8.RuneSelf {
+			n--
+		}
+	}
+	b = binary.AppendUvarint(b, uint64(n))
+	for _, c := range raw {
+		b = utf8.AppendRune(b, byteToRune[c])
+	}
+	return b
 }

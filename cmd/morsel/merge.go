@@ -43,7 +43,7 @@ partial instead, for a merge in stages; it may hold only some of the shards.`,
 				if err != nil {
 					return &inputError{err}
 				}
-				ps[i], err = partial.Read(f, name)
+				ps[i], err = partial.ReadForMerge(f, name)
 				f.Close()
 				if err != nil {
 					return &inputError{err}

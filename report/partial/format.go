@@ -199,6 +199,11 @@ func (w *Writer) Close(summary json.RawMessage) error {
 // Read reads a whole partial, gzip-compressed or not; name is used in
 // errors ("name: frame 12: ...").
 func Read(r io.Reader, name string) (*Partial, error) {
+	return read(r, name, false)
+}
+
+// read reads a partial; compact holds its items packed.
+func read(r io.Reader, name string, compact bool) (*Partial, error) {
 	br := bufio.NewReaderSize(r, 64<<10)
 	if head, _ := br.Peek(2); len(head) == 2 && head[0] == 0x1f && head[1] == 0x8b {
 		zr, err := gzip.NewReader(br)
@@ -212,6 +217,9 @@ func Read(r io.Reader, name string) (*Partial, error) {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
 	rd := reader{br: br, p: &Partial{Tables: map[string][]json.RawMessage{}}}
+	if compact {
+		rd.pk = &packed{}
+	}
 	for {
 		kind, err := br.ReadByte()
 		if err == io.EOF {
@@ -229,14 +237,21 @@ func Read(r io.Reader, name string) (*Partial, error) {
 		}
 	}
 	p, fin := rd.p, rd.end
-	p.Items = rd.items()
+	switch {
+	case rd.pk == nil:
+		p.Items = rd.items()
+	case rd.pk.sorted():
+		p.packed = rd.pk
+	default:
+		p.Items = rd.pk.items()
+	}
 	switch {
 	case rd.n == 0:
 		return nil, fmt.Errorf("%s: not a partial report: no header", name)
 	case fin == nil:
 		return nil, fmt.Errorf("%s: cut short: no end frame after frame %d", name, rd.n)
-	case fin.Items != len(p.Items):
-		return nil, fmt.Errorf("%s: the end frame counts %d items, the file holds %d", name, fin.Items, len(p.Items))
+	case fin.Items != p.Len():
+		return nil, fmt.Errorf("%s: the end frame counts %d items, the file holds %d", name, fin.Items, p.Len())
 	}
 	for t, rows := range p.Tables {
 		if fin.Rows[t] != len(rows) {
@@ -289,6 +304,10 @@ type reader struct {
 	// allocation.
 	results          []byte
 	lastSrc, lastFmt string
+	// pk, when set, receives the items packed; srcAt and fmtAt are the
+	// last source's and format's indices in it.
+	pk           *packed
+	srcAt, fmtAt uint32
 	end              *end
 	// The items: full blocks, the block being filled, and their count.
 	blocks [][]Item
@@ -359,14 +378,23 @@ func (rd *reader) item(b []byte) error {
 	it.In, it.Seq = d.int(), d.int()
 	if flags&flagSameSrc == 0 {
 		rd.lastSrc = d.string()
+		if rd.pk != nil {
+			rd.srcAt = rd.pk.str(rd.lastSrc)
+		}
 	}
 	it.Src = rd.lastSrc
 	it.Record, it.Line = d.int(), d.int()
 	if flags&flagSameFmt == 0 {
 		rd.lastFmt = d.string()
+		if rd.pk != nil {
+			rd.fmtAt = rd.pk.str(rd.lastFmt)
+		}
 	}
 	it.Format = rd.lastFmt
 	it.Hash = d.uint64()
+	if rd.pk != nil {
+		return rd.packItem(&d, kinds, flags, &it)
+	}
 	switch kinds {
 	case flagSkip:
 		it.Skip = &Skip{Reason: d.string(), Detail: d.string(), Failed: flags&flagFailed != 0}
@@ -393,6 +421,36 @@ func (rd *reader) item(b []byte) error {
 		rd.block = make([]Item, 0, itemBlock)
 	}
 	rd.block = append(rd.block, it)
+	rd.nItems++
+	return nil
+}
+
+// packItem reads the rest of an item into rd.pk.
+func (rd *reader) packItem(d *decoder, kinds, flags byte, it *Item) error {
+	pk := rd.pk
+	r := rec{in: it.In, seq: it.Seq, record: it.Record, line: it.Line, hash: it.Hash, src: rd.srcAt, format: rd.fmtAt, kind: kinds}
+	switch kinds {
+	case flagSkip:
+		pk.skips = append(pk.skips, Skip{Reason: d.string(), Detail: d.string(), Failed: flags&flagFailed != 0})
+		r.aux = uint32(len(pk.skips) - 1)
+		if d.err == nil && d.i != len(d.b) {
+			d.err = errors.New("bytes after the skip")
+		}
+	case flagErr:
+		e := d.string()
+		if d.err == nil && e == "" {
+			d.err = errors.New("an empty error")
+		}
+		r.aux = pk.str(e)
+	default:
+		if d.err == nil {
+			r.aux, r.off, r.n = pk.keep(d.b[d.i:])
+		}
+	}
+	if d.err != nil {
+		return fmt.Errorf("item %d: %w", rd.nItems+1, d.err)
+	}
+	pk.add(r)
 	rd.nItems++
 	return nil
 }

@@ -17,18 +17,44 @@ func sorted(items []Item) bool {
 	return true
 }
 
+// A run is a sorted run of items: a slice of them, or a packed partial's.
+type run struct {
+	items []Item
+	pk    *packed
+}
+
+func (r run) len() int {
+	if r.pk != nil {
+		return r.pk.n
+	}
+	return len(r.items)
+}
+
+// all returns the run's items as one slice.
+func (r run) all() []Item {
+	if r.pk != nil {
+		return r.pk.items()
+	}
+	return r.items
+}
+
 // sortedRuns returns the items of ps as runs in the order of a single
 // run: a shard's partial holds its items in that order already, and a
 // partial out of order is sorted first.
-func sortedRuns(ps []*Partial) [][]Item {
-	var runs [][]Item
+func sortedRuns(ps []*Partial) []run {
+	var runs []run
 	for _, p := range ps {
-		for _, r := range append(append([][]Item(nil), p.runs...), p.Items) {
-			if !sorted(r) {
-				r = append([]Item(nil), r...)
-				sort.SliceStable(r, func(i, j int) bool { return r[i].Key.Less(r[j].Key) })
+		rs := append([]run(nil), p.runs...)
+		rs = append(rs, run{items: p.Items})
+		if p.packed != nil {
+			rs = append(rs, run{pk: p.packed})
+		}
+		for _, r := range rs {
+			if r.pk == nil && !sorted(r.items) {
+				r.items = append([]Item(nil), r.items...)
+				sort.SliceStable(r.items, func(i, j int) bool { return r.items[i].Key.Less(r.items[j].Key) })
 			}
-			if len(r) > 0 {
+			if r.len() > 0 {
 				runs = append(runs, r)
 			}
 		}
@@ -40,39 +66,92 @@ func sortedRuns(ps []*Partial) [][]Item {
 func (p *Partial) Len() int {
 	n := len(p.Items)
 	for _, r := range p.runs {
-		n += len(r)
+		n += r.len()
+	}
+	if p.packed != nil {
+		n += p.packed.n
 	}
 	return n
 }
 
 // Each calls fn with every item, stopping at the first error: p.Items in
-// their order, and then, for a merged partial, the shards' items merged
-// from their runs as they are asked for (one comparison per item and
-// heap level; ties go to the earlier run), so that they are never copied.
+// their order, then a packed partial's items, and then, for a merged
+// partial, the shards' items merged from their runs as they are asked for
+// (one comparison per item and heap level; ties go to the earlier run),
+// so that they are never copied. fn must not keep the *Item past its call.
 func (p *Partial) Each(fn func(*Item) error) error {
 	for i := range p.Items {
 		if err := fn(&p.Items[i]); err != nil {
 			return err
 		}
 	}
-	return eachMerged(append([][]Item(nil), p.runs...), fn)
+	if p.packed != nil {
+		if err := eachMerged([]run{{pk: p.packed}}, fn); err != nil {
+			return err
+		}
+	}
+	return eachMerged(p.runs, fn)
 }
 
-// eachMerged calls fn with the items of the sorted runs in order; it uses
-// runs up.
-func eachMerged(runs [][]Item, fn func(*Item) error) error {
-	if len(runs) == 1 {
-		for i := range runs[0] {
-			if err := fn(&runs[0][i]); err != nil {
+// cursor walks one run: head is its next item, nil when it is done.
+type cursor struct {
+	items []Item
+	pk    *packed
+	b, i  int  // the next record of a packed run: block b, index i
+	cur   Item // a packed run's head
+	head  *Item
+}
+
+func (c *cursor) next() {
+	if c.pk == nil {
+		if len(c.items) == 0 {
+			c.head = nil
+			return
+		}
+		c.head = &c.items[0]
+		c.items = c.items[1:]
+		return
+	}
+	for c.b < len(c.pk.blocks) && c.i == len(c.pk.blocks[c.b]) {
+		c.b, c.i = c.b+1, 0
+	}
+	if c.b == len(c.pk.blocks) {
+		c.head = nil
+		return
+	}
+	c.pk.item(&c.pk.blocks[c.b][c.i], &c.cur)
+	c.i++
+	c.head = &c.cur
+}
+
+// eachMerged calls fn with the items of the sorted runs in order.
+func eachMerged(runs []run, fn func(*Item) error) error {
+	// A packed cursor's head points into itself: cs is not to grow once
+	// the heads are set.
+	cs := make([]cursor, 0, len(runs))
+	for _, r := range runs {
+		if r.len() > 0 {
+			cs = append(cs, cursor{items: r.items, pk: r.pk})
+		}
+	}
+	for i := range cs {
+		cs[i].next()
+	}
+	if len(cs) == 0 {
+		return nil
+	}
+	if len(cs) == 1 {
+		for c := &cs[0]; c.head != nil; c.next() {
+			if err := fn(c.head); err != nil {
 				return err
 			}
 		}
 		return nil
 	}
-	// heap holds the runs' indices, the run with the least head first.
-	heap := make([]int, len(runs))
+	// heap holds the cursors' indices, the one with the least head first.
+	heap := make([]int, len(cs))
 	less := func(a, b int) bool {
-		x, y := &runs[heap[a]][0].Key, &runs[heap[b]][0].Key
+		x, y := &cs[heap[a]].head.Key, &cs[heap[b]].head.Key
 		if x.Less(*y) {
 			return true
 		}
@@ -101,11 +180,11 @@ func eachMerged(runs [][]Item, fn func(*Item) error) error {
 		down(i)
 	}
 	for len(heap) > 0 {
-		r := heap[0]
-		if err := fn(&runs[r][0]); err != nil {
+		c := &cs[heap[0]]
+		if err := fn(c.head); err != nil {
 			return err
 		}
-		if runs[r] = runs[r][1:]; len(runs[r]) == 0 {
+		if c.next(); c.head == nil {
 			heap[0] = heap[len(heap)-1]
 			heap = heap[:len(heap)-1]
 		}

@@ -132,7 +132,9 @@ type Partial struct {
 	// Merge leaves them nil and holds the shards' items as runs (Each
 	// and Len see both).
 	Items []Item
-	runs  [][]Item
+	runs  []run
+	// packed holds the items of a partial from ReadForMerge, in order.
+	packed *packed
 	// Tables are the command's tables, by name, as rows of JSON; the
 	// command merges rows of the same key.
 	Tables map[string][]json.RawMessage
@@ -190,7 +192,10 @@ func (p *Partial) Combine(q *Partial) error {
 	}
 	p.Items = append(p.Items, q.Items...)
 	for _, r := range q.runs {
-		p.Items = append(p.Items, r...)
+		p.Items = append(p.Items, r.all()...)
+	}
+	if q.packed != nil {
+		p.Items = append(p.Items, q.packed.items()...)
 	}
 	for t, rows := range q.Tables {
 		p.Tables[t] = append(p.Tables[t], rows...)

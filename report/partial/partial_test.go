@@ -287,3 +287,65 @@ func TestMergeItemsIsSort(t *testing.T) {
 		}
 	}
 }
+
+// A partial read for a merge gives, through Each and Len, the items Read
+// gives, in blocks or not, with skips, errors and results small and large;
+// one out of order is sorted as Read's would be.
+func TestReadForMerge(t *testing.T) {
+	rng := rand.New(rand.NewSource(5))
+	for _, n := range []int{0, 1, 300, 2*recBlock + 17} {
+		var all []Item
+		for i := 0; i < n; i++ {
+			it := Item{Key: Key{In: i / 100, Seq: i % 100, Src: []string{"a", "a/b", "b"}[i/100%3]}, Record: i, Line: rng.Intn(9), Format: []string{"jsonl", "csv"}[rng.Intn(2)], Hash: rng.Uint64()}
+			switch rng.Intn(10) {
+			case 0:
+				it.Skip = &Skip{Reason: "empty", Detail: "line 3", Failed: rng.Intn(2) == 0}
+			case 1:
+				it.Err = "stream cut"
+			case 2:
+				it.Result = bytes.Repeat([]byte{byte(i)}, dataBlock/3) // its own block
+			default:
+				it.Result = bytes.Repeat([]byte{byte(i)}, 1+rng.Intn(40))
+			}
+			all = append(all, it)
+		}
+		for _, shuffled := range []bool{false, true} {
+			p := New("survey", 1, 1, "sha256:in", nil)
+			p.Items = append([]Item(nil), all...)
+			if shuffled && n > 1 {
+				rng.Shuffle(n, func(i, j int) { p.Items[i], p.Items[j] = p.Items[j], p.Items[i] })
+			}
+			b := encode(t, p, shuffled)
+			want, err := Read(bytes.NewReader(b), "want")
+			if err != nil {
+				t.Fatal(err)
+			}
+			sorted := &Partial{Items: append([]Item(nil), want.Items...)}
+			sorted.Sort()
+			q, err := ReadForMerge(bytes.NewReader(b), "got")
+			if err != nil {
+				t.Fatal(err)
+			}
+			if shuffled == (q.packed != nil) && n > 1 {
+				t.Errorf("%d items, shuffled %v: packed %v", n, shuffled, q.packed != nil)
+			}
+			m, err := Merge([]*Partial{q}, []string{"got"}, true)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for i, x := range []*Partial{q, m} {
+				if i == 1 {
+					want = sorted // q keeps the file's order, m the run's
+				}
+				var got []Item
+				x.Each(func(it *Item) error { got = append(got, *it); return nil })
+				if x.Len() != n || len(got) != n {
+					t.Fatalf("%d items: Len %d, Each gives %d", n, x.Len(), len(got))
+				}
+				if n > 0 && !reflect.DeepEqual(got, want.Items) {
+					t.Fatalf("%d items, shuffled %v: the items differ from Read's", n, shuffled)
+				}
+			}
+		}
+	}
+}
