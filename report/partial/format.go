@@ -308,7 +308,7 @@ type reader struct {
 	// last source's and format's indices in it.
 	pk           *packed
 	srcAt, fmtAt uint32
-	end              *end
+	end          *end
 	// The items: full blocks, the block being filled, and their count.
 	blocks [][]Item
 	block  []Item

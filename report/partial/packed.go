@@ -123,4 +123,3 @@ func (pk *packed) items() []Item {
 func ReadForMerge(r io.Reader, name string) (*Partial, error) {
 	return read(r, name, true)
 }
-
