@@ -129,6 +129,8 @@ run "gzip cut short, small and large" 1 10 300 '$M survey trunc-small.txt.gz tru
 run "JSON nested 100,000 deep" 1 10 300 '$M survey deep.json --quiet'
 run "fragments, 1M new words, 16MiB" 0 60 200 '$M fragments distinct.txt --memory 16MiB --quiet' 'grep -q "Counts are approximate" out'
 run "fragments of 100k records, JSON" 0 60 100 '$M fragments records.jsonl --format json --quiet' 'test $(grep -c "\"record\": " out) = 100000'
+run "survey of 300k identical records" 0 60 120 'yes "{\"text\": \"the same ticket again\"}" | head -n 300000 | $M survey - --quiet' \
+	'grep -q "299,900 more copies, not named" out'
 # Past the streaming threshold (32 MiB) ration keeps a window, not the text.
 run "ration --emit, 96 MB of yes" 0 60 150 'yes | head -c 96M | $M ration - --emit plan.jsonl --quiet' \
 	'test $(wc -l <plan.jsonl) -gt 90000 && rm plan.jsonl'

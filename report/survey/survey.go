@@ -85,14 +85,29 @@ type Totals struct {
 	// (--once) would save.
 	Repeats      int   `json:"repeats"`
 	RepeatTokens int64 `json:"repeat_tokens"`
+	// RepeatGroups counts the groups of identical documents, listed or not.
+	RepeatGroups int `json:"repeat_groups"`
 }
 
 // Identical is a group of documents with the same text (by content hash).
 type Identical struct {
-	Tokens    int      `json:"tokens"` // each
-	Bytes     int64    `json:"bytes"`  // each
+	Tokens int   `json:"tokens"` // each
+	Bytes  int64 `json:"bytes"`  // each
+	// Copies counts the group's documents; Documents names the first
+	// CopiesListed of them in walk order.
+	Copies    int      `json:"copies"`
 	Documents []string `json:"documents"`
 }
+
+// IdenticalShown is how many groups of identical documents a survey
+// lists, those with the most tokens counted more than once; the totals
+// count every group. CopiesListed is how many of a group's documents it
+// names. Both keep a corpus of repeated texts from costing memory per
+// copy.
+const (
+	IdenticalShown = 1000
+	CopiesListed   = 100
+)
 
 // FormatShare is one file type's part of a survey.
 type FormatShare struct {
@@ -245,11 +260,7 @@ func (sv *Surveyor) Finish(skipped []report.Skipped) *Report {
 			t.Failed++
 		}
 	}
-	s.Identical = sv.identicalGroups()
-	for _, g := range s.Identical {
-		t.Repeats += len(g.Documents) - 1
-		t.RepeatTokens += int64(len(g.Documents)-1) * int64(g.Tokens)
-	}
+	s.Identical, t.RepeatGroups, t.Repeats, t.RepeatTokens = sv.identicalGroups()
 	s.Spread = sv.tokens.spread()
 	s.Histogram = sv.tokens.histogram()
 	for _, f := range sv.byFormat {
@@ -431,41 +442,79 @@ func largestGrid(s *Report) *render.Grid {
 }
 
 // identicalGroups returns the groups of documents that share a text, the
-// most tokens repeated first, each group's documents in walk order.
-func (sv *Surveyor) identicalGroups() []Identical {
+// most tokens repeated first (at most IdenticalShown of them, each naming
+// at most CopiesListed documents in walk order), with the number of
+// groups, of repeats and of tokens counted more than once over all of
+// them.
+func (sv *Surveyor) identicalGroups() (list []Identical, groups, repeats int, repeatTokens int64) {
 	dup := sv.keys.repeated()
-	var groups []Identical
-	if len(dup) > 0 {
-		sv.keys.each(func(i int, k docKey) {
-			g, ok := dup[k.hash]
-			if !ok || k.bytes == 0 {
-				return
-			}
-			if g < 0 {
-				dup[k.hash] = len(groups)
-				groups = append(groups, Identical{Tokens: int(k.tokens), Bytes: sv.keys.bytesOf(i, k), Documents: []string{sv.names.Of(i)}})
-				return
-			}
-			groups[g].Documents = append(groups[g].Documents, sv.names.Of(i))
-		})
+	if len(dup) == 0 {
+		return nil, 0, 0, 0
 	}
-	out := append([]Identical{}, groups...)
-	sort.SliceStable(out, func(i, j int) bool {
-		return int64(len(out[i].Documents)-1)*int64(out[i].Tokens) > int64(len(out[j].Documents)-1)*int64(out[j].Tokens)
+	var all []Identical
+	sv.keys.each(func(i int, k docKey) {
+		g, ok := dup[k.hash]
+		if !ok || k.bytes == 0 {
+			return
+		}
+		if g < 0 {
+			dup[k.hash] = len(all)
+			all = append(all, Identical{Tokens: int(k.tokens), Bytes: sv.keys.bytesOf(i, k), Copies: 1})
+			return
+		}
+		all[g].Copies++
 	})
-	return out
+	for _, g := range all {
+		repeats += g.Copies - 1
+		repeatTokens += int64(g.Copies-1) * int64(g.Tokens)
+	}
+	order := make([]int, len(all))
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(i, j int) bool {
+		a, b := all[order[i]], all[order[j]]
+		return int64(a.Copies-1)*int64(a.Tokens) > int64(b.Copies-1)*int64(b.Tokens)
+	})
+	// Only the groups listed gather names: a second pass over the keys
+	// finds their documents.
+	listed := order[:min(len(order), IdenticalShown)]
+	at := make(map[int]int, len(listed))
+	for n, g := range listed {
+		at[g] = n
+	}
+	list = make([]Identical, len(listed))
+	for n, g := range listed {
+		list[n] = all[g]
+	}
+	sv.keys.each(func(i int, k docKey) {
+		g, ok := dup[k.hash]
+		if !ok || k.bytes == 0 {
+			return
+		}
+		if n, ok := at[g]; ok && len(list[n].Documents) < CopiesListed {
+			list[n].Documents = append(list[n].Documents, sv.names.Of(i))
+		}
+	})
+	return list, len(all), repeats, repeatTokens
 }
 
 // identicalGrid lists the groups of identical documents.
 func identicalGrid(s *Report) *render.Grid {
 	g := &render.Grid{Title: fmt.Sprintf("Identical documents (%s groups; %s repeats, %s tokens counted more than once)",
-		render.Num(len(s.Identical)), render.Num(s.Totals.Repeats), render.Num(s.Totals.RepeatTokens)),
+		render.Num(s.Totals.RepeatGroups), render.Num(s.Totals.Repeats), render.Num(s.Totals.RepeatTokens)),
 		Header: []string{"document", "copies", "tokens each"}, Right: []int{1, 2}, Sources: true}
 	for _, id := range s.Identical {
-		g.AddRow(id.Documents[0], render.Num(len(id.Documents)), render.Num(id.Tokens))
+		g.AddRow(id.Documents[0], render.Num(id.Copies), render.Num(id.Tokens))
 		for _, d := range id.Documents[1:] {
 			g.AddRow(d, "same", "")
 		}
+		if more := id.Copies - len(id.Documents); more > 0 {
+			g.AddRow(fmt.Sprintf("(%s more copies, not named)", render.Num(more)), "", "")
+		}
+	}
+	if more := s.Totals.RepeatGroups - len(s.Identical); more > 0 {
+		g.Notes = append(g.Notes, fmt.Sprintf("%s more groups with fewer tokens repeated are counted in the totals but not listed", render.Num(more)))
 	}
 	return g
 }

@@ -24,9 +24,10 @@ func plainIdentical(docs []Weight) []Identical {
 		k, seen := first[d.Hash]
 		if !seen {
 			first[d.Hash] = len(groups)
-			groups = append(groups, Identical{Tokens: d.Tokens, Bytes: d.Bytes, Documents: []string{report.Where(d.Source, d.Record)}})
+			groups = append(groups, Identical{Tokens: d.Tokens, Bytes: d.Bytes, Copies: 1, Documents: []string{report.Where(d.Source, d.Record)}})
 			continue
 		}
+		groups[k].Copies++
 		groups[k].Documents = append(groups[k].Documents, report.Where(d.Source, d.Record))
 	}
 	out := []Identical{}
@@ -38,7 +39,23 @@ func plainIdentical(docs []Weight) []Identical {
 	sort.SliceStable(out, func(i, j int) bool {
 		return int64(len(out[i].Documents)-1)*int64(out[i].Tokens) > int64(len(out[j].Documents)-1)*int64(out[j].Tokens)
 	})
+	if len(out) == 0 {
+		return nil
+	}
 	return out
+}
+
+// listedIdentical cuts plainIdentical's groups to what a survey lists.
+func listedIdentical(groups []Identical) []Identical {
+	if len(groups) > IdenticalShown {
+		groups = groups[:IdenticalShown]
+	}
+	for i := range groups {
+		if len(groups[i].Documents) > CopiesListed {
+			groups[i].Documents = groups[i].Documents[:CopiesListed]
+		}
+	}
+	return groups
 }
 
 // randomDocs makes n documents in runs of records of a few sources, with
@@ -118,11 +135,28 @@ func TestSurveyorAgreesWithPlainComputation(t *testing.T) {
 			if !reflect.DeepEqual(s.Largest, largest) {
 				t.Fatalf("n=%d: largest %v, want %v", n, s.Largest, largest)
 			}
-			if got, want := s.Identical, plainIdentical(docs); !reflect.DeepEqual(got, want) {
+			all := plainIdentical(docs)
+			if got, want := s.Identical, listedIdentical(all); !reflect.DeepEqual(got, want) {
 				t.Fatalf("n=%d: %d identical groups, want %d", n, len(got), len(want))
+			}
+			repeats, repeatTokens := 0, int64(0)
+			for _, g := range all {
+				repeats += g.Copies - 1
+				repeatTokens += int64(g.Copies-1) * int64(g.Tokens)
+			}
+			if s.Totals.RepeatGroups != len(all) || s.Totals.Repeats != repeats || s.Totals.RepeatTokens != repeatTokens {
+				t.Fatalf("n=%d: repeat totals %d groups, %d repeats, %d tokens; want %d, %d, %d", n,
+					s.Totals.RepeatGroups, s.Totals.Repeats, s.Totals.RepeatTokens, len(all), repeats, repeatTokens)
 			}
 			if n > 1000 && len(s.Identical) == 0 {
 				t.Fatalf("n=%d: no repeats made; the test checks nothing", n)
+			}
+			most := 0
+			for _, g := range all {
+				most = max(most, g.Copies)
+			}
+			if n > 100_000 && (len(all) <= IdenticalShown || most <= CopiesListed) {
+				t.Fatalf("n=%d: %d groups, the largest of %d copies: the caps on what is listed go unchecked", n, len(all), most)
 			}
 			wantRows := len(docs)
 			if keep >= 0 {
