@@ -689,9 +689,10 @@ func (f *Fragmenter) AddWords(source string, record int, dw *DocWords) {
 }
 
 // tables flushes every shard's batch and returns the word tables, which
-// then hold every word scanned. What they hold does not depend on which
-// shard scanned which document (but for the splits kept of a word with
-// more than tally.MaxSplits), so neither does the report.
+// then hold every word scanned. What they hold, the splits kept of a word
+// with more than tally.MaxSplits included (see the tally package's
+// invariants), does not depend on which shard scanned which document, so
+// neither does the report.
 func (f *Fragmenter) tables() *tally.Tables {
 	f.mu.Lock()
 	defer f.mu.Unlock()

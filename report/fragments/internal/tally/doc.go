@@ -22,10 +22,24 @@
 //   - Batches flush between documents, and all of them before the tables
 //     are read: the tables then hold every word, whichever worker scanned
 //     it, and their counts do not depend on the order of the flushes.
-//   - At most MaxSplits splits are kept per word, the first ones seen; the
-//     occurrences of a further split count in the word's totals only. Which
-//     splits are first can depend on the order of the flushes when a word
-//     splits more than MaxSplits ways.
+//   - At most MaxSplits splits are kept per word: of all the distinct
+//     splits it was counted with, those of the smallest keys (fewer ids
+//     first, then the ids in lexicographic order; CompareSplits), each with
+//     its exact count; the occurrences of a further split count in the
+//     word's totals only. A split that arrives at a word keeping MaxSplits
+//     takes the place of the largest key kept when its own key is smaller,
+//     and the count of the split that gives way is dropped. So what is kept
+//     does not depend on the order of the flushes: a split among the final
+//     MaxSplits smallest has fewer than MaxSplits smaller keys among any
+//     subset of the splits, so it is taken in when it first arrives and
+//     never gives way, and every occurrence of it is counted, whatever the
+//     order. A split that gave way never comes back, since the MaxSplits
+//     kept then all have smaller keys. The same holds for tables merged
+//     from shards (AddWord): each shard keeps such a split with its full
+//     count, and the merge keeps it and adds them. Since a split of larger
+//     key has at least as many ids, the one taken in fits in the place of
+//     the one that gave way in the id arena: a word's splits take no more
+//     of it than the first MaxSplits did.
 //   - A word's tally and a batch's word are 64 bytes each, one cache line,
 //     and hold no pointers (words and ids are offsets into arenas), so the
 //     garbage collector never scans the millions of them a large corpus

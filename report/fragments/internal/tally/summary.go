@@ -120,12 +120,22 @@ func (s *Summary) fill(i int32, word []byte, count, pieces, docs int64, splits [
 	s.byWord[e.word] = i
 }
 
+// addSplits counts splits in e by the tables' rule: e keeps, by key (see
+// CompareSplits), the MaxSplits splits of the smallest keys it has seen
+// since the word took its counter.
 func (e *summaryEntry) addSplits(splits []Split) {
 	for _, sp := range splits {
-		if k := slices.IndexFunc(e.splits, func(x Split) bool { return slices.Equal(x.IDs, sp.IDs) }); k >= 0 {
+		k, found := slices.BinarySearchFunc(e.splits, sp.IDs, func(x Split, ids []uint32) int { return CompareSplits(x.IDs, ids) })
+		switch {
+		case found:
 			e.splits[k].Count += sp.Count
-		} else if len(e.splits) < MaxSplits {
-			e.splits = append(e.splits, Split{IDs: slices.Clone(sp.IDs), Count: sp.Count})
+		case k == MaxSplits:
+			// Its key is larger than every one kept.
+		default:
+			if len(e.splits) == MaxSplits {
+				e.splits = e.splits[:MaxSplits-1] // the largest key gives way
+			}
+			e.splits = slices.Insert(e.splits, k, Split{IDs: slices.Clone(sp.IDs), Count: sp.Count})
 		}
 	}
 }

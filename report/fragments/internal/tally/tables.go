@@ -1,6 +1,7 @@
 package tally
 
 import (
+	"cmp"
 	"encoding/binary"
 	"iter"
 	"slices"
@@ -13,8 +14,8 @@ import (
 const numParts = 16
 
 // MaxSplits is how many distinct splits of one word the tables tell
-// apart; the occurrences of any further split count in the word's totals
-// only.
+// apart: those of the smallest keys (see CompareSplits). The occurrences
+// of any further split count in the word's totals only.
 const MaxSplits = 4
 
 // A slot of the batch's index and of a partition's index is the word's
@@ -58,10 +59,10 @@ type wordTally struct {
 	docs          int64
 	more          int32    // 1 + the index of the word's further splits in more, or 0
 	stamp         uint32   // the stamp of the last batch that counted a document for it (see Batch.SetStamp)
-	split         splitRef // the first split seen
+	split         splitRef // one of the splits kept, the first seen unless it gave way
 }
 
-// wordMore holds the second to MaxSplits-th splits of a word.
+// wordMore holds the splits of a word kept besides its tally's own.
 type wordMore struct{ splits [MaxSplits - 1]splitRef }
 
 // splitRef is one way a word splits, seen count times: n ids, which are
@@ -164,8 +165,8 @@ type Split struct {
 	Count int64
 }
 
-// Splits returns the word's splits, at most MaxSplits, in the order they
-// were first seen.
+// Splits returns the word's splits kept, at most MaxSplits, by key (see
+// CompareSplits): the same whatever the order they were counted in.
 func (w Word) Splits() []Split {
 	if w.e != nil {
 		return w.e.splits
@@ -179,7 +180,18 @@ func (w Word) Splits() []Split {
 			}
 		}
 	}
+	slices.SortFunc(out, func(a, b Split) int { return CompareSplits(a.IDs, b.IDs) })
 	return out
+}
+
+// CompareSplits orders splits by key: the one of fewer ids first, then by
+// their ids, lexicographically. A word keeps the MaxSplits splits of the
+// smallest keys, an order that does not depend on when a split arrives.
+func CompareSplits(a, b []uint32) int {
+	if len(a) != len(b) {
+		return cmp.Compare(len(a), len(b))
+	}
+	return slices.Compare(a, b)
 }
 
 // release lets the memory of t go; t is empty after.
@@ -210,6 +222,25 @@ func (t *table) splitIs(r splitRef, ids []uint32) bool {
 		return r.off == ids[0]
 	}
 	return slices.Equal(t.idArena[r.off:r.off+r.n], ids)
+}
+
+// compareSplit returns CompareSplits of split r and ids.
+func (t *table) compareSplit(r splitRef, ids []uint32) int {
+	if r.n == 1 && len(ids) == 1 {
+		return cmp.Compare(r.off, ids[0])
+	}
+	if int(r.n) != len(ids) {
+		return cmp.Compare(int(r.n), len(ids))
+	}
+	return slices.Compare(t.idArena[r.off:r.off+r.n], ids)
+}
+
+// compareRefs returns CompareSplits of splits a and b.
+func (t *table) compareRefs(a, b splitRef) int {
+	if b.n == 1 {
+		return t.compareSplit(a, []uint32{b.off})
+	}
+	return t.compareSplit(a, t.idArena[b.off:b.off+b.n])
 }
 
 // newSplit returns a split of ids seen n times.
@@ -281,7 +312,10 @@ func (t *table) touch(hashes []uint64) {
 	t.sink += sum
 }
 
-// addSplit counts n occurrences of w, a tally of t, split as ids.
+// addSplit counts n occurrences of w, a tally of t, split as ids. When w
+// keeps MaxSplits other splits already, ids takes the place of the one of
+// the largest key if its own key is smaller, and is not kept otherwise
+// (see the package doc for why the counts kept are then exact).
 func (t *table) addSplit(w *wordTally, ids []uint32, n int64) {
 	if t.countSplit(&w.split, ids, n) {
 		return
@@ -296,6 +330,27 @@ func (t *table) addSplit(w *wordTally, ids []uint32, n int64) {
 			return
 		}
 	}
+	last := &w.split // every place is taken: find the largest key kept
+	for q := range m.splits {
+		if t.compareRefs(m.splits[q], *last) > 0 {
+			last = &m.splits[q]
+		}
+	}
+	if t.compareSplit(*last, ids) > 0 {
+		t.replaceSplit(last, ids, n)
+	}
+}
+
+// replaceSplit puts ids, seen n times, in the place of split sp, whose key
+// is larger. A larger key has at least as many ids, so the new ones fit in
+// the old ones' place in the id arena: replacing a split never grows it.
+func (t *table) replaceSplit(sp *splitRef, ids []uint32, n int64) {
+	if len(ids) == 1 {
+		*sp = splitRef{off: ids[0], n: 1, count: n}
+		return
+	}
+	copy(t.idArena[sp.off:sp.off+sp.n], ids)
+	*sp = splitRef{off: sp.off, n: uint32(len(ids)), count: n}
 }
 
 // countSplit counts n occurrences split as ids in sp, when sp is that
@@ -430,8 +485,8 @@ func roomFor[T any](s []T, n int) []T {
 
 // AddWord adds one word's tallies, as another Tables holds them (a shard's,
 // read back from a partial report), to ts: its occurrences, pieces and
-// documents, and its splits in the order given. It must not be called
-// while batches flush into ts.
+// documents, and its splits, kept by the same rule as a flush's. It must
+// not be called while batches flush into ts.
 func (ts *Tables) AddWord(word []byte, count, pieces, docs int64, splits []Split) {
 	h := hashWord(word)
 	t := &ts.parts[partOf(h)]
