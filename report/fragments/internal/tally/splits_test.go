@@ -171,3 +171,47 @@ func TestSplitsKeptWhateverTheOrder(t *testing.T) {
 		checkKept(t, what+", summary", splitsOf(s.All()), truth)
 	}
 }
+
+// FuzzSplitsKept reads occurrences from data, two bytes each: the word
+// (one of three) and its split (one of twelve, of one to four ids; one
+// of a single id is the word's own) in the
+// first, the batch it goes to and whether that batch flushes after it in
+// the second. Whatever the order, the tables and a merge of two of them
+// keep each word's MaxSplits splits of the smallest keys, exactly.
+func FuzzSplitsKept(f *testing.F) {
+	f.Add([]byte("\x00\x01\x10\x02\x21\x83\x3b\x04\x4a\x85\x05\x06\x17\x07\x29\x08"))
+	f.Add([]byte("\xbb\x00\xaa\x01\x99\x02\x88\x83\x77\x00\x66\x01\x55\x82"))
+	splits := [12][]uint32{{4}, {1, 9}, {2, 2, 2}, {0}, {7, 1, 1, 1}, {1, 8}, {3, 3}, {2, 2, 1}, {9}, {0, 0, 0, 5}, {1, 1}, {6}}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		var occ []occurrence
+		var ts [2]Tables
+		batches := [2]*Batch{NewBatch(64), NewBatch(64)}
+		for i := 0; i+1 < len(data); i += 2 {
+			word, ids := data[i]>>4%3, splits[int(data[i]&15)%len(splits)]
+			if len(ids) == 1 {
+				// A token alone spells one word, as in a vocabulary.
+				ids = []uint32{ids[0] + 16*uint32(word)}
+			}
+			o := occurrence{fmt.Sprintf("word%d", word), ids}
+			occ = append(occ, o)
+			k := data[i+1] & 1
+			if len(o.ids) == 1 && data[i+1]&2 != 0 {
+				batches[k].AddToken([]byte(o.word), o.ids[0], int32(i))
+			} else {
+				batches[k].Add([]byte(o.word), o.ids, int32(i))
+			}
+			if data[i+1]&0x80 != 0 {
+				batches[k].Flush(&ts[data[i+1]>>2&1])
+			}
+		}
+		batches[0].Flush(&ts[0])
+		batches[1].Flush(&ts[1])
+		var merged Tables
+		for i := range ts {
+			for w := range ts[i].All() {
+				merged.AddWord(w.Bytes(), w.Count(), w.Pieces(), w.Docs(), w.Splits())
+			}
+		}
+		checkKept(t, "merged", splitsOf(merged.All()), truthOf(occ))
+	})
+}
