@@ -218,7 +218,9 @@ func read(r io.Reader, name string, compact bool) (*Partial, error) {
 	}
 	rd := reader{br: br, p: &Partial{Tables: map[string][]json.RawMessage{}}}
 	if compact {
-		rd.pk = &packed{}
+		// Index 0 is the empty string, the source and format an item
+		// shares with none before it.
+		rd.pk = &packed{strs: []string{""}}
 	}
 	for {
 		kind, err := br.ReadByte()

@@ -119,8 +119,17 @@ func FuzzRead(f *testing.F) {
 	f.Add(encode(f, sample(2, 3), true))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		p, err := Read(bytes.NewReader(data), "fuzz")
+		c, cerr := ReadForMerge(bytes.NewReader(data), "fuzz")
+		if (err == nil) != (cerr == nil) || err != nil && err.Error() != cerr.Error() {
+			t.Fatalf("Read: %v; ReadForMerge: %v", err, cerr)
+		}
 		if err != nil {
 			return
+		}
+		var items []Item
+		c.Each(func(it *Item) error { items = append(items, *it); return nil })
+		if len(items) != len(p.Items) || len(items) > 0 && !reflect.DeepEqual(items, p.Items) {
+			t.Fatalf("ReadForMerge gives\n%+v\nRead gives\n%+v", items, p.Items)
 		}
 		q, err := Read(bytes.NewReader(encode(t, p, false)), "again")
 		if err != nil {
