@@ -17,6 +17,7 @@ func newFit(sh *shared) *cobra.Command {
 	var sf sortFlag
 	var tf targetFlags
 	var rf requestFlags
+	var rows int
 	c := &cobra.Command{
 		Use:   "fit PATH...",
 		Short: "Check which documents overflow the window once framed, with the answer reserved",
@@ -65,7 +66,7 @@ overflows, else 0.`,
 			}
 			r := fc.Finish(skipped)
 			r.Sort(order)
-			write := func() error { return fit.Write(sh.stdout, f, r) }
+			write := func() error { return fit.Write(sh.stdout, f, r, rows) }
 			if f == render.HTML {
 				write = func() error { return fit.WriteHTML(sh.stdout, r, 0) }
 			}
@@ -84,5 +85,6 @@ overflows, else 0.`,
 	addTargetFlags(c, &tf, false)
 	addRequestFlags(c, &rf)
 	addShardFlags(sh, c, &cf)
+	c.Flags().IntVar(&rows, "rows", 50, "per-document rows in the table and md views, overflowing first (0: all; csv and json list all)")
 	return c
 }

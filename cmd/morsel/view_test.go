@@ -182,3 +182,29 @@ func TestNoTextFieldIsOneDocument(t *testing.T) {
 		t.Errorf("--field text asked for: exit %d, want 1", code)
 	}
 }
+
+// TestFitRows checks that fit's table lists --rows documents, the
+// overflowing first, says how many more there are, and that CSV lists all.
+func TestFitRows(t *testing.T) {
+	dir := t.TempDir()
+	for i := range 6 {
+		words := 10
+		if i == 4 {
+			words = 2000 // the one that overflows
+		}
+		os.WriteFile(filepath.Join(dir, fmt.Sprintf("d%d.txt", i)), []byte(strings.Repeat("harbor ", words)), 0o644)
+	}
+	out, _, code := runMorsel(t, "fit", dir, "--rows", "2")
+	if code != 3 || !strings.Contains(out, "d4.txt") || !strings.Contains(out, "d0.txt") || strings.Contains(out, "d1.txt") ||
+		!strings.Contains(out, "4 more document(s) not listed") {
+		t.Errorf("exit %d; want d4.txt (over) then d0.txt, and 4 more:\n%s", code, out)
+	}
+	all, _, _ := runMorsel(t, "fit", dir, "--rows", "0")
+	if strings.Contains(all, "not listed") || !strings.Contains(all, "d5.txt") {
+		t.Errorf("--rows 0 does not list all:\n%s", all)
+	}
+	csv, _, _ := runMorsel(t, "fit", dir, "--rows", "1", "--format", "csv")
+	if n := strings.Count(csv, "\n"); n != 7 {
+		t.Errorf("csv has %d lines, want a header and 6 rows:\n%s", n, csv)
+	}
+}

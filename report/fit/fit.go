@@ -223,8 +223,10 @@ func (r *Report) expand() {
 	r.fits = nil
 }
 
-// Write renders a fit report in format f.
-func Write(w io.Writer, f render.Format, r *Report) error {
+// Write renders a fit report in format f; the table and Markdown views
+// list the first rows documents (all when rows is 0), and say how many
+// more there are.
+func Write(w io.Writer, f render.Format, r *Report, rows int) error {
 	if f == render.JSON {
 		return writeJSON(w, r)
 	}
@@ -249,13 +251,22 @@ func Write(w io.Writer, f render.Format, r *Report) error {
 		}
 		return err
 	}
-	r.expand()
-	for _, d := range r.Documents {
+	shown, more := 0, 0
+	r.Each(func(d Doc) error {
+		if rows > 0 && shown == rows {
+			more++
+			return nil
+		}
+		shown++
 		verdict := "fits"
 		if !d.Fits {
 			verdict = fmt.Sprintf("OVER by %s", render.Num(-d.Margin))
 		}
 		g.AddRow(report.Where(d.Source, d.Record), render.Num(d.Tokens), render.Num(d.InputTokens), render.Num(d.Reserve), render.Num(d.Margin), verdict)
+		return nil
+	})
+	if more > 0 {
+		g.Notes = append(g.Notes, fmt.Sprintf("%s more document(s) not listed; --rows 0 lists all, and csv and json always do", render.Num(more)))
 	}
 	grids := []*render.Grid{g, render.TotalsGrid(totals(r))}
 	if len(r.Skipped) > 0 {
