@@ -100,7 +100,12 @@ const (
 // ShardOf returns the share, 1..n, of the item at source and record when a
 // walk is cut into n shares (n >= 1).
 func ShardOf(source string, record int, n int) int {
-	hi, _ := bits.Mul64(shardHash(source, record), uint64(n))
+	return shareOf(shardHash(source, record), n)
+}
+
+// shareOf maps a hash to a share, 1..n, in proportion to its value.
+func shareOf(h uint64, n int) int {
+	hi, _ := bits.Mul64(h, uint64(n))
 	return int(hi) + 1
 }
 
@@ -154,6 +159,5 @@ func (o *Owner) Owns(source string, record int) bool {
 	if source != o.src {
 		o.src, o.state = source, sourceHash(source)
 	}
-	hi, _ := bits.Mul64(recordHash(o.state, record), uint64(o.share.N))
-	return int(hi)+1 == o.share.K
+	return shareOf(recordHash(o.state, record), o.share.N) == o.share.K
 }

@@ -76,17 +76,10 @@ func (pk *packed) item(r *rec, it *Item) {
 	}
 }
 
-// less reports whether record a comes before record b in a single run.
+// less reports whether record a comes before record b in a single run,
+// as Key.Less orders their keys.
 func (pk *packed) less(a, b *rec) bool {
-	if a.in != b.in {
-		return a.in < b.in
-	}
-	if a.src != b.src {
-		if c := comparePaths(pk.strs[a.src], pk.strs[b.src]); c != 0 {
-			return c < 0
-		}
-	}
-	return a.seq < b.seq
+	return Key{In: a.in, Seq: a.seq, Src: pk.strs[a.src]}.Less(Key{In: b.in, Seq: b.seq, Src: pk.strs[b.src]})
 }
 
 // sorted reports whether the records are in the order of a single run.
