@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"fmt"
 	"runtime"
+	"sync"
+	"sync/atomic"
 	"unicode/utf8"
 )
 
@@ -93,6 +95,35 @@ func (e *Encoder) get() *state {
 		s.enc = e
 		return s
 	}
+}
+
+// inParallel calls do(k, w) for every k in [0, n) on up to workers
+// goroutines, each with a state of its own: own, when not nil, in the
+// calling goroutine (its word cache is warm), and states of e in the
+// others.
+func (e *Encoder) inParallel(own *state, n, workers int, do func(k int, w *state)) {
+	var next atomic.Int64
+	work := func(w *state) {
+		for k := int(next.Add(1)) - 1; k < n; k = int(next.Add(1)) - 1 {
+			do(k, w)
+		}
+	}
+	others := min(workers, n)
+	if own != nil {
+		others--
+	}
+	var wg sync.WaitGroup
+	for range others {
+		wg.Go(func() {
+			w := e.get()
+			defer e.put(w)
+			work(w)
+		})
+	}
+	if own != nil {
+		work(own)
+	}
+	wg.Wait()
 }
 
 func (e *Encoder) put(s *state) {

@@ -3,7 +3,6 @@ package bpe
 import (
 	"bytes"
 	"runtime"
-	"sync"
 	"sync/atomic"
 	"unicode/utf8"
 )
@@ -205,28 +204,14 @@ func (s *state) countParallel(t []byte, c *cutTable, size int) int {
 		ends = append(ends, j)
 		i = j
 	}
-	var next, total atomic.Int64
-	work := func(w *state) {
-		n := 0
-		for k := int(next.Add(1) - 1); k < len(ends); k = int(next.Add(1) - 1) {
-			a := 0
-			if k > 0 {
-				a = ends[k-1]
-			}
-			n += w.countCuts(t[a:ends[k]], c)
+	var total atomic.Int64
+	s.enc.inParallel(s, len(ends), runtime.GOMAXPROCS(0), func(k int, w *state) {
+		a := 0
+		if k > 0 {
+			a = ends[k-1]
 		}
-		total.Add(int64(n))
-	}
-	var wg sync.WaitGroup
-	for range min(runtime.GOMAXPROCS(0), len(ends)) - 1 {
-		wg.Go(func() {
-			w := s.enc.get()
-			defer s.enc.put(w)
-			work(w)
-		})
-	}
-	work(s)
-	wg.Wait()
+		total.Add(int64(w.countCuts(t[a:ends[k]], c)))
+	})
 	return int(total.Load())
 }
 

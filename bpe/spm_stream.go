@@ -107,28 +107,13 @@ func (sp *spmModel) stretches(text []byte, size int) []int {
 // index, from a worker state of its own.
 func (e *Encoder) spmParallel(text []byte, size, workers int, do func(k int, s *state, stretch []byte)) int {
 	ends := e.v.spm.stretches(text, size)
-	var next atomic.Int64
-	var wg sync.WaitGroup
-	for range min(workers, len(ends)) {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			s := e.get()
-			defer e.put(s)
-			for {
-				k := int(next.Add(1)) - 1
-				if k >= len(ends) {
-					return
-				}
-				start := 0
-				if k > 0 {
-					start = ends[k-1] + 1
-				}
-				do(k, s, text[start:ends[k]])
-			}
-		}()
-	}
-	wg.Wait()
+	e.inParallel(nil, len(ends), workers, func(k int, s *state) {
+		start := 0
+		if k > 0 {
+			start = ends[k-1] + 1
+		}
+		do(k, s, text[start:ends[k]])
+	})
 	return len(ends)
 }
 
