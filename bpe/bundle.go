@@ -481,7 +481,7 @@ func (b *bundleSpec) build(configName string, config []byte) (*Vocab, error) {
 	if err := b.buildMerges(v, appendRaw); err != nil {
 		return nil, err
 	}
-	p := &pipeline{norm: norm, pre: pre, byteLevel: byteLevel, written: keepComponents(b.comps)}
+	p := &pipeline{norm: norm, contNorm: withoutPrepend(norm), pre: pre, byteLevel: byteLevel, written: keepComponents(b.comps)}
 	p.family = family(byteLevel, comp("pre_tokenizer"), comp("normalizer"))
 	for _, st := range pre {
 		if m, ok := st.(*metaspaceStage); ok {

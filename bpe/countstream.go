@@ -1,23 +1,137 @@
 package bpe
 
-import "io"
+import (
+	"io"
+	"runtime"
+	"sync"
+	"sync/atomic"
+)
 
-// streamChunk is how much CountReader reads at a time.
+// streamChunk is how much CountReader reads at a time, and about the size
+// of the stretches it counts apart.
 const streamChunk = 1 << 20
 
-// CountReader counts the tokens of everything r yields, holding about one
-// megabyte at a time, and returns the count with the number of bytes read.
-// With the GPT-2 rule it cuts the stream only where a pre-token must end (a
-// non-space character followed by white space), so the count equals that
-// of the whole text; with another split pattern, special strings that
-// hold white space, or a SentencePiece model, it reads the whole text
-// first. Under a SentencePiece model whose texts may be cut before
-// normalization (spm_stream.go), it cuts the stream there and counts the
-// stretches on every core, holding a few megabytes.
-func (e *Encoder) CountReader(r io.Reader) (Stats, int64, error) {
-	if e.cutsInput() {
-		return e.spmCountReader(r, streamChunk, spmWorkers())
+// cutPlan is where an encoder may cut a long text so that its stretches,
+// counted apart (all but the first as continuations), give the count of
+// the whole: under the GPT-2 rule where a character other than white
+// space is followed by white space (safeCut); under a bundle at the places
+// of streamcut.go; under a SentencePiece model at the spaces of
+// spm_stream.go, which the cut drops.
+type cutPlan struct {
+	// last returns the last cut in buf at from or after: the stretch
+	// before it is buf[:end] and the rest starts at next; end is 0 when
+	// there is none.
+	last func(buf []byte, from int) (end, next int)
+	// free says that the stretches also tokenize as texts of their own,
+	// and that the cut drops nothing (Windows).
+	free bool
+}
+
+// planFor returns e's cut plan, or nil when it cuts nowhere.
+func planFor(e *Encoder) *cutPlan {
+	switch {
+	case e.cutsInput():
+		sp := e.v.spm
+		return &cutPlan{last: func(buf []byte, from int) (int, int) {
+			if j := sp.lastInputCut(buf, from); j > 0 {
+				return j, j + 1
+			}
+			return 0, 0
+		}}
+	case e.v.spm != nil || e.re != nil:
+		return nil
+	case e.v.pipe != nil:
+		rc := bundleCuts(e)
+		if rc == nil {
+			return nil
+		}
+		return &cutPlan{last: func(buf []byte, from int) (int, int) {
+			i := rc.last(buf, from)
+			return i, i
+		}, free: rc.free}
+	case e.specialsHoldSpace():
+		return nil
 	}
+	return &cutPlan{last: func(buf []byte, from int) (int, int) {
+		i := safeCutFrom(buf, from)
+		return i, i
+	}, free: true}
+}
+
+// countPart counts text into st with s: as a continuation when cont is
+// set (a stretch after the start of a longer text).
+func (e *Encoder) countPart(s *state, text []byte, cont bool, st *Stats) {
+	switch {
+	case e.v.spm != nil:
+		e.spmCount(s, text, st)
+	case e.v.pipe != nil:
+		s.mode, s.n, s.cont = sinkCount, 0, cont
+		var pst Stats
+		e.runBundle(s, text, &pst, func(uint32, int, int) { s.n++ })
+		s.cont = false
+		st.Tokens += s.n
+		st.Specials += pst.Specials
+		if st.Err == nil {
+			st.Err = pst.Err
+		}
+	default:
+		e.segments(text, st, func(seg []byte, special int) {
+			if special >= 0 {
+				st.Tokens++
+				return
+			}
+			if e.re != nil {
+				keepErr(st, e.re.spans(seg, func(a, b int) { st.Tokens += len(s.piece(seg[a:b])) }))
+				return
+			}
+			for i := 0; i < len(seg); {
+				j := nextGPT2(seg, i)
+				st.Tokens += s.count(seg[i:j])
+				i = j
+			}
+		})
+	}
+}
+
+// countLong counts a text of the plan's encoder on up to workers
+// goroutines, in stretches of about size bytes.
+func (e *Encoder) countLong(text []byte, size, workers int) Stats {
+	type stretch struct{ a, b int }
+	var parts []stretch
+	for i := 0; i < len(text); {
+		end, next := len(text), len(text)
+		for j := i + 2*size; ; j *= 2 {
+			if j >= len(text) {
+				break
+			}
+			if c, n := e.plan.last(text[:j], i+size); c > 0 {
+				end, next = c, n
+				break
+			}
+		}
+		parts = append(parts, stretch{i, end})
+		i = next
+	}
+	var tokens, specials atomic.Int64
+	var errs sync.Once
+	var err error
+	e.inParallel(nil, len(parts), workers, func(k int, s *state) {
+		var st Stats
+		e.countPart(s, text[parts[k].a:parts[k].b], k > 0, &st)
+		tokens.Add(int64(st.Tokens))
+		specials.Add(int64(st.Specials))
+		if st.Err != nil {
+			errs.Do(func() { err = st.Err })
+		}
+	})
+	return Stats{Tokens: int(tokens.Load()), Specials: int(specials.Load()), Err: err}
+}
+
+// CountReader counts the tokens of everything r yields and returns the
+// count with the number of bytes read. Where the encoder may cut a text
+// (cutPlan), it holds a few megabytes at a time and counts them on every
+// core; otherwise it reads the whole text first.
+func (e *Encoder) CountReader(r io.Reader) (Stats, int64, error) {
 	st, _, n, err := e.countStream(r, nil, nil, false)
 	return st, n, err
 }
@@ -33,7 +147,7 @@ func (e *Encoder) CountFramedReader(r io.Reader, before, after []byte) (alone St
 }
 
 func (e *Encoder) countStream(r io.Reader, before, after []byte, frame bool) (Stats, int, int64, error) {
-	if e.re != nil || e.v.pipe != nil || e.v.spm != nil || e.specialsHoldSpace() {
+	if e.plan == nil {
 		all, err := io.ReadAll(r)
 		st := e.CountStats(all)
 		if err == nil {
@@ -45,46 +159,153 @@ func (e *Encoder) countStream(r io.Reader, before, after []byte, frame bool) (St
 		}
 		return st, framed, int64(len(all)), err
 	}
-	var total Stats
-	framed := 0 // the framed count, less the tokens of the text after the last cut so far
-	first := true
-	n, err := e.windows(r, streamChunk, func(w []byte, last bool) error {
-		st := e.CountStats(w)
-		total.Tokens += st.Tokens
-		total.Specials += st.Specials
+	return e.countCut(r, streamChunk, runtime.GOMAXPROCS(0), before, after, frame)
+}
+
+// countCut is countStream under a cut plan: r is read about size bytes at
+// a time and cut into stretches of at least size bytes, counted on up to
+// workers goroutines; about 2*workers stretches are held at once. A text
+// shorter than size is counted on the calling goroutine.
+func (e *Encoder) countCut(r io.Reader, size, workers int, before, after []byte, frame bool) (Stats, int, int64, error) {
+	var tokens, specials, framed atomic.Int64
+	var errs sync.Once
+	var serr error
+	count := func(s *state, text []byte, k int, last bool) {
+		var st Stats
+		e.countPart(s, text, k > 0, &st)
+		tokens.Add(int64(st.Tokens))
+		specials.Add(int64(st.Specials))
+		f := st.Tokens
 		if frame {
+			var fst Stats
 			switch {
-			case first && last: // no cut in the whole text
-				framed = e.Count(join(before, w, after))
-			case first:
-				framed = e.Count(join(before, w, nil))
+			case k == 0 && last:
+				e.countPart(s, join(before, text, after), false, &fst)
+			case k == 0:
+				e.countPart(s, join(before, text, nil), false, &fst)
 			case last:
-				framed += e.Count(join(nil, w, after))
+				e.countPart(s, join(nil, text, after), true, &fst)
 			default:
-				framed += st.Tokens
+				fst = st
+			}
+			f = fst.Tokens
+			if st.Err == nil {
+				st.Err = fst.Err
 			}
 		}
-		first = false
-		return nil
-	})
-	if err != nil {
-		framed = 0
+		framed.Add(int64(f))
+		if st.Err != nil {
+			errs.Do(func() { serr = st.Err })
+		}
 	}
-	return total, framed, n, err
+	result := func(n int64, rerr error) (Stats, int, int64, error) {
+		err := rerr
+		if err == nil {
+			err = serr
+		}
+		f := int(framed.Load())
+		if err != nil {
+			f = 0
+		}
+		return Stats{Tokens: int(tokens.Load()), Specials: int(specials.Load()), Err: serr}, f, n, err
+	}
+
+	var n int64
+	buf := make([]byte, 0, 2*size)
+	// fill reads into buf until it holds at least want bytes or r ends.
+	fill := func(want int) (bool, error) {
+		for len(buf) < want {
+			if cap(buf)-len(buf) <= size/2 {
+				nb := make([]byte, len(buf), 2*cap(buf)+size)
+				copy(nb, buf)
+				buf = nb
+			}
+			m, err := r.Read(buf[len(buf):cap(buf)])
+			buf = buf[:len(buf)+m]
+			n += int64(m)
+			if err == io.EOF {
+				return true, nil
+			}
+			if err != nil {
+				return true, err
+			}
+		}
+		return false, nil
+	}
+	eof, rerr := fill(size)
+	if eof {
+		s := e.get()
+		count(s, buf, 0, true)
+		e.put(s)
+		return result(n, rerr)
+	}
+
+	type job struct {
+		text []byte
+		k    int
+		last bool
+	}
+	jobs := make(chan job)
+	free := make(chan []byte, 2*workers)
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Go(func() {
+			s := e.get()
+			defer e.put(s)
+			for j := range jobs {
+				count(s, j.text, j.k, j.last)
+				select {
+				case free <- j.text[:0]:
+				default:
+				}
+			}
+		})
+	}
+	last := func([]byte, int) (int, int) { return 0, 0 }
+	if e.plan != nil {
+		last = e.plan.last
+	}
+	k := 0
+	checked := 0 // buf[:checked] holds no cut: a long stretch without one is not scanned again at every read
+	for !eof && rerr == nil {
+		if len(buf) >= size {
+			if end, next := last(buf, checked); end > 0 {
+				var nb []byte
+				select {
+				case nb = <-free:
+				default:
+					nb = make([]byte, 0, 2*size)
+				}
+				nb = append(nb, buf[next:]...)
+				jobs <- job{buf[:end], k, false}
+				k++
+				buf = nb
+				checked = max(len(buf)-1, 0) // the cut was the last one but for the final byte, which had nothing after it
+			} else {
+				checked = max(len(buf)-1, 0)
+			}
+		}
+		eof, rerr = fill(len(buf) + max(size/2, 1))
+	}
+	jobs <- job{buf, k, true}
+	close(jobs)
+	wg.Wait()
+	return result(n, rerr)
 }
 
 // Windows reads r to its end and gives fn its text in consecutive windows
 // of at least size bytes (the last may be shorter), each but the last
-// ending where a pre-token must end under the GPT-2 rule, so that the
-// windows tokenized apart give the tokens of the whole text, and its words
-// too (no word crosses white space). Where no such place is known (another
-// split pattern, a bundle's pipeline, a SentencePiece model, special
-// strings that hold white space) fn gets the whole text as one window. A
-// window is valid only during the call. It returns the bytes read and the
-// first error of the reader or of fn; on a read error fn has had what was
-// read before it.
+// ending at a cut of the encoder's plan that drops nothing and whose
+// stretches tokenize as texts of their own (the GPT-2 rule's, and most
+// bundles'), so that the windows tokenized apart give the tokens of the
+// whole text, and its words too (every cut is at white space). Where no
+// such place is known (another split pattern, a bundle that prepends to
+// its text, a SentencePiece model, special strings that hold white space)
+// fn gets the whole text as one window. A window is valid only during the
+// call. It returns the bytes read and the first error of the reader or of
+// fn; on a read error fn has had what was read before it.
 func (e *Encoder) Windows(r io.Reader, size int, fn func(window []byte, last bool) error) (int64, error) {
-	if e.re != nil || e.v.pipe != nil || e.v.spm != nil || e.specialsHoldSpace() {
+	if e.plan == nil || !e.plan.free {
 		all, err := io.ReadAll(r)
 		if ferr := fn(all, true); err == nil {
 			err = ferr
@@ -117,9 +338,9 @@ func (e *Encoder) windows(r io.Reader, size int, fn func(window []byte, last boo
 			if len(buf) < size {
 				continue
 			}
-			cut = safeCutFrom(buf, checked)
-			if cut == 0 { // one long pre-token so far; read on
-				checked = len(buf)
+			cut, _ = e.plan.last(buf, checked)
+			if cut == 0 { // no cut so far; read on
+				checked = max(len(buf)-1, 0)
 				continue
 			}
 		}
@@ -128,6 +349,6 @@ func (e *Encoder) windows(r io.Reader, size int, fn func(window []byte, last boo
 		}
 		rest := copy(buf, buf[cut:])
 		buf = buf[:rest]
-		checked = rest // the cut was the last one
+		checked = max(rest-1, 0) // the cut was the last one but for the final byte, which had nothing after it
 	}
 }

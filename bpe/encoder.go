@@ -59,6 +59,7 @@ type Encoder struct {
 	specIDs  []uint32
 	maxWords int
 	free     chan *state
+	plan     *cutPlan // where a long text may be cut (countstream.go); nil: nowhere
 }
 
 // NewEncoder returns an encoder for v. It fails on a split pattern that does
@@ -80,6 +81,7 @@ func NewEncoder(v *Vocab, opt Options) (*Encoder, error) {
 		e.specIDs = append(e.specIDs, uint32(s.ID))
 	}
 	e.free = make(chan *state, 2*runtime.GOMAXPROCS(0)+2)
+	e.plan = planFor(e)
 	return e, nil
 }
 
@@ -220,36 +222,19 @@ func (e *Encoder) CountStats(text []byte) Stats {
 	if len(text) >= spmParallelMin && e.cutsInput() {
 		return e.spmCountCut(text, spmStretch, spmWorkers())
 	}
+	if len(text) >= longText && e.plan != nil {
+		return e.countLong(text, streamChunk, runtime.GOMAXPROCS(0))
+	}
 	s := e.get()
 	defer e.put(s)
 	var st Stats
-	if e.v.spm != nil {
-		e.spmCount(s, text, &st)
-		return st
-	}
-	if e.v.pipe != nil {
-		s.mode, s.n = sinkCount, 0
-		e.runBundle(s, text, &st, func(uint32, int, int) { s.n++ })
-		st.Tokens = s.n
-		return st
-	}
-	e.segments(text, &st, func(seg []byte, special int) {
-		if special >= 0 {
-			st.Tokens++
-			return
-		}
-		if e.re != nil {
-			keepErr(&st, e.re.spans(seg, func(a, b int) { st.Tokens += len(s.piece(seg[a:b])) }))
-			return
-		}
-		for i := 0; i < len(seg); {
-			j := nextGPT2(seg, i)
-			st.Tokens += s.count(seg[i:j])
-			i = j
-		}
-	})
+	e.countPart(s, text, false, &st)
 	return st
 }
+
+// A text of longText bytes or more is counted on every core where the
+// encoder may cut it (countLong).
+const longText = 4 << 20
 
 // Split calls fn with the span of every pre-token of text, in order, and
 // with special true for a special token that SpecialsHonor maps to its id.

@@ -26,6 +26,7 @@ type state struct {
 
 	// a bundle's pipeline (pipeline.go, normalize.go, pretok.go)
 	stages     []stage
+	cont       bool // the text is a continuation: a stretch of a longer one after its start (streamcut.go)
 	mode       int
 	n          int
 	ints       []int

@@ -12,6 +12,7 @@ import (
 // the post-processor adds per sequence.
 type pipeline struct {
 	norm      normalizer
+	contNorm  normalizer // norm less its Prepend steps, for a continuation's start (streamcut.go)
 	pre       []stage
 	byteLevel bool
 	added     addedSet // matched in the raw text
@@ -99,11 +100,18 @@ func (s *state) segment(seg []byte, base int, honor bool, added func(id uint32, 
 		al = s.identity(base, len(seg))
 	}
 	t := seg
-	if p.norm != nil {
-		t, al = p.norm.normalize(s, seg, al)
+	// The start of a continuation (a stretch of a longer text, streamcut.go)
+	// is no start of the text: it gets no Prepend and is no first piece.
+	first := base == 0 && !s.cont
+	norm := p.norm
+	if base == 0 && s.cont {
+		norm = p.contNorm
+	}
+	if norm != nil {
+		t, al = norm.normalize(s, seg, al)
 	}
 	if len(p.addedNorm.toks) == 0 {
-		s.pretokenize(t, al, base == 0)
+		s.pretokenize(t, al, first)
 		return
 	}
 	last := 0
@@ -117,7 +125,7 @@ func (s *state) segment(seg []byte, base int, honor bool, added func(id uint32, 
 			if al != nil {
 				sub = al[last : a+1]
 			}
-			s.pretokenize(t[last:a], sub, base == 0 && last == 0)
+			s.pretokenize(t[last:a], sub, first && last == 0)
 		}
 		if k < 0 {
 			return

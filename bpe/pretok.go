@@ -285,7 +285,7 @@ func compilePre(file, where string, raw json.RawMessage, out *[]stage, byteLevel
 		*out = append(*out, &scanStage{next: nextWordOrSymbols, name: "whitespace", drop: dropSpace})
 		return nil
 	case "WhitespaceSplit":
-		*out = append(*out, &charSplit{is: unicode.IsSpace, b: removed})
+		*out = append(*out, &charSplit{is: unicode.IsSpace, b: removed, white: true})
 		return nil
 	case "Digits":
 		b := contiguous
@@ -383,8 +383,9 @@ func (st *regexSplit) run(s *state, k int, p []byte, al []int32, first bool) {
 
 // charSplit cuts at every character for which is holds, each one a match.
 type charSplit struct {
-	is func(rune) bool
-	b  behavior
+	is    func(rune) bool
+	b     behavior
+	white bool // WhitespaceSplit
 }
 
 func (st *charSplit) run(s *state, k int, p []byte, al []int32, first bool) {

@@ -1,10 +1,8 @@
 package bpe
 
 import (
-	"io"
 	"runtime"
 	"strings"
-	"sync"
 	"sync/atomic"
 )
 
@@ -63,12 +61,13 @@ func (sp *spmModel) nextInputCut(text []byte, i int) int {
 	return len(text)
 }
 
-// lastInputCut returns the last place in text where it may be cut, or -1.
-func (sp *spmModel) lastInputCut(text []byte) int {
+// lastInputCut returns the last place in text at from or after where it
+// may be cut, or -1.
+func (sp *spmModel) lastInputCut(text []byte, from int) int {
 	if !sp.inputCut {
 		return -1
 	}
-	for j := len(text) - 2; j > 0; j-- {
+	for j := len(text) - 2; j > 0 && j >= from; j-- {
 		if text[j] == ' ' && sp.inputCutAt(text, j) {
 			return j
 		}
@@ -145,74 +144,6 @@ func spmAppendCut[T int | uint32](e *Encoder, dst []T, text []byte, size, worker
 	}
 	st.Specials += int(specials.Load())
 	return dst
-}
-
-// spmCountReader counts what r yields in stretches read about size bytes
-// at a time and counted on up to workers goroutines, holding about
-// 2*workers stretches at once.
-func (e *Encoder) spmCountReader(r io.Reader, size, workers int) (Stats, int64, error) {
-	sp := e.v.spm
-	var tokens, specials atomic.Int64
-	jobs := make(chan []byte)
-	free := make(chan []byte, 2*workers)
-	var wg sync.WaitGroup
-	for range workers {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			s := e.get()
-			defer e.put(s)
-			for text := range jobs {
-				var st Stats
-				e.spmCount(s, text, &st)
-				tokens.Add(int64(st.Tokens))
-				specials.Add(int64(st.Specials))
-				select {
-				case free <- text[:0]:
-				default:
-				}
-			}
-		}()
-	}
-	var n int64
-	var rerr error
-	buf := make([]byte, 0, 2*size)
-	for {
-		if cap(buf)-len(buf) < size/2 || len(buf) == cap(buf) {
-			nb := make([]byte, len(buf), 2*cap(buf)+1)
-			copy(nb, buf)
-			buf = nb
-		}
-		m, err := r.Read(buf[len(buf):cap(buf)])
-		buf = buf[:len(buf)+m]
-		n += int64(m)
-		if err != nil {
-			if err != io.EOF {
-				rerr = err
-			}
-			break
-		}
-		if len(buf) < size {
-			continue
-		}
-		cut := sp.lastInputCut(buf)
-		if cut < 0 {
-			continue // no place to cut yet: read on
-		}
-		var nb []byte
-		select {
-		case nb = <-free:
-		default:
-			nb = make([]byte, 0, 2*size)
-		}
-		nb = append(nb, buf[cut+1:]...)
-		jobs <- buf[:cut]
-		buf = nb
-	}
-	jobs <- buf
-	close(jobs)
-	wg.Wait()
-	return Stats{Tokens: int(tokens.Load()), Specials: int(specials.Load())}, n, rerr
 }
 
 // spmWorkers is how many goroutines encode one long text.

@@ -43,7 +43,7 @@ func checkCutEqualsWhole(t *testing.T, enc *Encoder, name string, text []byte, w
 		t.Fatalf("%s: count cut at every place of %q: %d, whole %d", name, text, st.Tokens, len(want))
 	}
 	for _, size := range []int{1, 7, 64} {
-		st, n, err := enc.spmCountReader(iotest.HalfReader(bytes.NewReader(text)), size, 3)
+		st, _, n, err := enc.countCut(iotest.HalfReader(bytes.NewReader(text)), size, 3, nil, nil, false)
 		if err != nil || n != int64(len(text)) || st.Tokens != len(want) {
 			t.Fatalf("%s: streamed count of %q (%d bytes at a time): %d tokens, %d bytes, %v; whole %d tokens",
 				name, text, size, st.Tokens, n, err, len(want))
