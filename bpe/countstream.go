@@ -58,6 +58,24 @@ func planFor(e *Encoder) *cutPlan {
 	}, free: true}
 }
 
+// FreeCuts reports whether the encoder knows places where a text may be
+// cut so that the stretches, each tokenized as a text of its own, give the
+// tokens of the whole (FreeCutAt): under the GPT-2 rule, and under a
+// bundle whose pipeline allows it and prepends nothing to a text (see
+// streamcut.go).
+func (e *Encoder) FreeCuts() bool { return e.plan != nil && e.plan.free }
+
+// FreeCutAt reports whether, under FreeCuts, t may be cut at i (0 < i <
+// len(t)). It looks at t[i-2:i+2] at most: a place one byte before the
+// end of t is never one.
+func (e *Encoder) FreeCutAt(t []byte, i int) bool {
+	if !e.FreeCuts() || i <= 0 || i+1 >= len(t) {
+		return false
+	}
+	end, _ := e.plan.last(t[:i+2], i)
+	return end == i
+}
+
 // countPart counts text into st with s: as a continuation when cont is
 // set (a stretch after the start of a longer text).
 func (e *Encoder) countPart(s *state, text []byte, cont bool, st *Stats) {
@@ -94,8 +112,9 @@ func (e *Encoder) countPart(s *state, text []byte, cont bool, st *Stats) {
 }
 
 // countLong counts a text of the plan's encoder on up to workers
-// goroutines, in stretches of about size bytes.
-func (e *Encoder) countLong(text []byte, size, workers int) Stats {
+// goroutines, in stretches of about size bytes; as a continuation when
+// cont is set.
+func (e *Encoder) countLong(text []byte, size, workers int, cont bool) Stats {
 	type stretch struct{ a, b int }
 	var parts []stretch
 	for i := 0; i < len(text); {
@@ -117,7 +136,7 @@ func (e *Encoder) countLong(text []byte, size, workers int) Stats {
 	var err error
 	e.inParallel(nil, len(parts), workers, func(k int, s *state) {
 		var st Stats
-		e.countPart(s, text[parts[k].a:parts[k].b], k > 0, &st)
+		e.countPart(s, text[parts[k].a:parts[k].b], cont || k > 0, &st)
 		tokens.Add(int64(st.Tokens))
 		specials.Add(int64(st.Specials))
 		if st.Err != nil {

@@ -223,7 +223,7 @@ func (e *Encoder) CountStats(text []byte) Stats {
 		return e.spmCountCut(text, spmStretch, spmWorkers())
 	}
 	if len(text) >= longText && e.plan != nil {
-		return e.countLong(text, streamChunk, runtime.GOMAXPROCS(0))
+		return e.countLong(text, streamChunk, runtime.GOMAXPROCS(0), false)
 	}
 	s := e.get()
 	defer e.put(s)

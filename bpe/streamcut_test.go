@@ -233,8 +233,23 @@ func checkStreamCut(t *testing.T, name string, e *Encoder, text []byte) {
 				name, size, st.Tokens, framed, n, err, len(whole), wantFramed)
 		}
 	}
-	if st := e.countLong(text, 3, 3); st.Tokens != len(whole) {
+	if st := e.countLong(text, 3, 3, false); st.Tokens != len(whole) {
 		t.Fatalf("%s: counted in stretches: %d tokens, whole %d", name, st.Tokens, len(whole))
+	}
+	if got, err := e.Interior(text).Count(before, after); err != nil || got != wantFramed {
+		t.Fatalf("%s: framed from the interior: %d tokens, %v; joined %d", name, got, err, wantFramed)
+	}
+	if e.FreeCuts() {
+		var free []int
+		for i := range text {
+			if e.FreeCutAt(text, i) {
+				free = append(free, i)
+			}
+		}
+		want := slices.DeleteFunc(cutsOf(e, text), func(i int) bool { return i+1 >= len(text) })
+		if !slices.Equal(free, want) && !(len(free) == 0 && len(want) == 0) {
+			t.Fatalf("%s: FreeCutAt finds %v in %q, the plan %v", name, free, text, want)
+		}
 	}
 	if e.plan.free {
 		var got []uint32
