@@ -12,6 +12,7 @@ import (
 	"testing"
 	"testing/iotest"
 
+	"morsel/bpe"
 	"morsel/corpus"
 	"morsel/report/internal/reporttest"
 	"morsel/report/render"
@@ -44,10 +45,22 @@ func windowText(t *testing.T) []byte {
 // as a stream, in windows far smaller than it, and wants the same
 // document figures and the same report (words, counts, documents, splits).
 func TestScanInWindowsGivesTheWholeTextsReport(t *testing.T) {
+	t.Run("gpt2", func(t *testing.T) { checkWindowsGiveWhole(t, reporttest.Encoder(t)) })
+	// A bundle whose texts may be cut (bpe.Encoder.FreeCuts) is scanned in
+	// windows too, cut at its own places.
+	t.Run("qwen3", func(t *testing.T) {
+		enc := reporttest.BundleEncoder(t, "qwen3")
+		if !enc.FreeCuts() {
+			t.Fatal("qwen3 has no free cuts: the windows would not be tested")
+		}
+		checkWindowsGiveWhole(t, enc)
+	})
+}
+
+func checkWindowsGiveWhole(t *testing.T, enc *bpe.Encoder) {
 	text := windowText(t)
 	defer func(w int) { scanWindow = w }(scanWindow)
 	scanWindow = 4 << 10
-	enc := reporttest.Encoder(t)
 	run := func(stream bool) ([]byte, *DocWords) {
 		fr := NewFragmenter(enc, nil)
 		var last *DocWords

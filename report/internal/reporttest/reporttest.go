@@ -5,6 +5,8 @@ package reporttest
 
 import (
 	"bytes"
+	"compress/gzip"
+	"io"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -189,6 +191,34 @@ func CheckPage(t *testing.T, page []byte, sections []string, charts int) *html.N
 func Encoder(t testing.TB) *bpe.Encoder {
 	t.Helper()
 	enc, err := bpe.NewEncoder(bpe.Default(), bpe.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return enc
+}
+
+// BundleEncoder returns an encoder for one of the real bundles kept in
+// testdata/vocab (qwen3, metaspace-32k), parsed from its gzipped file.
+func BundleEncoder(t testing.TB, name string) *bpe.Encoder {
+	t.Helper()
+	path := Testdata(filepath.Join("vocab", name, "tokenizer.json.gz"))
+	raw, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	zr, err := gzip.NewReader(bytes.NewReader(raw))
+	if err != nil {
+		t.Fatal(err)
+	}
+	data, err := io.ReadAll(zr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	v, err := bpe.ParseBundle(path, data, "", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	enc, err := bpe.NewEncoder(v, bpe.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
