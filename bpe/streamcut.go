@@ -18,7 +18,7 @@ import (
 // A place is allowed when every part of the pipeline leaves it alone:
 //
 //   - no added token or special string holds the line break (or the
-//     space), so none spans the cut; none takes white space on the side
+//     space, or what the normalizers make of them), so none spans the cut; none takes white space on the side
 //     that a cut would take from it (lstrip before a line-break cut,
 //     rstrip before a space cut);
 //   - the normalizers act on each character alone and keep ASCII ones as
@@ -114,6 +114,18 @@ func bundleCuts(e *Encoder) *rawCuts {
 	if !normCutSafe(p.norm, &spaceKept, &prepends) {
 		return nil
 	}
+	// Tokens matched after normalization meet the line break and the space
+	// as the normalizers leave them (a space replaced by a marker, say).
+	s := e.get()
+	for k, m := range mid {
+		nm := normCont(s, p, []byte(m))
+		for _, t := range p.addedNorm.toks {
+			if bytes.Contains(t.content, nm) {
+				allow[k] = false
+			}
+		}
+	}
+	e.put(s)
 	rc := &rawCuts{free: !prepends}
 	if len(p.pre) == 0 {
 		if p.cuts == nil {

@@ -53,6 +53,7 @@ var cutVariants = []cutVariant{
 	{name: "meta-always", base: "metaspace-32k", norm: "null", pre: metaPre("always", true), kinds: "space"},
 	{name: "meta-never-whole", base: "metaspace-32k", norm: "null", pre: metaPre("never", false), kinds: ""},
 	{name: "meta-lower", base: "metaspace-32k", norm: seqNorm(map[string]any{"type": "Prepend", "prepend": "\u2581"}, map[string]any{"type": "Lowercase"}, map[string]any{"type": "NFD"}, map[string]any{"type": "Replace", "pattern": map[string]any{"String": " "}, "content": "\u2581"}), kinds: "newline space"},
+	{name: "meta-added-marker", base: "metaspace-32k", added: []map[string]any{{"content": "x\u2581y"}}, kinds: "newline"},
 	{name: "meta-replace-letter", base: "metaspace-32k", norm: seqNorm(map[string]any{"type": "Replace", "pattern": map[string]any{"String": "e"}, "content": "E"}), kinds: ""},
 }
 
@@ -275,6 +276,7 @@ var cutTexts = []string{
 	"  leading\n\n\nand trailing  \n",
 	"x\n" + strings.Repeat("word ", 40) + "\n" + strings.Repeat("9", 20) + " end",
 	"<|endoftext|> a\nb <s> c\n</s>d\u2581e \u2581f",
+	"ax y\nbx yx\u2581y x y",
 }
 
 func TestStreamCutEqualsWhole(t *testing.T) {
