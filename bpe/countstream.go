@@ -22,6 +22,10 @@ type cutPlan struct {
 	// before it is buf[:end] and the rest starts at next; end is 0 when
 	// there is none.
 	last func(buf []byte, from int) (end, next int)
+	// at, for a free plan, reports whether t may be cut at i (0 < i <
+	// len(t)-1) by the bytes t[i-2:i+2] alone: the cuts that last finds
+	// there, or fewer (FreeCutAt).
+	at func(t []byte, i int) bool
 	// free says that the stretches also tokenize as texts of their own,
 	// and that the cut drops nothing (Windows).
 	free bool
@@ -48,6 +52,14 @@ func planFor(e *Encoder) *cutPlan {
 		return &cutPlan{last: func(buf []byte, from int) (int, int) {
 			i := rc.last(buf, from)
 			return i, i
+		}, at: func(t []byte, i int) bool {
+			switch {
+			case t[i] == ' ':
+				return rc.allowsASCII(cutSpace, t[i-1], t[i+1])
+			case t[i-1] == '\n' && i >= 2:
+				return rc.allowsASCII(cutNewline, t[i-2], t[i])
+			}
+			return false
 		}, free: rc.free}
 	case e.specialsHoldSpace():
 		return nil
@@ -55,6 +67,8 @@ func planFor(e *Encoder) *cutPlan {
 	return &cutPlan{last: func(buf []byte, from int) (int, int) {
 		i := safeCutFrom(buf, from)
 		return i, i
+	}, at: func(t []byte, i int) bool {
+		return safeCutFrom(t[:i+1], i) == i
 	}, free: true}
 }
 
@@ -66,14 +80,14 @@ func planFor(e *Encoder) *cutPlan {
 func (e *Encoder) FreeCuts() bool { return e.plan != nil && e.plan.free }
 
 // FreeCutAt reports whether, under FreeCuts, t may be cut at i (0 < i <
-// len(t)). It looks at t[i-2:i+2] at most: a place one byte before the
-// end of t is never one.
+// len(t)). It looks at t[i-2:i+2] at most, so it may leave out places
+// that the streamed count uses (a bundle's cut beside a letter beyond
+// ASCII); a place one byte before the end of t is never one.
 func (e *Encoder) FreeCutAt(t []byte, i int) bool {
 	if !e.FreeCuts() || i <= 0 || i+1 >= len(t) {
 		return false
 	}
-	end, _ := e.plan.last(t[:i+2], i)
-	return end == i
+	return e.plan.at(t, i)
 }
 
 // countPart counts text into st with s: as a continuation when cont is

@@ -2,18 +2,22 @@ package bpe
 
 import (
 	"bytes"
+	"slices"
 	"unicode/utf8"
 )
 
 // Where a bundle's raw text may be cut, so that the stretches, run through
 // the pipeline apart (all but the first as continuations: see state.cont),
-// give the ids of the whole. Two places are tried, both between ASCII
-// characters:
+// give the ids of the whole. Two places are tried:
 //
 //   - after a line break that follows a character other than white space
 //     and precedes a letter ("x\n|y"): the cut of cutNewline;
 //   - before a space that follows a letter or digit and precedes a letter
 //     ("x| y"): the cut of cutSpace.
+//
+// The letters are ASCII ones and those of wideLetter (basic Greek and
+// Cyrillic, kana, Han, Hangul); the character before a line break is a
+// visible ASCII one, a wideLetter, or CJK or full-width punctuation.
 //
 // A place is allowed when every part of the pipeline leaves it alone:
 //
@@ -45,11 +49,14 @@ const (
 	cutSpace
 )
 
-// rawCuts is a bundle's rule: ok[kind][x<<7|y] says whether the cut of
-// that kind is allowed between the ASCII characters x and y around it (x
-// before the line break, or before the space; y after it).
+// rawCuts is a bundle's rule, for each kind of cut: x says which ASCII
+// characters may stand before it (before the line break, or before the
+// space), y which after it; xWide and yWide whether the characters of
+// wideLetter (and, before a line break, wideGraphic) may too. A cut is
+// allowed where both sides are.
 type rawCuts struct {
-	ok [2][1 << 14]bool
+	x, y         [2][utf8.RuneSelf]bool
+	xWide, yWide [2]bool
 	// free says that a continuation runs as a text of its own would (no
 	// Prepend, no Metaspace prepend for the first piece only), so that
 	// callers that tokenize the stretches as texts get the ids too.
@@ -59,19 +66,68 @@ type rawCuts struct {
 // last returns the last place in buf at from or after where it may be cut,
 // or 0 when there is none.
 func (rc *rawCuts) last(buf []byte, from int) int {
-	for i := len(buf) - 2; i >= max(from, 2); i-- {
+	for i := len(buf) - 2; i >= max(from, 1); i-- {
 		switch b := buf[i]; {
 		case b == ' ':
-			if x, y := buf[i-1], buf[i+1]; x|y < utf8.RuneSelf && rc.ok[cutSpace][int(x)<<7|int(y)] {
+			if rc.allows(cutSpace, buf[:i], buf[i+1:]) {
 				return i
 			}
-		case buf[i-1] == '\n':
-			if x := buf[i-2]; x|b < utf8.RuneSelf && rc.ok[cutNewline][int(x)<<7|int(b)] {
+		case buf[i-1] == '\n' && i >= 2:
+			if rc.allows(cutNewline, buf[:i-1], buf[i:]) {
 				return i
 			}
 		}
 	}
 	return 0
+}
+
+// allows reports whether a cut of the kind may fall between the last
+// character of left and the first of right (less the line break or the
+// space between them).
+func (rc *rawCuts) allows(kind int, left, right []byte) bool {
+	if x := left[len(left)-1]; x < utf8.RuneSelf {
+		if !rc.x[kind][x] {
+			return false
+		}
+	} else if r, _ := utf8.DecodeLastRune(left); !rc.xWide[kind] || !(wideLetter(r) || (kind == cutNewline && wideGraphic(r))) {
+		return false
+	}
+	if y := right[0]; y < utf8.RuneSelf {
+		return rc.y[kind][y]
+	}
+	r, _ := utf8.DecodeRune(right)
+	return rc.yWide[kind] && wideLetter(r)
+}
+
+// allowsASCII is allows for ASCII x and y alone (Encoder.FreeCutAt).
+func (rc *rawCuts) allowsASCII(kind int, x, y byte) bool {
+	return x < utf8.RuneSelf && y < utf8.RuneSelf && rc.x[kind][x] && rc.y[kind][y]
+}
+
+// wideLetter holds for the letters beyond ASCII that the rule allows on
+// either side of a cut: the basic Greek and Cyrillic letters, kana, the
+// unified Han ideographs and the Hangul syllables. Each is a starter
+// (nothing before it composes with it), and its normalized forms start and
+// end with a letter or a mark, never white space.
+func wideLetter(r rune) bool {
+	switch {
+	case 0x391 <= r && r <= 0x3a9 && r != 0x3a2, 0x3b1 <= r && r <= 0x3c9: // Greek
+		return true
+	case 0x410 <= r && r <= 0x44f: // Cyrillic
+		return true
+	case 0x3041 <= r && r <= 0x3096, 0x30a1 <= r && r <= 0x30fa: // hiragana, katakana
+		return true
+	case 0x4e00 <= r && r <= 0x9fff, 0xac00 <= r && r <= 0xd7a3: // Han, Hangul
+		return true
+	}
+	return false
+}
+
+// wideGraphic holds for the other characters beyond ASCII that may stand
+// before a line-break cut: CJK punctuation (not the ideographic space) and
+// the full-width forms of ASCII, none of them white space in any form.
+func wideGraphic(r rune) bool {
+	return 0x3001 <= r && r <= 0x303f || 0xff01 <= r && r <= 0xff5e
 }
 
 // isASCIIDigit and isGraphic are, with isASCIILetter, the ASCII classes
@@ -142,22 +198,22 @@ func bundleCuts(e *Encoder) *rawCuts {
 			allow[k] = false
 		}
 	}
-	for x := range utf8.RuneSelf {
-		for y := range utf8.RuneSelf {
-			xb, yb := byte(x), byte(y)
-			rc.ok[cutNewline][x<<7|y] = allow[cutNewline] && isGraphic(xb) && isASCIILetter(yb)
-			rc.ok[cutSpace][x<<7|y] = allow[cutSpace] && (isASCIILetter(xb) || isASCIIDigit(xb)) && isASCIILetter(yb)
+	for c := range utf8.RuneSelf {
+		b := byte(c)
+		rc.x[cutNewline][c] = allow[cutNewline] && isGraphic(b)
+		rc.x[cutSpace][c] = allow[cutSpace] && (isASCIILetter(b) || isASCIIDigit(b))
+		for k := range allow {
+			rc.y[k][c] = allow[k] && isASCIILetter(b)
 		}
 	}
+	rc.xWide, rc.yWide = allow, allow
 	return rc.orNil()
 }
 
 func (rc *rawCuts) orNil() *rawCuts {
-	for k := range rc.ok {
-		for _, ok := range rc.ok[k] {
-			if ok {
-				return rc
-			}
+	for k := range rc.x {
+		if slices.Contains(rc.x[k][:], true) && slices.Contains(rc.y[k][:], true) {
+			return rc
 		}
 	}
 	return nil
@@ -245,45 +301,53 @@ func stagesCut(pre []stage, kind int, free *bool) bool {
 }
 
 // modelCuts fills rc, for a bundle with no pre-tokenizer, from the model's
-// cut table: a cut of each kind between x and y is allowed where the two
-// sides' normalized forms may be cut between them.
+// cut table: the normalizers act on each character alone, so the
+// normalized text is cut between what the characters on the two sides
+// become, and the table decides by the bytes there. A line-break cut is
+// between the line break and what follows it, whatever came before; a
+// space cut between what comes before it and the space's form, whatever
+// follows.
 func modelCuts(e *Encoder, rc *rawCuts, allow [2]bool) {
 	p := e.v.pipe
 	s := e.get()
 	defer e.put(s)
-	sample := make([]byte, 0, 4)
-	for k := range allow {
-		if !allow[k] {
-			continue
+	// at reports whether the table cuts the normalized form of left+right
+	// where left's form ends.
+	at := func(left, right []byte) bool {
+		nl := append([]byte(nil), normCont(s, p, left)...)
+		nw := normCont(s, p, append(append([]byte(nil), left...), right...))
+		return len(nl) > 0 && len(nw) > len(nl) && bytes.HasPrefix(nw, nl) && p.cuts.next(nw, len(nl)-1) == len(nl)
+	}
+	for c := range utf8.RuneSelf {
+		b := byte(c)
+		if allow[cutNewline] && isASCIILetter(b) && at([]byte("a\n"), []byte{b}) {
+			rc.y[cutNewline][c] = true
 		}
-		for x := range utf8.RuneSelf {
-			for y := range utf8.RuneSelf {
-				xb, yb := byte(x), byte(y)
-				if !isASCIILetter(yb) || (k == cutNewline && !isGraphic(xb)) || (k == cutSpace && !isASCIILetter(xb) && !isASCIIDigit(xb)) {
-					continue
-				}
-				// The left side, normalized as a continuation (no
-				// Prepend), and the whole: the cut is where the left
-				// side's form ends, if the normalizers keep it a prefix.
-				left := sample[:0]
-				left = append(left, xb)
-				if k == cutNewline {
-					left = append(left, '\n')
-				}
-				whole := append(append([]byte(nil), left...), func() []byte {
-					if k == cutSpace {
-						return []byte{' ', yb}
-					}
-					return []byte{yb}
-				}()...)
-				nl := append([]byte(nil), normCont(s, p, left)...)
-				nw := normCont(s, p, whole)
-				if len(nl) == 0 || !bytes.HasPrefix(nw, nl) || len(nw) == len(nl) {
-					continue
-				}
-				rc.ok[k][x<<7|y] = p.cuts.next(nw, len(nl)-1) == len(nl)
-			}
+		if allow[cutSpace] && (isASCIILetter(b) || isASCIIDigit(b)) && at([]byte{b}, []byte(" a")) {
+			rc.x[cutSpace][c] = true
 		}
+	}
+	if allow[cutNewline] {
+		for c := range utf8.RuneSelf {
+			rc.x[cutNewline][c] = isGraphic(byte(c))
+		}
+		rc.xWide[cutNewline] = true
+	}
+	if allow[cutSpace] {
+		for c := range utf8.RuneSelf {
+			rc.y[cutSpace][c] = isASCIILetter(byte(c))
+		}
+		rc.yWide[cutSpace] = true
+		// A character beyond ASCII ends, normalized, in a continuation
+		// byte: the table must cut before the space's form after each.
+		sp := normCont(s, p, []byte(" "))
+		wide := len(sp) > 0
+		for cb := 0x80; cb < 0xc0 && wide; cb++ {
+			t := append([]byte{0xd0, byte(cb)}, sp...)
+			t = append(t, 'a')
+			wide = p.cuts.next(t, 1) == 2
+		}
+		rc.xWide[cutSpace] = wide
 	}
 }
 
