@@ -3,6 +3,8 @@ package bpe
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
+	"io"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -365,4 +367,21 @@ func FuzzStreamCutEqualsWhole(f *testing.F) {
 			checkStreamCut(t, name, encs[i], []byte(s))
 		}
 	})
+}
+
+// A stream that fails part way gives its error, with the bytes read
+// before it, however it was being cut.
+func TestCountCutReadError(t *testing.T) {
+	text := []byte(strings.Repeat("The valve held.\nIt was checked again ", 2000))
+	for _, name := range []string{"gpt2", "qwen3", "metaspace-32k", "words"} {
+		e := cutEncoder(t, name)
+		for _, size := range []int{64, 4096, 1 << 20} {
+			r := io.MultiReader(bytes.NewReader(text), iotest.ErrReader(errors.New("disk gone")))
+			st, framed, n, err := e.countCut(r, size, 2, []byte("a"), []byte("b"), true)
+			if err == nil || err.Error() != "disk gone" || n != int64(len(text)) || framed != 0 {
+				t.Fatalf("%s, %d-byte stretches: %d tokens, %d framed, %d bytes, %v; want the read error after %d bytes and no framed count",
+					name, size, st.Tokens, framed, n, err, len(text))
+			}
+		}
+	}
 }
