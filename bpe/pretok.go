@@ -191,6 +191,7 @@ func compilePreTokenizer(file string, raw json.RawMessage) (stages []stage, byte
 		return nil, false, nil
 	}
 	err = compilePre(file, "pre_tokenizer", raw, &stages, &byteLevel)
+	markChains(stages)
 	return stages, byteLevel, err
 }
 
@@ -325,9 +326,16 @@ type scanStage struct {
 	next func(t []byte, i int) int
 	name string
 	drop func(t []byte) bool
+	// chain: this stage and the next two are the CJK chain's three
+	// scanners (scan_cjk.go), which runChain runs in one loop.
+	chain bool
 }
 
 func (st *scanStage) run(s *state, k int, p []byte, al []int32, first bool) {
+	if st.chain && k+3 == len(s.stages) && al == nil {
+		s.runChain(p)
+		return
+	}
 	if k+1 == len(s.stages) && al == nil && st.drop == nil {
 		// The common case: straight to the model.
 		for i := 0; i < len(p); {

@@ -193,3 +193,69 @@ func nextLettersMarks(t []byte, i int) int {
 	// white-space character is a letter, mark, punctuation or symbol).
 	return spaceRunEnd(t, i, n)
 }
+
+// markChains marks the stages that start the CJK chain: Isolated Splits by
+// NumberGroupsPattern, KanaHanPattern and LettersMarksPattern in a row.
+func markChains(stages []stage) {
+	name := func(st stage) string {
+		if sc, ok := st.(*scanStage); ok && sc.drop == nil {
+			return sc.name
+		}
+		return ""
+	}
+	for k := 0; k+2 < len(stages); k++ {
+		if name(stages[k]) == "number-groups" && name(stages[k+1]) == "kana-han" && name(stages[k+2]) == "letters-marks" {
+			stages[k].(*scanStage).chain = true
+		}
+	}
+}
+
+// runChain gives the pre-tokens of p under the CJK chain, as its three
+// stages would, to s.sink: a group of up to three numbers, a run of Han
+// and kana, or a stretch with neither, each then cut by the letters-marks
+// scanner. A run of Han and kana holds no number, so it lies inside one
+// piece of the first stage; the stretch between them is found in one scan
+// rather than one a stage.
+func (s *state) runChain(p []byte) {
+	for i := 0; i < len(p); {
+		var j int
+		switch c, _ := classAt(p, i); {
+		case c == clsNumber:
+			j = nextNumberGroups(p, i)
+		case isKanaHan(p, i):
+			j = nextKanaHan(p, i)
+		default:
+			j = plainEnd(p, i)
+		}
+		for a := i; a < j; {
+			b := i + nextLettersMarks(p[i:j], a-i)
+			s.sink(p[a:b], nil)
+			a = b
+		}
+		i = j
+	}
+}
+
+// plainEnd returns the end of the stretch at t[i] that holds no number
+// and no Han or kana character.
+func plainEnd(t []byte, i int) int {
+	for i < len(t) {
+		b := t[i]
+		if b < utf8.RuneSelf {
+			if asciiClass[b] == clsNumber {
+				return i
+			}
+			i++
+			continue
+		}
+		if isKanaHan(t, i) {
+			return i
+		}
+		c, n := classOfRune(t, i)
+		if c == clsNumber {
+			return i
+		}
+		i += n
+	}
+	return i
+}

@@ -2,9 +2,11 @@ package bpe
 
 import (
 	"encoding/json"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"slices"
+	"strings"
 	"testing"
 )
 
@@ -68,4 +70,38 @@ func TestSequenceScannersMatchRegexp(t *testing.T) {
 			t.Errorf("%.40q: hand scanners give %d ids, regexp2 %d", s, len(got), len(want))
 		}
 	}
+}
+
+// The chain's three stages run in one loop (runChain) when a text is
+// counted or encoded; the stages one by one, as Split runs them, give
+// the same ids.
+func FuzzCJKChainOneLoop(f *testing.F) {
+	v := sequenceBundle(f, false)
+	enc, err := NewEncoder(v, Options{})
+	if err != nil {
+		f.Fatal(err)
+	}
+	first, ok := v.pipe.pre[0].(*scanStage)
+	if !ok || !first.chain {
+		f.Fatal("the chain's first stage is not marked to run in one loop")
+	}
+	pieces := []string{"a", "Zx", "7", "٣", "²", "Ⅻ", "一二", "中文", "かな", "カナ", "・", "゛", "\u3099", "ー", "〇",
+		" ", "\n", "\r\n", "\t", ".", "'s", "!?", "é", "e\u0301", "한", "ж", "\xff", "\xe3\x81", "😀", "_", "$5"}
+	r := rand.New(rand.NewPCG(3, 5))
+	for range 50 {
+		var b strings.Builder
+		for range 60 {
+			b.WriteString(pieces[r.IntN(len(pieces))])
+		}
+		f.Add(b.String())
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		fused := enc.Encode([]byte(s))
+		first.chain = false
+		staged := enc.Encode([]byte(s))
+		first.chain = true
+		if !eqInts(fused, staged) {
+			t.Fatalf("%q: ids %v in one loop, %v stage by stage", s, fused, staged)
+		}
+	})
 }
