@@ -54,7 +54,11 @@ existing FILE is replaced only with --force. A file the run writes is never read
 
 A document over 32 MiB, and standard input, is cut as it is read, in a window that holds
 the next chunk and what its choice looks at, so memory stays bounded; the plan is the one
-the whole text gives.
+the whole text gives. That holds under the GPT-2 rule and under a bundle whose pipeline
+lets a text be cut into stretches that tokenize apart (qwen3's does, after a line break
+or before a space between words); under one that does not (a Metaspace that prepends to
+every text, a SentencePiece model, --split-pattern, honoured special tokens that hold
+white space) the document is read whole first.
 
 Exit status: 1 when an input could not be read, else 3 when a document cannot be cut
 because the budget cannot hold the frame and one character, else 0.`,

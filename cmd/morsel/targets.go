@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"errors"
 	"fmt"
 	"io/fs"
@@ -231,23 +230,12 @@ func (sh *shared) targetFrame(cmd string, t *request.Target) (*request.Frame, er
 	return f, nil
 }
 
-// genericSplit reports whether the planner must count every chunk whole:
-// under a split pattern of the user's, or special tokens honoured whose
-// text holds white space, the GPT-2 rule's context-free pre-token edges do
-// not hold.
+// genericSplit reports whether the planner must hold a document whole and
+// count every chunk whole: the encoder knows no free cuts (a split pattern
+// of the user's, special tokens honoured whose text holds white space, a
+// bundle whose pipeline joins text across every place, SentencePiece).
 func (sh *shared) genericSplit(enc *bpe.Encoder) bool {
-	if sh.splitPattern != "" || enc.Vocab().FromBundle() {
-		return true
-	}
-	if sh.specials != "honor" {
-		return false
-	}
-	for _, sp := range enc.Vocab().Specials() {
-		if bytes.ContainsAny([]byte(sp.Text), " \t\n\r\v\f") {
-			return true
-		}
-	}
-	return false
+	return sh.splitPattern != "" || !enc.FreeCuts()
 }
 
 // templateTokens returns the number of tokens that the vocabulary's

@@ -7,7 +7,6 @@ import (
 	"io"
 	"math"
 	"sort"
-	"unicode"
 	"unicode/utf8"
 
 	"morsel/bpe"
@@ -50,24 +49,38 @@ type Chunk struct {
 // budget. Its fields are set before the first Cut and not changed after.
 //
 // Every chunk's count is exact: the framed chunk's own tokens, not a slice
-// of the whole document's. With the GPT-2 split rule (Generic false) the
-// count is taken piecewise: a character other than white space followed by
-// an ASCII white-space byte is a pre-token edge whatever surrounds it, so
-// the tokens between the first and the last such edge of a chunk are those
-// of the whole document there, and only the two ends are encoded afresh
-// together with the frame. With another split rule (Generic true) every
-// framed chunk is counted whole.
+// of the whole document's. Where the encoder has free cuts (FreeCuts: the
+// GPT-2 rule, and most bundles) and Generic is false, the count is taken
+// piecewise: the text cut at such places tokenizes stretch by stretch, so
+// the tokens between the first and the last of them inside a chunk are
+// those of the whole document there, and only the two ends are encoded
+// afresh together with the frame. Otherwise (Generic true, or no free
+// cuts) every framed chunk is counted whole.
+//
+// How the document is held and counted does not change the plan under a
+// bundle: the estimates the choice of each end rests on are those of the
+// whole text's ids (marks at every token's end), whether the text is
+// encoded whole or stretch by stretch.
 type Rationer struct {
 	Enc      *bpe.Encoder
 	Frame    *request.Frame
 	Budget   int  // input tokens a request may take, frame and overhead included
 	Overlap  int  // tokens of the previous chunk's tail to repeat at the start of the next
 	Overhead int  // fixed tokens added to every request
-	Generic  bool // the encoder's split rule is not the GPT-2 rule
+	Generic  bool // count every framed chunk whole, and hold the document whole
 }
 
-// blockMin is the fewest bytes between two marks of the document's count.
-const blockMin = 128
+// whole reports whether the document is encoded whole and every framed
+// chunk counted whole.
+func (r *Rationer) whole() bool { return r.Generic || !r.Enc.FreeCuts() }
+
+// blockMin is the fewest bytes between two marks of the document's count
+// under the GPT-2 rule; fineBlock between two stretches of a bundle's
+// count, whose marks fall at every token's end whatever the stretches.
+const (
+	blockMin  = 128
+	fineBlock = 1024
+)
 
 // Cut splits text, the document named source (record, for reports), and
 // returns its chunks in order with the document's own token count. With
@@ -86,12 +99,12 @@ func (r *Rationer) Cut(source string, record int, text []byte, keepText bool) ([
 
 // CutReader is Cut for a text read from rd, which it reads to the end:
 // each chunk goes to fn once it is decided, and the document's tokens and
-// bytes are returned. With the GPT-2 split rule it holds only a window of
-// the text (see readAhead); with another rule it reads the text whole
-// first. The chunks are those Cut gives for the whole text.
+// bytes are returned. Where the encoder has free cuts it holds only a
+// window of the text (see readAhead); otherwise, or with Generic, it reads
+// the text whole first. The chunks are those Cut gives for the whole text.
 func (r *Rationer) CutReader(source string, record int, rd io.Reader, keepText bool, fn func(Chunk) error) (tokens, bytes int64, err error) {
 	name := report.Where(source, record)
-	if r.Generic {
+	if r.whole() {
 		text, err := io.ReadAll(rd)
 		if err != nil {
 			return 0, int64(len(text)), err
@@ -157,6 +170,13 @@ func (r *Rationer) cut(c *cutter, source string, record int, keepText bool, fn f
 // document: it reaches as far ahead as the next chunk's choice may look
 // (ahead), and what lies before the current chunk is dropped (slide).
 // Offsets inside the cutter are offsets in text.
+//
+// Under the GPT-2 rule the marks fall at free cuts (Encoder.FreeCutAt) at
+// least blockMin bytes apart, and the count is exact at each. Under a
+// bundle (fine) the text is encoded a stretch between free cuts at a time
+// and the marks fall at every token's end, placed as encodeWhole places
+// them; the stretches' ends, where the count is exact, are kept apart in
+// cuts.
 type cutter struct {
 	r    *Rationer
 	text []byte
@@ -169,8 +189,21 @@ type cutter struct {
 	marks   []uint32
 	cums    []uint32
 	cumBase int64
-	// scanned is where the search for the next mark goes on, while the
-	// window is read further: no place before it is a safe cut.
+	// fine marks every token's end; cuts are then the ends of the
+	// stretches counted so far and cutCums the tokens before each, less
+	// cumBase (without fine the marks are the cuts). The last cut is where
+	// the count has reached. pos is the end of the tokens counted so far,
+	// as encodeWhole sums their bytes.
+	fine    bool
+	cuts    []uint32
+	cutCums []uint32
+	pos     int
+	pend    []pending
+	ids     []int
+	// block is the fewest bytes between two cuts.
+	block int
+	// scanned is where the search for the next cut goes on, while the
+	// window is read further: no place before it is a free cut.
 	scanned int
 	// slideAt is the least the window moves by, so that dropping the text
 	// behind the current chunk copies each byte a few times at most.
@@ -205,15 +238,22 @@ func (c *cutter) count(t []byte) int {
 // newCutter starts the cut of a document: text when rd is nil, else what
 // rd yields.
 func (r *Rationer) newCutter(name string, text []byte, rd io.Reader) *cutter {
-	c := &cutter{r: r, text: text, rd: rd, generic: r.Generic, slideAt: slideMin}
+	c := &cutter{r: r, text: text, rd: rd, generic: r.whole(), slideAt: slideMin, block: blockMin}
+	c.fine = !c.generic && r.Enc.Vocab().FromBundle()
+	if c.fine {
+		c.block = fineBlock
+	}
 	c.before, c.after = r.Frame.Parts(name)
 	c.preCut, c.postCut = 0, len(c.after)
 	if !c.generic {
-		if k := lastSafeCut(c.before, 0, len(c.before)); k > 0 {
+		// A cut of the frame holds in the framed chunk when every byte it
+		// looks at is the frame's: before starts the request, and a cut of
+		// after looks at most utf8.UTFMax bytes back.
+		if k := c.lastCut(c.before, 0, len(c.before)); k > 0 {
 			c.preCut = k
 			c.preTok = c.count(c.before[:k])
 		}
-		if k := firstSafeCut(c.after, 0, len(c.after)); k > 0 {
+		if k := c.firstCut(c.after, utf8.UTFMax, len(c.after)); k > 0 {
 			c.postCut = k
 			c.postTok = c.count(c.after[k:])
 		}
@@ -224,6 +264,10 @@ func (r *Rationer) newCutter(name string, text []byte, rd io.Reader) *cutter {
 	} else {
 		c.marks = make([]uint32, 1, 64)
 		c.cums = make([]uint32, 1, 64)
+		if c.fine {
+			c.cuts = make([]uint32, 1, 64)
+			c.cutCums = make([]uint32, 1, 64)
+		}
 		if rd == nil {
 			// The whole text is here: count it at once, and never move it.
 			c.countTo(math.MaxInt, len(text))
@@ -234,8 +278,12 @@ func (r *Rationer) newCutter(name string, text []byte, rd io.Reader) *cutter {
 }
 
 // encodeWhole encodes the whole document at once and marks the end of
-// every token: the counts between marks are estimates for the search only,
-// as a split rule other than GPT-2's has no context-free edges.
+// every token: the counts between marks are estimates for the search only.
+// A token's end is where its bytes, summed from the text's start, reach
+// (the text's end at most): a normalizer that changes the text's length
+// moves the later marks off the text's own offsets. The last mark is the
+// text's end, with all the tokens before it. countStretch places the marks
+// of a fine cutter the same way.
 func (c *cutter) encodeWhole() {
 	v := c.r.Enc.Vocab()
 	ids, st := c.r.Enc.EncodeStats(nil, c.text)
@@ -256,10 +304,7 @@ func (c *cutter) encodeWhole() {
 			c.cums = append(c.cums, uint32(i+1))
 		}
 	}
-	if int(c.marks[len(c.marks)-1]) != len(c.text) {
-		c.marks = append(c.marks, uint32(len(c.text)))
-		c.cums = append(c.cums, uint32(len(ids)))
-	}
+	c.markEnd(len(c.text), uint32(len(ids)))
 	c.genTotal = len(ids)
 }
 
@@ -484,10 +529,11 @@ func (c *cutter) overlapStart(s, e int) int {
 		return e
 	}
 	// Split from an edge that holds in any context, so the pre-tokens are
-	// those of the whole document.
+	// those of the whole document; a fine cutter splits from s, as the
+	// whole-text path does.
 	y := s
-	if !c.generic {
-		if k := lastSafeCut(c.text, s+1, x0); k > 0 {
+	if !c.generic && !c.fine {
+		if k := c.lastCut(c.text, s+1, x0); k > 0 {
 			y = k
 		}
 	}
@@ -506,66 +552,70 @@ func (c *cutter) overlapStart(s, e int) int {
 func (c *cutter) framed(s, e int) int {
 	t := c.text[s:e]
 	if !c.generic {
-		// The first mark after s and the last before e.
-		ia := sort.Search(len(c.marks), func(i int) bool { return int(c.marks[i]) > s })
-		ib := sort.Search(len(c.marks), func(i int) bool { return int(c.marks[i]) >= e }) - 1
+		// The first cut and the last inside the chunk whose bytes looked
+		// at (FreeCutAt: t[i-2:i+2], and under the GPT-2 rule the
+		// character before i) are all the chunk's, so that it holds in
+		// the framed chunk too.
+		xs, ks := c.exact()
+		ia := sort.Search(len(xs), func(i int) bool { return int(xs[i]) >= s+utf8.UTFMax })
+		ib := sort.Search(len(xs), func(i int) bool { return int(xs[i]) > e-2 }) - 1
 		if ia < ib {
-			a, b := int(c.marks[ia])-s, int(c.marks[ib])-s
+			a, b := int(xs[ia])-s, int(xs[ib])-s
 			c.buf = append(append(c.buf[:0], c.before[c.preCut:]...), t[:a]...)
 			head := c.preTok + c.count(c.buf)
 			c.buf = append(append(c.buf[:0], t[b:]...), c.after[:c.postCut]...)
 			tail := c.count(c.buf) + c.postTok
-			return head + int(c.cums[ib]-c.cums[ia]) + tail + c.r.Overhead
+			return head + int(ks[ib]-ks[ia]) + tail + c.r.Overhead
 		}
 	}
 	c.buf = append(append(append(c.buf[:0], c.before...), t...), c.after...)
 	return c.count(c.buf) + c.r.Overhead
 }
 
-// safeCut reports whether i is a pre-token edge of t under the GPT-2 rule
-// whatever comes before and after t: a character other than white space
-// followed by an ASCII white-space byte. No GPT-2 pre-token holds white
-// space after another character.
-func safeCut(t []byte, i int) bool {
-	if i <= 0 || i >= len(t) {
+// cutAt reports whether t may be cut at i: a free cut (FreeCutAt), and
+// under the GPT-2 rule one after a whole character, as the marks have
+// always been placed (the encoder also cuts after a byte that is not
+// UTF-8, before white space); the plan rests on where they fall.
+func (c *cutter) cutAt(t []byte, i int) bool {
+	if !c.r.Enc.FreeCutAt(t, i) {
 		return false
 	}
-	switch t[i] {
-	case ' ', '\t', '\n', '\r', '\v', '\f':
-	default:
-		return false
-	}
-	p := t[i-1]
-	if p < utf8.RuneSelf {
-		return !(p == ' ' || p == '\t' || p == '\n' || p == '\r' || p == '\v' || p == '\f')
+	if c.fine || t[i-1] < utf8.RuneSelf {
+		return true
 	}
 	r, size := utf8.DecodeLastRune(t[:i])
-	return !(r == utf8.RuneError && size <= 1) && !unicode.IsSpace(r)
+	return r != utf8.RuneError || size > 1
 }
 
-// firstSafeCut returns the first safe cut of t in [from, to), or 0.
-func firstSafeCut(t []byte, from, to int) int {
-	if from < 1 {
-		from = 1
+// endCut reports whether t, the whole text, may be cut one byte before its
+// end, which FreeCutAt never reports: under the GPT-2 rule a cut looks at
+// no byte after it, so t with one byte more that is not white space
+// tells. A bundle's cut needs the byte after it to be there.
+func (c *cutter) endCut(t []byte) bool {
+	i := len(t) - 1
+	if c.fine || i < 1 {
+		return false
 	}
-	for i := from; i < to && i < len(t); i++ {
-		if safeCut(t, i) {
+	var b [utf8.UTFMax + 2]byte
+	k := copy(b[:utf8.UTFMax+1], t[max(i-utf8.UTFMax, 0):])
+	b[k] = 'x'
+	return c.cutAt(b[:k+1], k-1)
+}
+
+// firstCut returns the first free cut of t in [from, to), or 0.
+func (c *cutter) firstCut(t []byte, from, to int) int {
+	for i := max(from, 1); i < to && i+1 < len(t); i++ {
+		if c.cutAt(t, i) {
 			return i
 		}
 	}
 	return 0
 }
 
-// lastSafeCut returns the last safe cut of t in [from, to), or 0.
-func lastSafeCut(t []byte, from, to int) int {
-	if to > len(t) {
-		to = len(t)
-	}
-	if from < 1 {
-		from = 1
-	}
-	for i := to - 1; i >= from; i-- {
-		if safeCut(t, i) {
+// lastCut returns the last free cut of t in [from, to), or 0.
+func (c *cutter) lastCut(t []byte, from, to int) int {
+	for i := min(to, len(t)-1) - 1; i >= max(from, 1); i-- {
+		if c.cutAt(t, i) {
 			return i
 		}
 	}

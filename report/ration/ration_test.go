@@ -19,7 +19,7 @@ import (
 // framed chunk re-encoded on its own has the tokens reported and fits the
 // budget, offsets are in order and inside the text, no cut falls inside a
 // UTF-8 character, and without overlap the chunks rebuild the text.
-func checkPlan(t *testing.T, r *Rationer, name string, text []byte, chunks []Chunk) {
+func checkPlan(t testing.TB, r *Rationer, name string, text []byte, chunks []Chunk) {
 	t.Helper()
 	if len(text) > 0 && len(chunks) == 0 {
 		t.Fatalf("%s: no chunks for %d bytes", name, len(text))
