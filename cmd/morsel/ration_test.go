@@ -134,3 +134,83 @@ func TestRationStreamedFile(t *testing.T) {
 		t.Fatalf("the plan's folder holds %d files, want the plan alone", len(ls))
 	}
 }
+
+// Under a bundle with free cuts, a document over 32 MiB is cut as it is
+// read, and the plan is the one the whole text gives; a bundle without
+// free cuts, or --split-pattern, reads the text whole and counts every
+// chunk whole.
+func TestRationStreamedUnderBundle(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "qwen3")
+	os.Mkdir(dir, 0o755)
+	gunzipTo(t, "../../testdata/vocab/qwen3/tokenizer.json.gz", filepath.Join(dir, "tokenizer.json"))
+	cfg, err := os.ReadFile("../../testdata/vocab/qwen3/tokenizer_config.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	os.WriteFile(filepath.Join(dir, "tokenizer_config.json"), cfg, 0o644)
+	v, err := bpe.LoadBundle(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	enc, err := bpe.NewEncoder(v, bpe.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if (&shared{}).genericSplit(enc) || !(&shared{splitPattern: `\w+|\s+`}).genericSplit(enc) {
+		t.Fatal("qwen3: want the window, and the whole text under --split-pattern")
+	}
+	meta := filepath.Join(t.TempDir(), "tokenizer.json")
+	gunzipTo(t, "../../testdata/vocab/metaspace-32k/tokenizer.json.gz", meta)
+	if mv, err := bpe.LoadBundle(meta); err != nil {
+		t.Fatal(err)
+	} else if me, _ := bpe.NewEncoder(mv, bpe.Options{}); !(&shared{}).genericSplit(me) {
+		t.Fatal("metaspace-32k prepends to every text: want the whole text")
+	}
+
+	var text []byte
+	files, _ := filepath.Glob("../../testdata/golden/corpus/*")
+	for len(text) <= corpus.DefaultStreamAbove {
+		for _, f := range files {
+			b, _ := os.ReadFile(f)
+			text = append(append(text, b...), "\n\n"...)
+		}
+	}
+	in := filepath.Join(t.TempDir(), "big.txt")
+	os.WriteFile(in, text, 0o644)
+	plan := filepath.Join(t.TempDir(), "plan.jsonl")
+	_, serr, code := runMorsel(t, "ration", in, "--vocab", dir, "--budget", "3000", "--window", "4000", "--overlap", "30", "--emit", plan, "--quiet")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, serr)
+	}
+	f, err := os.Open(plan)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	var got []ration.Chunk
+	sc := bufio.NewScanner(f)
+	sc.Buffer(nil, 1<<24)
+	for sc.Scan() {
+		var c ration.Chunk
+		if err := json.Unmarshal(sc.Bytes(), &c); err != nil {
+			t.Fatal(err)
+		}
+		got = append(got, c)
+	}
+	// The package's tests hold the window's plan to the whole-text path's;
+	// here the whole text is cut in memory, which is quicker.
+	r := &ration.Rationer{Enc: enc, Budget: 3000, Overlap: 30}
+	want, _, err := r.Cut(in, 0, text, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(got) != len(want) || len(want) < 1000 {
+		t.Fatalf("%d chunks streamed, %d from the whole text", len(got), len(want))
+	}
+	for i := range want {
+		g, w := got[i], want[i]
+		if g.Start != w.Start || g.End != w.End || g.Tokens != w.Tokens || g.Cut != w.Cut || g.Text != w.Text {
+			t.Fatalf("chunk %d: [%d, %d) %d tokens, %s; the whole text [%d, %d) %d, %s", i, g.Start, g.End, g.Tokens, g.Cut, w.Start, w.End, w.Tokens, w.Cut)
+		}
+	}
+}

@@ -528,11 +528,10 @@ func (c *cutter) overlapStart(s, e int) int {
 	if x0 >= e {
 		return e
 	}
-	// Split from an edge that holds in any context, so the pre-tokens are
-	// those of the whole document; a fine cutter splits from s, as the
-	// whole-text path does.
+	// Split from a free cut: the pre-tokens after it are those of the
+	// whole document, and so those from s.
 	y := s
-	if !c.generic && !c.fine {
+	if !c.generic {
 		if k := c.lastCut(c.text, s+1, x0); k > 0 {
 			y = k
 		}
