@@ -2,14 +2,12 @@ package fragments
 
 import (
 	"bytes"
-	"compress/gzip"
-	"io"
-	"os"
 	"slices"
 	"strings"
 	"testing"
 
 	"morsel/bpe"
+	"morsel/report/internal/reporttest"
 	"morsel/report/render"
 )
 
@@ -34,27 +32,7 @@ func TestScanTextUnderMetaspaceBundle(t *testing.T) {
 // has byte fallback.
 func metaspaceEncoder(t *testing.T) *bpe.Encoder {
 	t.Helper()
-	gz, err := os.ReadFile("../../testdata/vocab/metaspace-32k/tokenizer.json.gz")
-	if err != nil {
-		t.Fatal(err)
-	}
-	zr, err := gzip.NewReader(bytes.NewReader(gz))
-	if err != nil {
-		t.Fatal(err)
-	}
-	data, err := io.ReadAll(zr)
-	if err != nil {
-		t.Fatal(err)
-	}
-	v, err := bpe.ParseBundle("tokenizer.json", data, "", nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	enc, err := bpe.NewEncoder(v, bpe.Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	return enc
+	return reporttest.BundleEncoder(t, "metaspace-32k")
 }
 
 // The words that the vocabulary spells only in byte-fallback tokens get a
