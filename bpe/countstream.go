@@ -133,7 +133,8 @@ func (e *Encoder) countLong(text []byte, size, workers int, cont bool) Stats {
 	var parts []stretch
 	for i := 0; i < len(text); {
 		end, next := len(text), len(text)
-		for j := i + 2*size; ; j *= 2 {
+		for w := 2 * size; ; w *= 2 { // the last cut within w bytes; a wider reach only where there is none
+			j := i + w
 			if j >= len(text) {
 				break
 			}
